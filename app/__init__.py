@@ -1,0 +1,1 @@
+"""Bandsketch desktop application (Qt): views and editing commands over the engine's document."""

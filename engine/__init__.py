@@ -1,0 +1,10 @@
+"""Bandsketch engine: circuits, exact AC analysis and time-constant estimates. No Qt here."""
+
+from .errors import BadValueError, CircuitError, DesignFileError
+from .document import Change, Document, Part, Wire
+from .designfile import load_design, save_design
+
+__all__ = [
+    "BadValueError", "Change", "CircuitError", "DesignFileError", "Document", "Part", "Wire",
+    "load_design", "save_design",
+]

@@ -1,0 +1,264 @@
+"""Reading and writing design files: JSON data only, checked whole before anything is used.
+
+Format (``"format": "bandsketch-design"``, ``"version": 1``)::
+
+    {"format": "bandsketch-design", "version": 1,
+     "title": "...", "description": "...",
+     "parts": [{"kind": "resistor", "name": "R1", "x": 0, "y": 0,
+                "rotation": 0, "mirror": false, "params": {"value": "4k7"}}],
+     "wires": [{"points": [[0, 40], [0, 80], [60, 80]]}],
+     "input": "Vsig", "bands": {"Ce": "low"}, "targets": {"f_high_min": "1M"}}
+
+A file is either loaded intact or refused with a :class:`DesignFileError` naming what is
+wrong; a partly loaded document never reaches the caller. Saving writes a temporary file
+beside the target, flushes it to disk and renames it over the target, so a save killed
+part-way leaves the previous file as it was.
+"""
+
+from __future__ import annotations
+
+import json
+import math
+import os
+import tempfile
+from pathlib import Path
+
+from .document import BANDS, NAME_RE, TARGET_KEYS, Document, Part, Wire
+from .errors import DesignFileError
+from .parts import KINDS, ROTATIONS
+
+FORMAT_NAME = "bandsketch-design"
+FORMAT_VERSION = 1
+MAX_FILE_BYTES = 8 * 1024 * 1024
+"""Larger files are refused before parsing: no hand-sized design comes near it."""
+MAX_PARTS = 20000
+MAX_TEXT = 200
+MAX_COORD = 10**7
+
+
+def document_to_dict(doc: Document) -> dict:
+    """The JSON-ready form of a document."""
+    return {
+        "format": FORMAT_NAME,
+        "version": FORMAT_VERSION,
+        "title": doc.title,
+        "description": doc.description,
+        "parts": [
+            {"kind": p.kind, "name": p.name, "x": p.x, "y": p.y, "rotation": p.rotation,
+             "mirror": p.mirror, "params": dict(p.params)}
+            for p in doc.parts.values()
+        ],
+        "wires": [{"points": [list(pt) for pt in w.points]} for w in doc.wires.values()],
+        "input": doc.input_source,
+        "bands": dict(doc.band_pins),
+        "targets": dict(doc.targets),
+    }
+
+
+def _fail(where: str, what: str) -> DesignFileError:
+    return DesignFileError(f"{where}: {what}")
+
+
+def _text(value, where: str, *, allow_empty=True) -> str:
+    if not isinstance(value, str):
+        raise _fail(where, f"expected text, found {type(value).__name__}")
+    if len(value) > MAX_TEXT:
+        raise _fail(where, f"text longer than {MAX_TEXT} characters")
+    if not allow_empty and not value:
+        raise _fail(where, "is empty")
+    return value
+
+
+def _int(value, where: str) -> int:
+    if isinstance(value, bool) or not isinstance(value, (int, float)):
+        raise _fail(where, f"expected a number, found {type(value).__name__}")
+    if not math.isfinite(value) or value != int(value) or abs(value) > MAX_COORD:
+        raise _fail(where, f"{value!r} is not a whole number of scene units within ±{MAX_COORD}")
+    return int(value)
+
+
+def _object(value, where: str, keys: set, required: set) -> dict:
+    if not isinstance(value, dict):
+        raise _fail(where, f"expected an object, found {type(value).__name__}")
+    unknown = set(value) - keys
+    if unknown:
+        raise _fail(where, f"unknown key(s) {', '.join(sorted(map(str, unknown)))}")
+    missing = required - set(value)
+    if missing:
+        raise _fail(where, f"missing key(s) {', '.join(sorted(missing))}")
+    return value
+
+
+def _part(raw, i: int) -> Part:
+    where = f"part {i + 1}"
+    raw = _object(raw, where, {"kind", "name", "x", "y", "rotation", "mirror", "params"},
+                  {"kind", "name", "x", "y"})
+    kind = _text(raw["kind"], f"{where} kind")
+    if kind not in KINDS:
+        raise _fail(where, f"unknown kind {kind!r} (known: {', '.join(KINDS)})")
+    name = _text(raw["name"], f"{where} name", allow_empty=False)
+    if not NAME_RE.match(name):
+        raise _fail(where, f"{name!r} is not a usable part name")
+    where = f"part {name}"
+    rotation = _int(raw.get("rotation", 0), f"{where} rotation")
+    if rotation not in ROTATIONS:
+        raise _fail(where, f"rotation {rotation} is not one of {ROTATIONS}")
+    mirror = raw.get("mirror", False)
+    if not isinstance(mirror, bool):
+        raise _fail(where, "mirror must be true or false")
+    params = raw.get("params", {})
+    if not isinstance(params, dict):
+        raise _fail(where, "params must be an object")
+    known = {f.key for f in KINDS[kind].fields}
+    for key, value in params.items():
+        if key not in known:
+            raise _fail(where, f"{KINDS[kind].title} has no field {key!r}")
+        _text(value, f"{where} field {key}")
+    full = {**KINDS[kind].default_params(), **params}
+    return Part(kind, name, _int(raw["x"], f"{where} x"), _int(raw["y"], f"{where} y"),
+                rotation, mirror, full)
+
+
+def document_from_dict(data, source: str = "design") -> Document:
+    """Build a document from parsed JSON, or raise :class:`DesignFileError` naming the fault.
+
+    Parameters
+    ----------
+    data : object
+        What ``json.load`` returned.
+    source : str
+        The file name, used at the head of every message.
+    """
+    try:
+        return _document_from_dict(data)
+    except DesignFileError as exc:
+        raise DesignFileError(f"{source}: {exc}") from None
+
+
+def _document_from_dict(data) -> Document:
+    data = _object(data, "the file", {"format", "version", "title", "description", "parts", "wires",
+                                      "input", "bands", "targets"}, {"format", "version", "parts"})
+    if data["format"] != FORMAT_NAME:
+        raise _fail("the file", f"is not a Bandsketch design (format {data['format']!r})")
+    version = data["version"]
+    if isinstance(version, bool) or not isinstance(version, int):
+        raise _fail("version", "must be a whole number")
+    if version > FORMAT_VERSION:
+        raise _fail("version", f"{version} is newer than this Bandsketch reads ({FORMAT_VERSION}); "
+                               "open it with a newer Bandsketch")
+    if version < 1:
+        raise _fail("version", f"{version} is not a valid version")
+    doc = Document(_text(data.get("title", "Untitled design"), "title"))
+    doc.description = _text(data.get("description", ""), "description")
+    parts = data["parts"]
+    if not isinstance(parts, list):
+        raise _fail("parts", "must be a list")
+    if len(parts) > MAX_PARTS:
+        raise _fail("parts", f"more than {MAX_PARTS} parts")
+    for i, raw in enumerate(parts):
+        part = _part(raw, i)
+        problem = doc.name_problem(part.name)
+        if problem:
+            raise _fail(f"part {i + 1}", problem)
+        doc.add_part(part)
+    wires = data.get("wires", [])
+    if not isinstance(wires, list) or len(wires) > MAX_PARTS:
+        raise _fail("wires", f"must be a list of at most {MAX_PARTS} wires")
+    for i, raw in enumerate(wires):
+        raw = _object(raw, f"wire {i + 1}", {"points"}, {"points"})
+        points = raw["points"]
+        if not isinstance(points, list) or not 2 <= len(points) <= 1000:
+            raise _fail(f"wire {i + 1}", "points must be a list of 2 to 1000 [x, y] pairs")
+        pts = []
+        for j, pt in enumerate(points):
+            if not isinstance(pt, list) or len(pt) != 2:
+                raise _fail(f"wire {i + 1} point {j + 1}", "must be an [x, y] pair")
+            pts.append((_int(pt[0], f"wire {i + 1} point {j + 1}"), _int(pt[1], f"wire {i + 1} point {j + 1}")))
+        doc.add_wire(Wire(doc.new_wire_id(), tuple(pts)))
+    source = data.get("input")
+    if source is not None:
+        source = _text(source, "input")
+        if source not in doc.parts or doc.parts[source].kind not in ("vsource", "isource"):
+            raise _fail("input", f"{source!r} is not a voltage or current source of this design")
+    doc.input_source = source
+    bands = data.get("bands", {})
+    if not isinstance(bands, dict):
+        raise _fail("bands", "must be an object")
+    for element, band in bands.items():
+        if band not in BANDS:
+            raise _fail(f"bands {element}", f"must be one of {BANDS}")
+        doc.set_band_pin(_text(element, "bands"), band)
+    targets = data.get("targets", {})
+    if not isinstance(targets, dict):
+        raise _fail("targets", "must be an object")
+    for key, text in targets.items():
+        if key not in TARGET_KEYS:
+            raise _fail("targets", f"unknown target {key!r} (known: {', '.join(TARGET_KEYS)})")
+        doc.set_target(key, _text(text, f"targets {key}"))
+    return doc
+
+
+def load_design(path) -> Document:
+    """Read a design file.
+
+    Raises
+    ------
+    DesignFileError
+        The file is missing, unreadable, too large, not JSON, or not a valid design; the
+        message names the file and the first fault found.
+    """
+    path = Path(path)
+    try:
+        size = path.stat().st_size
+        if size > MAX_FILE_BYTES:
+            raise DesignFileError(f"{path.name}: {size / 1e6:.1f} MB is larger than a design file can be "
+                                  f"({MAX_FILE_BYTES // (1024 * 1024)} MiB)")
+        raw = path.read_bytes()
+    except OSError as exc:
+        raise DesignFileError(f"{path.name}: cannot be read ({exc.strerror or exc})") from None
+    try:
+        data = json.loads(raw.decode("utf-8"), parse_constant=_refuse_constant)
+    except UnicodeDecodeError:
+        raise DesignFileError(f"{path.name}: is not UTF-8 text") from None
+    except RecursionError:
+        raise DesignFileError(f"{path.name}: is nested too deeply to be a design") from None
+    except json.JSONDecodeError as exc:
+        raise DesignFileError(f"{path.name}: is not valid JSON (line {exc.lineno}, column {exc.colno}: "
+                              f"{exc.msg}); it may be truncated or damaged") from None
+    except ValueError as exc:
+        raise DesignFileError(f"{path.name}: {exc}") from None
+    return document_from_dict(data, path.name)
+
+
+def _refuse_constant(name: str):
+    raise ValueError(f"holds {name}, which is not a number a design can use")
+
+
+def save_design(doc: Document, path) -> None:
+    """Write a design file atomically (temporary file, fsync, rename).
+
+    Raises
+    ------
+    DesignFileError
+        The place cannot be written (read-only, full disk ...); the old file, if any, is intact.
+    """
+    path = Path(path)
+    text = json.dumps(document_to_dict(doc), indent=1, ensure_ascii=False) + "\n"
+    tmp = None
+    try:
+        fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=path.parent or ".")
+        with os.fdopen(fd, "w", encoding="utf-8") as fh:
+            fh.write(text)
+            fh.flush()
+            os.fsync(fh.fileno())
+        os.replace(tmp, path)
+        tmp = None
+    except OSError as exc:
+        raise DesignFileError(f"{path.name}: could not be saved ({exc.strerror or exc}); "
+                              "the design is still open and unsaved") from None
+    finally:
+        if tmp is not None:
+            try:
+                os.unlink(tmp)
+            except OSError:
+                pass

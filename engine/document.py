@@ -1,0 +1,250 @@
+"""The design document: parts, pins, wires, labels and parameters, announcing its changes.
+
+The document is the one place a design lives. The canvas, the bars and the plots are views
+of it: they subscribe to :attr:`Document.changed` (one notice per primitive change) and
+:attr:`Document.edited` (a whole user gesture is over: recompute now). Parts and wires are
+immutable values; an edit replaces one with another, which is what makes undo exact.
+"""
+
+from __future__ import annotations
+
+import re
+from dataclasses import dataclass, field, replace
+from types import MappingProxyType
+from typing import Mapping
+
+from .events import Signal
+from .parts import KINDS, ROTATIONS, pin_positions
+
+NAME_RE = re.compile(r"^[A-Za-z][A-Za-z0-9_]*$")
+"""What a part name may look like: a letter, then letters, digits or underscores."""
+
+BANDS = ("low", "high")
+"""Bands a user may pin an element to."""
+
+TARGET_KEYS = ("f_high_min", "f_low_max", "gain", "gain_tolerance")
+"""Design targets a document may hold (texts, parsed by the engine's value parser)."""
+
+
+@dataclass(frozen=True)
+class Part:
+    """One placed part.
+
+    Parameters
+    ----------
+    kind : str
+        Key into :data:`engine.parts.KINDS`.
+    name : str
+        Unique name on the sheet (``R1``, ``Q2``, ``Cin``).
+    x, y : int
+        Origin on the sheet, in scene units (grid multiples).
+    rotation : int
+        Degrees clockwise, 0, 90, 180 or 270.
+    mirror : bool
+        Flipped left-to-right before rotating.
+    params : Mapping[str, str]
+        Field texts exactly as the user typed them (``"4k7"``); parsed only when analysed.
+    """
+
+    kind: str
+    name: str
+    x: int = 0
+    y: int = 0
+    rotation: int = 0
+    mirror: bool = False
+    params: Mapping[str, str] = field(default_factory=dict)
+
+    def __post_init__(self):
+        if self.kind not in KINDS:
+            raise ValueError(f"unknown part kind {self.kind!r}")
+        if self.rotation not in ROTATIONS:
+            raise ValueError(f"{self.name}: rotation must be one of {ROTATIONS}")
+        object.__setattr__(self, "params", MappingProxyType(dict(self.params)))
+
+    def with_params(self, **changes: str) -> "Part":
+        """A copy with some field texts changed."""
+        return replace(self, params={**self.params, **changes})
+
+    def pins(self) -> dict:
+        """Pin name -> sheet position (x, y) in scene units."""
+        return pin_positions(self.kind, self.x, self.y, self.rotation, self.mirror)
+
+
+@dataclass(frozen=True)
+class Wire:
+    """A wire: an orthogonal polyline of sheet points (scene units), at least two."""
+
+    id: int
+    points: tuple
+
+    def __post_init__(self):
+        pts = tuple((int(x), int(y)) for x, y in self.points)
+        if len(pts) < 2:
+            raise ValueError(f"wire {self.id} needs at least two points")
+        object.__setattr__(self, "points", pts)
+
+
+@dataclass(frozen=True)
+class Change:
+    """What one primitive change touched: ``what`` is one of ``part_added``, ``part_removed``,
+    ``part_changed``, ``wire_added``, ``wire_removed``, ``wire_changed``, ``meta``, ``reset``;
+    ``key`` is the part name or wire id (for a rename, the old name; ``new_key`` the new)."""
+
+    what: str
+    key: object = None
+    new_key: object = None
+
+
+class Document:
+    """A design: parts, wires, the chosen input source, band pins, targets and a title."""
+
+    def __init__(self, title: str = "Untitled design") -> None:
+        self.changed = Signal()
+        self.edited = Signal()
+        self._parts: dict[str, Part] = {}
+        self._wires: dict[int, Wire] = {}
+        self._next_wire = 1
+        self.title = title
+        self.description = ""
+        self.input_source: str | None = None
+        self._band_pins: dict[str, str] = {}
+        self._targets: dict[str, str] = {}
+
+    # -- reading -------------------------------------------------------------
+    @property
+    def parts(self) -> Mapping[str, Part]:
+        """Name -> :class:`Part`, in the order they were added (read-only)."""
+        return MappingProxyType(self._parts)
+
+    @property
+    def wires(self) -> Mapping[int, Wire]:
+        """Id -> :class:`Wire` (read-only)."""
+        return MappingProxyType(self._wires)
+
+    @property
+    def band_pins(self) -> Mapping[str, str]:
+        """Element name -> ``"low"`` or ``"high"``, for the elements the user pinned."""
+        return MappingProxyType(self._band_pins)
+
+    @property
+    def targets(self) -> Mapping[str, str]:
+        """Target key (see :data:`TARGET_KEYS`) -> text of the value."""
+        return MappingProxyType(self._targets)
+
+    def is_empty(self) -> bool:
+        """Whether nothing is drawn."""
+        return not self._parts and not self._wires
+
+    def new_name(self, kind: str) -> str:
+        """The lowest free automatic name for a new part of ``kind`` (R1, R2 ... C1 ...)."""
+        prefix = KINDS[kind].prefix
+        n = 1
+        while f"{prefix}{n}" in self._parts:
+            n += 1
+        return f"{prefix}{n}"
+
+    def name_problem(self, name: str, current: str | None = None) -> str | None:
+        """Why ``name`` cannot be given to a part (now called ``current``), or None if it can."""
+        if not NAME_RE.match(name or ""):
+            return f"'{name}' is not a usable name: start with a letter, then letters, digits or _"
+        clash = next((n for n in self._parts if n.lower() == name.lower() and n != current), None)
+        if clash is not None:
+            return f"'{name}' is already the name of {clash}; choose another"
+        return None
+
+    def new_wire_id(self) -> int:
+        """An id no wire of this document has used."""
+        return self._next_wire
+
+    # -- primitive changes (the undo commands call these) ---------------------
+    def add_part(self, part: Part) -> None:
+        """Add a part whose name is free."""
+        problem = self.name_problem(part.name)
+        if problem:
+            raise ValueError(problem)
+        self._parts[part.name] = part
+        self.changed.emit(Change("part_added", part.name))
+
+    def remove_part(self, name: str) -> Part:
+        """Remove a part and return it."""
+        part = self._parts.pop(name)
+        self.changed.emit(Change("part_removed", name))
+        return part
+
+    def replace_part(self, name: str, part: Part) -> None:
+        """Replace part ``name`` by ``part`` (which may carry a new name), keeping its place."""
+        if part.name != name:
+            problem = self.name_problem(part.name, current=name)
+            if problem:
+                raise ValueError(problem)
+            self._parts = {(part.name if k == name else k): v for k, v in self._parts.items()}
+            if name in self._band_pins:
+                self._band_pins[part.name] = self._band_pins.pop(name)
+            if self.input_source == name:
+                self.input_source = part.name
+        self._parts[part.name] = part
+        self.changed.emit(Change("part_changed", name, part.name))
+
+    def add_wire(self, wire: Wire) -> None:
+        """Add a wire whose id is unused."""
+        if wire.id in self._wires:
+            raise ValueError(f"wire id {wire.id} is taken")
+        self._wires[wire.id] = wire
+        self._next_wire = max(self._next_wire, wire.id + 1)
+        self.changed.emit(Change("wire_added", wire.id))
+
+    def remove_wire(self, wire_id: int) -> Wire:
+        """Remove a wire and return it."""
+        wire = self._wires.pop(wire_id)
+        self.changed.emit(Change("wire_removed", wire_id))
+        return wire
+
+    def replace_wire(self, wire: Wire) -> None:
+        """Replace the wire with the same id."""
+        if wire.id not in self._wires:
+            raise KeyError(wire.id)
+        self._wires[wire.id] = wire
+        self.changed.emit(Change("wire_changed", wire.id))
+
+    def set_meta(self, **changes) -> None:
+        """Change ``title``, ``description`` or ``input_source``."""
+        for key, value in changes.items():
+            if key not in ("title", "description", "input_source"):
+                raise KeyError(key)
+            setattr(self, key, value)
+        self.changed.emit(Change("meta"))
+
+    def set_band_pin(self, element: str, band: str | None) -> None:
+        """Pin ``element`` to ``"low"`` or ``"high"``, or unpin it with None."""
+        if band is None:
+            self._band_pins.pop(element, None)
+        elif band in BANDS:
+            self._band_pins[element] = band
+        else:
+            raise ValueError(f"band must be one of {BANDS} or None, not {band!r}")
+        self.changed.emit(Change("meta"))
+
+    def set_target(self, key: str, text: str | None) -> None:
+        """Set a target's text, or clear it with None or ''."""
+        if key not in TARGET_KEYS:
+            raise KeyError(key)
+        if text:
+            self._targets[key] = text
+        else:
+            self._targets.pop(key, None)
+        self.changed.emit(Change("meta"))
+
+    def replace_all(self, other: "Document") -> None:
+        """Take every part, wire and setting of ``other`` (open, new, restore); one reset notice."""
+        self._parts = dict(other._parts)
+        self._wires = dict(other._wires)
+        self._next_wire = other._next_wire
+        self.title, self.description = other.title, other.description
+        self.input_source = other.input_source
+        self._band_pins = dict(other._band_pins)
+        self._targets = dict(other._targets)
+        self.changed.emit(Change("reset"))
+
+    def finish_edit(self) -> None:
+        """Announce that a user gesture is complete, so views may recompute."""
+        self.edited.emit()
