@@ -27,7 +27,7 @@ class Field:
     label : str
         Name shown to the user (may use Unicode subscripts).
     unit : str
-        SI unit of the value ("Ω", "F", "H", "S", "V/V", "A/A", "A", "V", "Hz", "°C", "1/V",
+        SI unit of the value ("Ω", "F", "H", "S", "V/V", "A/A", "A", "V", "Hz", "K", "1/V",
         "" for a plain number); ``"choice"`` fields hold one of ``choices``; ``"name"`` fields
         hold the name of another part.
     default : str
@@ -98,7 +98,7 @@ _BJT_FIELDS = (
     Field("beta", "β", "", "100", mode="operating_point"),
     Field("ft", "f_T", "Hz", "300M", optional=True, mode="operating_point"),
     Field("va", "V_A", "V", "", optional=True, mode="operating_point"),
-    Field("temp", "Temperature", "°C", "27", mode="operating_point", allow_negative=True),
+    Field("temp", "Temperature", "K", "300", mode="operating_point"),
     Field("ro", "r_o", "Ω", "", optional=True, mode="small_signal"),
     Field("rb", "r_b", "Ω", "", optional=True),
     Field("cmu", "C_μ", "F", "1p", optional=True),

@@ -1,0 +1,95 @@
+"""The exact reference: H(jω) of the full network, and its poles and zeros."""
+
+from __future__ import annotations
+
+import numpy as np
+import scipy.linalg as la
+import scipy.sparse as sp
+import scipy.sparse.linalg as spla
+
+from .errors import CircuitError
+
+DENSE_LIMIT = 250
+"""Up to this many unknowns a batched dense solve beats a sparse LU per frequency."""
+_CHUNK_BYTES = 64 * 1024 * 1024
+_FINITE_RATIO = 1e-9
+"""An eigenvalue whose |β| is below this fraction of |α| (after frequency scaling) is infinite."""
+
+
+def frequency_response(system, freqs_hz) -> np.ndarray:
+    """Exact transfer function at the given frequencies.
+
+    Parameters
+    ----------
+    system : engine.mna.MnaSystem
+        Assembled equations.
+    freqs_hz : array_like
+        Frequencies in Hz.
+
+    Returns
+    -------
+    numpy.ndarray
+        Complex H(j2πf): V/V for a voltage input, V/A (Ω) for a current input.
+    """
+    f = np.atleast_1d(np.asarray(freqs_hz, dtype=float))
+    w = 2 * np.pi * f
+    n = system.size
+    out = np.empty(f.shape, dtype=complex)
+    if n <= DENSE_LIMIT:
+        G, C = system.G.toarray(), system.C.toarray()
+        step = max(1, _CHUNK_BYTES // (16 * n * n))
+        rhs = system.b.astype(complex)
+        for i in range(0, w.size, step):
+            ws = w[i:i + step]
+            A = G[None, :, :] + 1j * ws[:, None, None] * C[None, :, :]
+            try:
+                x = np.linalg.solve(A, np.broadcast_to(rhs, (ws.size, n))[..., None])[..., 0]
+            except np.linalg.LinAlgError:
+                raise CircuitError("The network equations are singular at some frequency: check for "
+                                   "ideal elements that fix the same voltage or current twice.") from None
+            out[i:i + step] = x @ system.c
+    else:
+        G, C = system.G.tocsc().astype(complex), system.C.tocsc().astype(complex)
+        for i, wi in enumerate(w):
+            try:
+                lu = spla.splu(sp.csc_matrix(G + 1j * wi * C))
+            except RuntimeError:
+                raise CircuitError(f"The network equations are singular at {f[i]:g} Hz.") from None
+            out[i] = system.c @ lu.solve(system.b.astype(complex))
+    return out
+
+
+def _finite_eigenvalues(A, B) -> np.ndarray:
+    """Finite generalised eigenvalues s of A v = s B v, with the pencil scaled for conditioning."""
+    if A.shape[0] == 0:
+        return np.zeros(0, complex)
+    nb = np.abs(B).max()
+    if nb == 0:
+        return np.zeros(0, complex)
+    w0 = np.abs(A).max() / nb
+    alpha, beta = la.eig(A, w0 * B, right=False, homogeneous_eigvals=True)
+    keep = np.abs(beta) > _FINITE_RATIO * np.abs(alpha)
+    s = w0 * alpha[keep] / beta[keep]
+    s[np.abs(s) < 1e-12 * w0] = 0.0
+    return np.sort_complex(s)
+
+
+def poles(system) -> np.ndarray:
+    """Finite natural frequencies of the network (rad/s): s with det(G + sC) = 0."""
+    return _finite_eigenvalues(-system.G.toarray(), system.C.toarray())
+
+
+def zeros(system) -> np.ndarray:
+    """Finite transmission zeros (rad/s) from the input to the output.
+
+    The zeros are the finite generalised eigenvalues of the system pencil
+    [[G + sC, −b], [c, 0]], which is singular exactly where H(s) = 0.
+    """
+    n = system.size
+    A = np.zeros((n + 1, n + 1))
+    B = np.zeros((n + 1, n + 1))
+    A[:n, :n] = -system.G.toarray()
+    A[:n, n] = system.b
+    A[n, :n] = -system.c
+    B[:n, :n] = system.C.toarray()
+    return _finite_eigenvalues(A, B)

@@ -1,0 +1,144 @@
+"""Checks that a circuit can be solved, before any solve; each problem names where it is."""
+
+from __future__ import annotations
+
+from collections import Counter, defaultdict
+
+import networkx as nx
+
+from .elements import CCCS, CCVS, CONDUCTS_AT_DC, VCCS, VCVS, VOLTAGE_DEFINING, ISource, VSource
+from .errors import CircuitError
+
+
+def _shown(names, limit=6):
+    names = sorted(set(names))
+    more = len(names) - limit
+    text = ", ".join(names[:limit])
+    return text + (f" and {more} more" if more > 0 else "")
+
+
+def _electrical_pairs(el):
+    """Node pairs an element joins for current (the sensing pins of a VCCS/VCVS carry none)."""
+    if isinstance(el, (VCCS, VCVS)):
+        return [(el.p, el.n)]
+    return [tuple(el.nodes[:2])]
+
+
+def _conducts_at_dc(el) -> bool:
+    if isinstance(el, CONDUCTS_AT_DC):
+        return True
+    # A transconductance sensing its own terminals is a conductance (a diode-connected device).
+    return isinstance(el, VCCS) and {el.p, el.n} == {el.cp, el.cn} and el.gm != 0
+
+
+def problems(circuit) -> list[CircuitError]:
+    """Every problem that stops ``circuit`` from being analysed, most basic first.
+
+    Returns
+    -------
+    list of CircuitError
+        Empty when the circuit can be solved. Each error's ``parts`` and ``nodes`` say
+        where the problem is.
+    """
+    els = list(circuit.elements.values())
+    found: list[CircuitError] = []
+    if not els:
+        return [CircuitError("The circuit is empty: draw a signal source, the stage and an output.")]
+    owner = {el.name: (el.owner or el.name) for el in els}
+
+    if not any("0" in el.nodes for el in els):
+        found.append(CircuitError("There is no ground: connect a ground symbol to the circuit's reference node."))
+
+    for el in els:
+        if isinstance(el, (CCCS, CCVS)):
+            sensed = circuit.elements.get(el.sensed)
+            if not isinstance(sensed, VSource):
+                found.append(CircuitError(
+                    f"{el.name} senses the current of '{el.sensed}', which is not a voltage source of this "
+                    "circuit: name an existing voltage source (a 0 V source can serve as an ammeter).",
+                    parts=(el.name,)))
+
+    sources = [el for el in els if isinstance(el, (VSource, ISource))]
+    if not sources:
+        found.append(CircuitError("There is no signal source: add a voltage or current source as the input."))
+    elif circuit.input_name is None or not isinstance(circuit.elements.get(circuit.input_name), (VSource, ISource)):
+        found.append(CircuitError(
+            f"The input '{circuit.input_name}' is not an independent source; choose one of "
+            f"{_shown(s.name for s in sources)} as the input.", parts=()))
+
+    nodes = set(circuit.nodes())
+    if circuit.output_nodes is None:
+        found.append(CircuitError("No output is chosen: place an output probe on the node to observe."))
+    else:
+        p, n = circuit.output_nodes
+        missing = [x for x in (p, n) if x not in nodes]
+        if missing:
+            found.append(CircuitError(f"The output node {_shown(missing)} is not in the circuit: "
+                                      "put the output probe on a wired node.", nodes=missing))
+        elif p == n:
+            found.append(CircuitError(f"The output is taken across node {p} and itself: choose two different nodes.",
+                                      nodes=(p,)))
+
+    counts = Counter(node for el in els for node in el.nodes)
+    for node, count in counts.items():
+        if node != "0" and count == 1:
+            el = next(e for e in els if node in e.nodes)
+            found.append(CircuitError(
+                f"Node {node} has only one connection ({owner[el.name]}): wire it to the rest of the "
+                f"circuit or remove {owner[el.name]}.", parts=(owner[el.name],), nodes=(node,)))
+
+    graph = nx.Graph()
+    graph.add_nodes_from(nodes)
+    touching = defaultdict(set)
+    for el in els:
+        for a, b in _electrical_pairs(el):
+            graph.add_edge(a, b)
+        for node in el.nodes:
+            touching[node].add(owner[el.name])
+    for piece in nx.connected_components(graph):
+        if "0" not in piece and "0" in nodes:
+            parts = set().union(*(touching[x] for x in piece))
+            found.append(CircuitError(
+                f"Part of the circuit ({_shown(parts)}) is not connected to the rest: wire it in or "
+                "delete it.", parts=parts, nodes=piece))
+
+    dc = nx.Graph()
+    dc.add_nodes_from(nodes)
+    for el in els:
+        if _conducts_at_dc(el):
+            dc.add_edge(*el.nodes[:2])
+    # Pieces cut off from ground altogether were reported above; here only the DC-isolated ones.
+    reachable = nx.node_connected_component(graph, "0") if "0" in nodes else set()
+    for piece in nx.connected_components(dc):
+        if "0" in piece or not piece <= reachable:
+            continue
+        parts = set().union(*(touching[x] for x in piece))
+        found.append(CircuitError(
+            f"Node {_shown(piece)} has no DC path to ground (it touches only {_shown(parts)}): add a "
+            "resistor to ground or a bias path, or merge capacitors that sit in series.",
+            parts=parts, nodes=piece))
+
+    forest = nx.Graph()
+    for el in els:
+        if not isinstance(el, VOLTAGE_DEFINING):
+            continue
+        a, b = el.nodes[:2]
+        if a == b:
+            found.append(CircuitError(f"{owner[el.name]} is shorted: both its ends are on node {a}.",
+                                      parts=(owner[el.name],), nodes=(a,)))
+        elif forest.has_node(a) and forest.has_node(b) and nx.has_path(forest, a, b):
+            path = nx.shortest_path(forest, a, b)
+            loop = {forest.edges[u, v]["name"] for u, v in zip(path, path[1:])} | {owner[el.name]}
+            found.append(CircuitError(
+                f"{_shown(loop)} form a loop of voltage sources and inductors, which fixes no current: "
+                "put a resistance in the loop or remove one of them.", parts=loop, nodes=path))
+        else:
+            forest.add_edge(a, b, name=owner[el.name])
+    return found
+
+
+def validate(circuit) -> None:
+    """Raise the first of :func:`problems` as a :class:`~engine.errors.CircuitError`, if any."""
+    found = problems(circuit)
+    if found:
+        raise found[0]
