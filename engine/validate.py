@@ -61,7 +61,11 @@ def problems(circuit) -> list[CircuitError]:
     sources = [el for el in els if isinstance(el, (VSource, ISource))]
     if not sources:
         found.append(CircuitError("There is no signal source: add a voltage or current source as the input."))
-    elif circuit.input_name is None or not isinstance(circuit.elements.get(circuit.input_name), (VSource, ISource)):
+    elif circuit.input_name is None:
+        found.append(CircuitError(
+            f"There are several sources ({_shown(s.name for s in sources)}): choose which one is the "
+            "signal input.", parts=[s.name for s in sources]))
+    elif not isinstance(circuit.elements.get(circuit.input_name), (VSource, ISource)):
         found.append(CircuitError(
             f"The input '{circuit.input_name}' is not an independent source; choose one of "
             f"{_shown(s.name for s in sources)} as the input.", parts=()))

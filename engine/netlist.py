@@ -1,0 +1,239 @@
+"""From a drawn design to a circuit: nets from wire geometry, parts to elements.
+
+Connection rules: a wire joins all its own points; pins and wire points at the same place
+join; a wire end or a pin lying on another wire's segment joins it (a T-junction); wires
+that merely cross do not join. Net labels with the same name join their nets; a ground
+symbol makes its net node ``0``. A net is named by its label, else by its first pin
+(``R1.b``), so messages point at something the user can find on the sheet.
+"""
+
+from __future__ import annotations
+
+from collections import defaultdict
+from dataclasses import dataclass
+from types import MappingProxyType
+from typing import Mapping
+
+from .circuit import Circuit
+from .devices import given_from_params
+from .errors import BadValueError, CircuitError
+from .validate import problems as circuit_problems
+
+NO_ELEMENT = ("ground", "label", "output")
+"""Part kinds that mark the sheet but add no element."""
+
+
+class _Union:
+    def __init__(self):
+        self.parent = {}
+
+    def find(self, x):
+        self.parent.setdefault(x, x)
+        while self.parent[x] != x:
+            self.parent[x] = self.parent[self.parent[x]]
+            x = self.parent[x]
+        return x
+
+    def join(self, a, b):
+        ra, rb = self.find(a), self.find(b)
+        if ra != rb:
+            self.parent[max(ra, rb)] = min(ra, rb)
+
+
+def _on_segment(pt, a, b) -> bool:
+    (x, y), (x1, y1), (x2, y2) = pt, a, b
+    if (x2 - x1) * (y - y1) != (y2 - y1) * (x - x1):
+        return False
+    return min(x1, x2) <= x <= max(x1, x2) and min(y1, y2) <= y <= max(y1, y2)
+
+
+@dataclass(frozen=True)
+class Netlist:
+    """Nets of a design.
+
+    Attributes
+    ----------
+    pin_net : Mapping[tuple, str]
+        (part name, pin name) -> net name.
+    net_points : Mapping[str, tuple]
+        Net name -> sheet points (scene units) of its pins, to mark a net on the canvas.
+    wire_net : Mapping[int, str or None]
+        Wire id -> net name (None for a wire that touches no pin).
+    """
+
+    pin_net: Mapping
+    net_points: Mapping
+    wire_net: Mapping
+
+
+def build_netlist(doc) -> Netlist:
+    """Join the pins and wires of ``doc`` into named nets."""
+    uf = _Union()
+    at_point = defaultdict(list)
+    pin_pos = {}
+    for part in doc.parts.values():
+        for pin, pos in part.pins().items():
+            key = ("pin", part.name, pin)
+            pin_pos[key] = pos
+            at_point[pos].append(key)
+            uf.find(key)
+    ends = []
+    for wire in doc.wires.values():
+        key = ("wire", wire.id)
+        uf.find(key)
+        for pt in wire.points:
+            at_point[pt].append(key)
+        ends += [(wire.points[0], key), (wire.points[-1], key)]
+    for things in at_point.values():
+        for other in things[1:]:
+            uf.join(things[0], other)
+    # T-junctions: a pin or a wire end on the inside of some wire's segment.
+    by_x, by_y = defaultdict(list), defaultdict(list)
+    for pos, key in [(p, k) for k, p in pin_pos.items()] + ends:
+        by_x[pos[0]].append((pos, key))
+        by_y[pos[1]].append((pos, key))
+    for wire in doc.wires.values():
+        wkey = ("wire", wire.id)
+        for a, b in zip(wire.points, wire.points[1:]):
+            if a[0] == b[0]:
+                candidates = by_x[a[0]]
+            elif a[1] == b[1]:
+                candidates = by_y[a[1]]
+            else:
+                candidates = [(p, k) for k, p in pin_pos.items()] + ends
+            for pos, key in candidates:
+                if key != wkey and _on_segment(pos, a, b):
+                    uf.join(wkey, key)
+    labels = defaultdict(list)
+    for part in doc.parts.values():
+        if part.kind == "label":
+            labels[part.params.get("net", "").strip()].append(("pin", part.name, "p"))
+        elif part.kind == "ground":
+            labels["0"].append(("pin", part.name, "g"))
+    for name, keys in labels.items():
+        for k in keys[1:]:
+            uf.join(keys[0], k)
+
+    names = {}
+    for name, keys in sorted(labels.items(), key=lambda kv: kv[0] != "0"):
+        if name:
+            names.setdefault(uf.find(keys[0]), name)
+    order = {name: i for i, name in enumerate(doc.parts)}
+    for key in sorted(pin_pos, key=lambda k: (order[k[1]], k[2])):
+        part = doc.parts[key[1]]
+        if part.kind not in NO_ELEMENT:
+            names.setdefault(uf.find(key), f"{key[1]}.{key[2]}")
+    for key in pin_pos:
+        names.setdefault(uf.find(key), f"{key[1]}.{key[2]}")
+    pin_net = {(k[1], k[2]): names[uf.find(k)] for k in pin_pos}
+    net_points = defaultdict(list)
+    for k, pos in pin_pos.items():
+        net_points[pin_net[(k[1], k[2])]].append(pos)
+    wire_net = {w: names.get(uf.find(("wire", w))) for w in doc.wires}
+    return Netlist(MappingProxyType(pin_net),
+                   MappingProxyType({k: tuple(v) for k, v in net_points.items()}),
+                   MappingProxyType(wire_net))
+
+
+def _add_part(c: Circuit, part, net) -> None:
+    n, p, k = part.name, part.params, part.kind
+    if k in ("resistor", "capacitor", "inductor"):
+        getattr(c, k)(n, net("a"), net("b"), p["value"])
+    elif k == "vsource":
+        c.vsource(n, net("p"), net("n"))
+    elif k == "isource":
+        c.isource(n, net("into"), net("out_of"))
+    elif k == "vccs":
+        c.vccs(n, net("p"), net("n"), net("cp"), net("cn"), p["gm"])
+    elif k == "vcvs":
+        c.vcvs(n, net("p"), net("n"), net("cp"), net("cn"), p["gain"])
+    elif k == "cccs":
+        c.cccs(n, net("p"), net("n"), p["sensed"].strip(), p["gain"])
+    elif k == "ccvs":
+        c.ccvs(n, net("p"), net("n"), p["sensed"].strip(), p["r"])
+    elif k == "bjt":
+        c.bjt(n, collector=net("collector"), base=net("base"), emitter=net("emitter"),
+              **given_from_params(k, p))
+    elif k == "mosfet":
+        c.mosfet(n, drain=net("drain"), gate=net("gate"), source=net("source"),
+                 **given_from_params(k, p))
+    elif k == "opamp":
+        c.opamp(n, plus=net("plus"), minus=net("minus"), out=net("out"), **given_from_params(k, p))
+
+
+@dataclass(frozen=True)
+class Problem:
+    """Something that stops a drawn design from being analysed, and where it is.
+
+    Attributes
+    ----------
+    message : str
+        What is wrong and what to do.
+    parts : tuple of str
+        Names of the parts involved.
+    points : tuple of (int, int)
+        Sheet points (scene units) to mark, e.g. a dangling pin.
+    """
+
+    message: str
+    parts: tuple = ()
+    points: tuple = ()
+
+
+def _circuit_and_errors(doc):
+    nets = build_netlist(doc)
+    c = Circuit(doc.title)
+    errors = []
+    for part in doc.parts.values():
+        if part.kind in NO_ELEMENT:
+            continue
+        try:
+            _add_part(c, part, lambda pin, name=part.name: nets.pin_net[(name, pin)])
+        except CircuitError as exc:
+            errors.append(exc)
+    sources = [p.name for p in doc.parts.values() if p.kind in ("vsource", "isource")]
+    if doc.input_source:
+        c.input(doc.input_source)
+    elif len(sources) != 1:
+        c.input_name = None
+    probes = [p for p in doc.parts.values() if p.kind == "output"]
+    if len(probes) > 1:
+        errors.append(CircuitError(f"There are {len(probes)} output probes ({', '.join(p.name for p in probes)}): "
+                                   "keep one.", parts=[p.name for p in probes]))
+    elif probes:
+        c.output(nets.pin_net[(probes[0].name, "p")])
+    return c, nets, errors
+
+
+def design_to_circuit(doc) -> Circuit:
+    """The circuit a design draws, validated.
+
+    Raises
+    ------
+    CircuitError
+        The first problem found (a bad value, a dangling pin, no ground ...), naming the
+        part or node.
+    """
+    c, _, errors = _circuit_and_errors(doc)
+    if errors:
+        raise errors[0]
+    found = circuit_problems(c)
+    if found:
+        raise found[0]
+    return c
+
+
+def connectivity_problems(doc) -> list[Problem]:
+    """Every problem that stops ``doc`` from being analysed, with sheet points to mark.
+
+    Bad values are reported first; the circuit checks run only once every value reads.
+    """
+    c, nets, errors = _circuit_and_errors(doc)
+    if not any(isinstance(e, BadValueError) for e in errors):
+        errors += circuit_problems(c)
+    out = []
+    for exc in errors:
+        points = tuple(pt for node in exc.nodes for pt in nets.net_points.get(node, ()))
+        parts = tuple(p for p in exc.parts if p in doc.parts)
+        out.append(Problem(exc.message, parts, points))
+    return out
