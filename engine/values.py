@@ -36,6 +36,9 @@ _UNIT_NAMES = {
     "A": "amperes",
     "Hz": "hertz",
     "K": "kelvins",
+    # Fields whose unit cannot be typed after the number: a ratio (β) and λ.
+    "": "no unit",
+    "1/V": "per volt",
 }
 # Siemens and amperes per volt are the same unit; a gm field takes either.
 _QUANTITY = {symbol: symbol for symbol in _UNIT_NAMES} | {"S": "A/V"}
@@ -182,7 +185,7 @@ def _read_text(text, unit, bad):
         if written_unit not in (None, "Ω"):
             raise bad(f"is not a value; {_EXAMPLE}")
         written_unit = "Ω"
-    if written_unit and unit and _QUANTITY[written_unit] != _QUANTITY[unit]:
+    if written_unit and unit is not None and _QUANTITY[written_unit] != _QUANTITY[unit]:
         raise bad(f"is in {_UNIT_NAMES[written_unit]} but this field takes {_UNIT_NAMES[unit]}")
 
     if match["inf"]:
