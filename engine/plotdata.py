@@ -1,0 +1,496 @@
+"""What the analysis views draw, computed once from an analysis: curves, markers, bars, verdict.
+
+The plots and bars of the app turn these frozen objects into items and never compute; every
+number and every label text they show is decided here, so it can be tested without Qt and
+reads the same in every view.
+
+The estimated responses are the first-order forms the time-constant estimates stand for:
+above the mid band ``A_m / (1 + jω b1)``, below it ``A_m · s / (s + ω_L)`` with ``ω_L`` the
+sum of the short-circuit reciprocal time constants.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+import numpy as np
+
+from .values import format_value
+
+HALF_POWER_DB = 20 * math.log10(math.sqrt(2))
+"""The −3 dB corner lies this many dB (3.0103) below the mid-band gain."""
+
+POINTS_PER_DECADE = 60
+MAX_POINTS = 900
+DEFAULT_RANGE_HZ = (10.0, 100e6)
+"""Sweep used when the analysis names no corner and no pole to centre on."""
+MIN_DECADES = 4.0
+"""A sweep narrower than this shows too little of the mid band around a single corner."""
+POLE_REACH_DECADES = 3.0
+"""Poles and zeros further than this beyond the corners do not stretch the sweep: a stray
+parasitic pole at terahertz would otherwise squeeze the corners into a corner of the plot."""
+
+BAND_TITLES = {"high": "High band", "low": "Low band", "neutral": "No effect on the gain"}
+
+
+@dataclass(frozen=True)
+class Curve:
+    """One response curve.
+
+    Attributes
+    ----------
+    freq_hz : numpy.ndarray
+        Frequencies, Hz, ascending.
+    magnitude_db : numpy.ndarray
+        20·log10|H|, dB (of V/V, or of Ω for a current input).
+    phase_deg : numpy.ndarray
+        Phase, degrees, unwrapped.
+    """
+
+    freq_hz: np.ndarray
+    magnitude_db: np.ndarray
+    phase_deg: np.ndarray
+
+
+@dataclass(frozen=True)
+class Marker:
+    """A corner marked on the Bode plot.
+
+    Attributes
+    ----------
+    corner : str
+        ``"high"`` (f_H) or ``"low"`` (f_L).
+    estimated : bool
+        True for the time-constant estimate, False for the exact corner.
+    freq_hz : float
+        Where the corner is, Hz.
+    level_db : float
+        The gain there, dB (the mid-band gain less 3.01 dB).
+    text : str
+        The label drawn beside it, e.g. ``"f_H ≈ 894 kHz"``.
+    """
+
+    corner: str
+    estimated: bool
+    freq_hz: float
+    level_db: float
+    text: str
+
+
+@dataclass(frozen=True)
+class BodeData:
+    """Everything the Bode plot draws.
+
+    Attributes
+    ----------
+    exact : Curve
+        The exact response of the full network over the sweep.
+    high_estimate : Curve or None
+        ``A_m / (1 + jω b1)`` over the upper part of the sweep; None without high-band elements.
+    low_estimate : Curve or None
+        ``A_m · s / (s + ω_L)`` over the lower part of the sweep; None without low-band elements.
+    midband_db : float
+        20·log10|A_m|, dB.
+    markers : tuple of Marker
+        f_H and f_L, estimated and exact, where they exist.
+    gain_unit : str
+        ``"V/V"`` or ``"Ω"`` (what the dB are of).
+    """
+
+    exact: Curve
+    high_estimate: Curve | None
+    low_estimate: Curve | None
+    midband_db: float
+    markers: tuple
+    gain_unit: str
+
+    @property
+    def freq_range(self) -> tuple:
+        """(lowest, highest) swept frequency, Hz."""
+        return float(self.exact.freq_hz[0]), float(self.exact.freq_hz[-1])
+
+
+@dataclass(frozen=True)
+class BarRow:
+    """One element's bar.
+
+    Attributes
+    ----------
+    name : str
+        Element name (``Cin``, ``Q1.cmu``).
+    part : str
+        The part on the sheet the element belongs to (``Q1`` for ``Q1.cmu``).
+    band : str
+        ``"high"``, ``"low"`` or ``"neutral"``.
+    value : float
+        High band: the time constant τ, s. Low band: 1/(2πτ), Hz. Neutral: 0.
+    value_text : str
+        ``value`` formatted with its unit.
+    share : float
+        Share of b1 (high band) or of ω_L (low band), 0–1; 0 for neutral elements.
+    share_text : str
+        E.g. ``"84 % of b1"``.
+    pinned : bool
+        The user pinned this element's band.
+    dominant : bool
+        The largest share of its band.
+    tooltip : str
+        Band, R, τ and why the element is in its band, in plain words.
+    """
+
+    name: str
+    part: str
+    band: str
+    value: float
+    value_text: str
+    share: float
+    share_text: str
+    pinned: bool
+    dominant: bool
+    tooltip: str
+
+
+@dataclass(frozen=True)
+class BandGroup:
+    """The bars of one band, largest share first, with the sum they add up to.
+
+    Attributes
+    ----------
+    band : str
+        ``"high"``, ``"low"`` or ``"neutral"``.
+    title : str
+        Heading, e.g. ``"High band"``.
+    total_text : str
+        The sum and the estimate it gives, e.g. ``"b1 = Σ τ = 178 ns → f_H ≈ 894 kHz"``.
+    rows : tuple of BarRow
+    """
+
+    band: str
+    title: str
+    total_text: str
+    rows: tuple
+
+
+@dataclass(frozen=True)
+class BarData:
+    """The time-constant bars: the high band, then the low band, then the neutral elements."""
+
+    groups: tuple
+
+    def row(self, name: str) -> BarRow | None:
+        """The bar of element ``name``, or None if it has none."""
+        return next((r for g in self.groups for r in g.rows if r.name == name), None)
+
+
+@dataclass(frozen=True)
+class VerdictData:
+    """The verdict strip's lines.
+
+    Attributes
+    ----------
+    gain_text : str
+        Mid-band gain, e.g. ``"A_m = −42.3 V/V (32.5 dB)"``.
+    high_text : str
+        f_H estimated against exact with the error, or why there is none.
+    low_text : str
+        f_L likewise.
+    dominant_text : str
+        Which element limits the bandwidth and by how much.
+    warnings : tuple of str
+        The analysis's warnings in plain words.
+    """
+
+    gain_text: str
+    high_text: str
+    low_text: str
+    dominant_text: str
+    warnings: tuple
+
+
+def part_of(element: str) -> str:
+    """The sheet part an element belongs to: ``Q1`` for the block-internal ``Q1.cmu``."""
+    return element.split(".", 1)[0]
+
+
+def _elements(analysis) -> dict:
+    return {**analysis.capacitors, **analysis.inductors}
+
+
+def _positive(x) -> float | None:
+    return float(x) if x is not None and math.isfinite(x) and x > 0 else None
+
+
+def sweep_range(analysis) -> tuple:
+    """The frequencies (Hz) the plot spans: a decade beyond the outermost corners and poles.
+
+    Parameters
+    ----------
+    analysis : engine.analysis.Analysis
+
+    Returns
+    -------
+    (float, float)
+        Lowest and highest frequency, Hz, at least :data:`MIN_DECADES` apart.
+    """
+    corners = [f for f in map(_positive, (analysis.f_low_estimate, analysis.f_low_exact,
+                                          analysis.f_high_estimate, analysis.f_high_exact)) if f]
+    roots = [abs(complex(p)) / (2 * math.pi) for p in (*analysis.poles, *analysis.zeros)]
+    roots = [f for f in roots if f > 0 and math.isfinite(f)]
+    if corners:
+        lo_c, hi_c = min(corners), max(corners)
+        reach = 10 ** POLE_REACH_DECADES
+        roots = [f for f in roots if lo_c / reach <= f <= hi_c * reach]
+    found = corners + roots
+    if not found:
+        return DEFAULT_RANGE_HZ
+    lo, hi = min(found) / 10, max(found) * 10
+    short = MIN_DECADES - math.log10(hi / lo)
+    if short > 0:
+        if _positive(analysis.f_low_estimate) or _positive(analysis.f_low_exact):
+            lo, hi = lo / 10 ** (short / 2), hi * 10 ** (short / 2)
+        else:
+            # DC-coupled: the missing decades go below, where the flat mid band is.
+            lo /= 10 ** short
+    return lo, hi
+
+
+def sweep_frequencies(analysis) -> np.ndarray:
+    """Log-spaced sweep frequencies (Hz) over :func:`sweep_range`."""
+    lo, hi = sweep_range(analysis)
+    decades = math.log10(hi / lo)
+    n = int(min(MAX_POINTS, max(200, round(decades * POINTS_PER_DECADE))))
+    return np.logspace(math.log10(lo), math.log10(hi), n)
+
+
+def _db(h) -> np.ndarray:
+    with np.errstate(divide="ignore"):
+        return 20 * np.log10(np.abs(h))
+
+
+def _curve(f, h, reference_deg: float, anchor_hz: float) -> Curve:
+    """A curve whose unwrapped phase is shifted by whole turns to read near ``reference_deg``
+    at the frequency nearest ``anchor_hz`` (the mid band), so every curve agrees there."""
+    phase = np.degrees(np.unwrap(np.angle(h)))
+    at = int(np.argmin(np.abs(np.log(f / anchor_hz))))
+    turns = np.round((reference_deg - phase[at]) / 360.0)
+    return Curve(f, _db(h), phase + 360.0 * turns)
+
+
+def midband_frequency(analysis) -> float:
+    """A frequency (Hz) inside the mid band: between the corners, or well clear of the only one."""
+    f_lo = _positive(analysis.f_low_exact) or _positive(analysis.f_low_estimate)
+    f_hi = _positive(analysis.f_high_exact) or _positive(analysis.f_high_estimate)
+    if f_lo and f_hi:
+        return math.sqrt(f_lo * f_hi)
+    if f_hi:
+        return f_hi / 100
+    if f_lo:
+        return f_lo * 100
+    return math.sqrt(DEFAULT_RANGE_HZ[0] * DEFAULT_RANGE_HZ[1])
+
+
+def _midband_phase(gain: float) -> float:
+    return 180.0 if gain < 0 else 0.0
+
+
+def high_estimate_response(midband_gain: float, b1: float, freq_hz) -> np.ndarray:
+    """``A_m / (1 + jω b1)``: the first-order response the open-circuit estimate stands for.
+
+    Parameters
+    ----------
+    midband_gain : float
+        A_m, signed (V/V or Ω).
+    b1 : float
+        Sum of the open-circuit time constants, s.
+    freq_hz : array_like
+        Frequencies, Hz.
+    """
+    w = 2 * np.pi * np.asarray(freq_hz, dtype=float)
+    return midband_gain / (1 + 1j * w * b1)
+
+
+def low_estimate_response(midband_gain: float, omega_low: float, freq_hz) -> np.ndarray:
+    """``A_m · s / (s + ω_L)``: the first-order response the short-circuit estimate stands for.
+
+    Parameters
+    ----------
+    midband_gain : float
+        A_m, signed (V/V or Ω).
+    omega_low : float
+        Sum of the short-circuit reciprocal time constants ω_L, rad/s.
+    freq_hz : array_like
+        Frequencies, Hz.
+    """
+    s = 2j * np.pi * np.asarray(freq_hz, dtype=float)
+    return midband_gain * s / (s + omega_low)
+
+
+def _marker_text(corner: str, estimated: bool, f: float) -> str:
+    sym = "f_H" if corner == "high" else "f_L"
+    return f"{sym} {'≈' if estimated else '='} {format_value(f, 'Hz')}"
+
+
+def bode_data(analysis, gain_unit: str = "V/V") -> BodeData:
+    """The Bode plot's curves and markers for ``analysis``.
+
+    Parameters
+    ----------
+    analysis : engine.analysis.Analysis
+    gain_unit : str, optional
+        What the gain is in: ``"V/V"`` for a voltage input, ``"Ω"`` for a current input.
+
+    Returns
+    -------
+    BodeData
+    """
+    f = sweep_frequencies(analysis)
+    am = float(analysis.midband_gain)
+    ref, anchor = _midband_phase(am), midband_frequency(analysis)
+    exact = _curve(f, np.asarray(analysis.response(f)), ref, anchor)
+    f_hi, f_lo = _positive(analysis.f_high_estimate), _positive(analysis.f_low_estimate)
+    # Each estimate describes one side of the mid band; they meet at its geometric centre.
+    split = math.sqrt(f_hi * f_lo) if f_hi and f_lo else None
+    high = low = None
+    if f_hi and _positive(analysis.b1):
+        fh = f if split is None else f[f >= split]
+        if fh.size:
+            high = _curve(fh, high_estimate_response(am, analysis.b1, fh), ref, anchor)
+    if f_lo:
+        fl = f if split is None else f[f <= split]
+        if fl.size:
+            low = _curve(fl, low_estimate_response(am, 2 * math.pi * f_lo, fl), ref, anchor)
+    mid_db = float(_db(am))
+    level = mid_db - HALF_POWER_DB
+    markers = []
+    for corner, est, value in (("high", True, analysis.f_high_estimate),
+                               ("high", False, analysis.f_high_exact),
+                               ("low", True, analysis.f_low_estimate),
+                               ("low", False, analysis.f_low_exact)):
+        if _positive(value):
+            markers.append(Marker(corner, est, float(value), level, _marker_text(corner, est, value)))
+    return BodeData(exact, high, low, mid_db, tuple(markers), gain_unit)
+
+
+def _percent(share: float) -> str:
+    return f"{100 * share:.0f} %"
+
+
+def _band_sum_name(band: str) -> str:
+    return "b1" if band == "high" else "ω_L"
+
+
+def element_label(result) -> str:
+    """The label of an element's test picture, e.g. ``"R = 74.9 kΩ · τ = 150 ns · 84 % of b1"``.
+
+    Parameters
+    ----------
+    result : capacitor or inductor result of an Analysis
+    """
+    if result.band == "neutral":
+        return f"{result.name} has no effect on the gain: it sets no corner"
+    return (f"R = {format_value(result.resistance, 'Ω')} · τ = {format_value(result.time_constant, 's')}"
+            f" · {_percent(result.share)} of {_band_sum_name(result.band)}")
+
+
+_BAND_WORDS = {
+    "high": "high band: open in the mid band, it sets the upper corner",
+    "low": "low band: a short in the mid band, it sets the lower corner",
+    "neutral": "neutral: neither shorting nor opening it changes the gain",
+}
+
+
+def element_tooltip(result) -> str:
+    """Hover text for an element: band, R, τ and why it is in that band.
+
+    Parameters
+    ----------
+    result : capacitor or inductor result of an Analysis
+    """
+    lines = [f"{result.name}: {_BAND_WORDS[result.band]}" + (" (pinned)" if result.pinned else "")]
+    if result.band != "neutral":
+        lines.append(element_label(result))
+    lines.append(f"Why: {result.reason}")
+    return "\n".join(lines)
+
+
+def _group(band: str, results: list, analysis) -> BandGroup:
+    results = sorted(results, key=lambda r: (-r.share, r.name))
+    top = results[0].name if results and band != "neutral" and results[0].share > 0 else None
+    rows = []
+    for r in results:
+        if band == "high":
+            value, text = r.time_constant, f"τ = {format_value(r.time_constant, 's')}"
+        elif band == "low":
+            value = 1 / (2 * math.pi * r.time_constant)
+            text = f"1/2πτ = {format_value(value, 'Hz')}"
+        else:
+            value, text = 0.0, "—"
+        share_text = "" if band == "neutral" else f"{_percent(r.share)} of {_band_sum_name(band)}"
+        rows.append(BarRow(r.name, part_of(r.name), band, float(value), text,
+                           0.0 if band == "neutral" else float(r.share), share_text,
+                           bool(r.pinned), r.name == top, element_tooltip(r)))
+    if band == "high":
+        total = f"b1 = Σ τ = {format_value(analysis.b1, 's')}"
+        if _positive(analysis.f_high_estimate):
+            total += f" → f_H ≈ {format_value(analysis.f_high_estimate, 'Hz')}"
+    elif band == "low":
+        total = "ω_L = Σ 1/τ"
+        if _positive(analysis.f_low_estimate):
+            total += f" → f_L ≈ {format_value(analysis.f_low_estimate, 'Hz')}"
+    else:
+        total = "shorting or opening these leaves the gain as it is"
+    return BandGroup(band, BAND_TITLES[band], total, tuple(rows))
+
+
+def bar_data(analysis) -> BarData:
+    """The time-constant bars of ``analysis``: one group per band that has elements."""
+    by_band: dict = {"high": [], "low": [], "neutral": []}
+    for r in _elements(analysis).values():
+        by_band[r.band].append(r)
+    return BarData(tuple(_group(b, rs, analysis) for b, rs in by_band.items() if rs))
+
+
+def _error_text(est, exact) -> str:
+    return f"{100 * (est - exact) / exact:+.1f} %"
+
+
+def _corner_text(sym: str, est, exact) -> str:
+    est, exact = _positive(est), _positive(exact)
+    if est and exact:
+        return (f"{sym} ≈ {format_value(est, 'Hz')} estimated, {format_value(exact, 'Hz')} exact "
+                f"({_error_text(est, exact)})")
+    if est:
+        return f"{sym} ≈ {format_value(est, 'Hz')} estimated; the exact gain never falls 3 dB"
+    if exact:
+        return f"{sym} = {format_value(exact, 'Hz')} exact; no element of this band to estimate it"
+    return f"{sym}: none (no element sets this corner)"
+
+
+def _gain_text(gain: float, unit: str) -> str:
+    if gain == 0:
+        return f"A_m = 0 {unit}: no signal reaches the output in the mid band"
+    return f"A_m = {format_value(gain, unit)} ({float(_db(gain)):.1f} dB)"
+
+
+def verdict_data(analysis, gain_unit: str = "V/V") -> VerdictData:
+    """The verdict strip's lines for ``analysis``.
+
+    Parameters
+    ----------
+    analysis : engine.analysis.Analysis
+    gain_unit : str, optional
+        ``"V/V"`` or ``"Ω"``.
+    """
+    bars = bar_data(analysis)
+    limits = []
+    for g in bars.groups:
+        top = next((r for r in g.rows if r.dominant), None)
+        if top is not None:
+            corner = "f_H" if g.band == "high" else "f_L"
+            limits.append(f"{top.name} sets {corner} ({top.share_text})")
+    dominant = "; ".join(limits) if limits else "no element sets a corner"
+    return VerdictData(_gain_text(float(analysis.midband_gain), gain_unit),
+                       _corner_text("f_H", analysis.f_high_estimate, analysis.f_high_exact),
+                       _corner_text("f_L", analysis.f_low_estimate, analysis.f_low_exact),
+                       dominant, tuple(analysis.warnings))

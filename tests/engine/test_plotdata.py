@@ -1,0 +1,157 @@
+"""What the analysis views draw: estimated curves against their closed forms, sweep, bars, verdict."""
+
+from __future__ import annotations
+
+import math
+from types import SimpleNamespace
+
+import numpy as np
+import pytest
+
+from engine import plotdata
+from engine.plotdata import HALF_POWER_DB, bar_data, bode_data, sweep_range, verdict_data
+
+
+def _element(name, band, r, c, share, pinned=False):
+    return SimpleNamespace(name=name, band=band, resistance=r, capacitance=c, time_constant=r * c,
+                           share=share, pinned=pinned, reason=f"reason for {name}")
+
+
+def _two_corner(am=-40.0, f_l=20.0, f_h=1e6, **extra):
+    """A stand-in analysis of A_m·s/(s+ω_L)/(1+s·b1): its estimates are exact by construction."""
+    b1, wl = 1 / (2 * math.pi * f_h), 2 * math.pi * f_l
+
+    def response(f):
+        s = 2j * np.pi * np.asarray(f, dtype=float)
+        return am * s / (s + wl) / (1 + s * b1)
+
+    caps = {"Cmu": _element("Cmu", "high", 74.9e3, 2e-12, 0.84),
+            "Cl": _element("Cl", "high", 2e3, b1 * 0.16 / 2e3, 0.16),
+            "Cin": _element("Cin", "low", 1e3, 1e-5, 0.3),
+            "Ce": _element("Ce", "low", 30.0, 1e-4, 0.7, pinned=True),
+            "Cn": _element("Cn", "neutral", 1e3, 1e-9, 0.0)}
+    fields = dict(midband_gain=am, capacitors=caps, inductors={}, b1=b1, b2=0.0,
+                  f_high_estimate=f_h, f_high_estimate_2nd=f_h, f_low_estimate=f_l,
+                  f_high_exact=f_h * 0.98, f_low_exact=f_l * 1.02, warnings=["a warning"],
+                  response=response, poles=np.array([-wl, -1 / b1]), zeros=np.array([0.0]))
+    fields.update(extra)
+    return SimpleNamespace(**fields)
+
+
+def _at(curve, f):
+    return np.interp(math.log10(f), np.log10(curve.freq_hz), curve.magnitude_db)
+
+
+def test_high_estimate_is_half_power_at_one_over_two_pi_b1():
+    # |A_m/(1 + jωb1)| = |A_m|/√2 at ω = 1/b1 (common practice, no source).
+    am, b1 = -37.5, 1.7e-7
+    h = plotdata.high_estimate_response(am, b1, [1 / (2 * math.pi * b1)])
+    assert abs(h[0]) == pytest.approx(abs(am) / math.sqrt(2), rel=1e-12)
+    assert np.degrees(np.angle(h[0] / am)) == pytest.approx(-45.0, abs=1e-9)
+
+
+def test_low_estimate_is_half_power_at_omega_l():
+    # |A_m·s/(s + ω_L)| = |A_m|/√2 at ω = ω_L, phase lead 45° (common practice, no source).
+    am, wl = 12.0, 2 * math.pi * 35.0
+    h = plotdata.low_estimate_response(am, wl, [35.0])
+    assert abs(h[0]) == pytest.approx(am / math.sqrt(2), rel=1e-12)
+    assert np.degrees(np.angle(h[0] / am)) == pytest.approx(45.0, abs=1e-9)
+
+
+def test_bode_curves_match_the_closed_forms_and_meet_in_the_mid_band():
+    a = _two_corner()
+    d = bode_data(a)
+    mid = 20 * math.log10(40.0)
+    assert d.midband_db == pytest.approx(mid)
+    # Well inside the mid band every curve reads A_m (20·log10 40 = 32.04 dB).
+    assert _at(d.exact, 4.5e3) == pytest.approx(mid, abs=0.01)
+    assert _at(d.high_estimate, 1e6) == pytest.approx(mid - HALF_POWER_DB, abs=0.02)
+    assert _at(d.low_estimate, 20.0) == pytest.approx(mid - HALF_POWER_DB, abs=0.02)
+    split = math.sqrt(20.0 * 1e6)
+    assert d.high_estimate.freq_hz.min() >= split and d.low_estimate.freq_hz.max() <= split
+    # An inverting stage reads 180° in the mid band; the high estimate lags by atan(f/f_H) and
+    # the low estimate leads by atan(f_L/f) (first-order phase, common practice, no source).
+    mid_phase = np.interp(math.log10(4.5e3), np.log10(d.exact.freq_hz), d.exact.phase_deg)
+    assert mid_phase == pytest.approx(180.0, abs=0.5)
+    fh, fl = d.high_estimate.freq_hz, d.low_estimate.freq_hz
+    assert d.high_estimate.phase_deg == pytest.approx(180 - np.degrees(np.arctan(fh / 1e6)))
+    assert d.low_estimate.phase_deg == pytest.approx(180 + np.degrees(np.arctan(20.0 / fl)))
+
+
+def test_markers_sit_at_the_corners_three_db_down():
+    d = bode_data(_two_corner())
+    got = {(m.corner, m.estimated): m for m in d.markers}
+    assert set(got) == {("high", True), ("high", False), ("low", True), ("low", False)}
+    assert got[("high", True)].freq_hz == 1e6
+    assert got[("low", False)].freq_hz == pytest.approx(20.4)
+    assert all(m.level_db == pytest.approx(d.midband_db - 3.0103, abs=1e-4) for m in d.markers)
+    assert got[("high", True)].text == "f_H ≈ 1 MHz"
+    assert got[("high", False)].text == "f_H = 980 kHz"
+
+
+def test_sweep_spans_a_decade_beyond_the_outermost_corner_or_pole():
+    lo, hi = sweep_range(_two_corner())
+    assert lo == pytest.approx(2.0) and hi == pytest.approx(1e7)
+    # A far parasitic pole does not squeeze the corners into a corner of the plot.
+    far = _two_corner(poles=np.array([-2 * math.pi * 20.0, -2 * math.pi * 1e6, -2 * math.pi * 1e15]))
+    assert sweep_range(far)[1] == pytest.approx(1e7)
+
+
+def test_dc_coupled_sweep_keeps_decades_of_mid_band_below_the_corner():
+    a = _two_corner(f_low_estimate=None, f_low_exact=None, poles=np.array([-2 * math.pi * 1e6]))
+    lo, hi = sweep_range(a)
+    assert hi == pytest.approx(1e7) and math.log10(hi / lo) == pytest.approx(plotdata.MIN_DECADES)
+    d = bode_data(a)
+    assert d.low_estimate is None
+    assert {m.corner for m in d.markers} == {"high"}
+
+
+def test_no_corner_at_all_uses_the_default_range():
+    a = _two_corner(f_low_estimate=None, f_low_exact=None, f_high_estimate=None, f_high_exact=None,
+                    poles=np.array([]), zeros=np.array([]))
+    assert sweep_range(a) == plotdata.DEFAULT_RANGE_HZ
+
+
+def test_bars_sorted_by_share_with_dominant_and_pinned_marked():
+    bars = bar_data(_two_corner())
+    assert [g.band for g in bars.groups] == ["high", "low", "neutral"]
+    high, low, neutral = bars.groups
+    assert [r.name for r in high.rows] == ["Cmu", "Cl"]
+    assert [r.name for r in low.rows] == ["Ce", "Cin"]
+    assert high.rows[0].dominant and not high.rows[1].dominant
+    assert low.rows[0].dominant and low.rows[0].pinned
+    assert high.rows[0].value == pytest.approx(74.9e3 * 2e-12)
+    assert high.rows[0].value_text == "τ = 150 ns" and high.rows[0].share_text == "84 % of b1"
+    # A low-band bar reads 1/τ as a frequency: 1/(2π·30 Ω·100 µF) = 53.1 Hz.
+    assert low.rows[0].value == pytest.approx(1 / (2 * math.pi * 3e-3))
+    assert low.rows[0].value_text == "1/2πτ = 53.1 Hz" and low.rows[0].share_text == "70 % of ω_L"
+    assert neutral.rows[0].share == 0 and not neutral.rows[0].dominant
+    assert high.total_text == "b1 = Σ τ = 159 ns → f_H ≈ 1 MHz"
+    assert bars.row("Cin").band == "low" and bars.row("nothing") is None
+
+
+def test_test_picture_label_and_tooltip_carry_the_elements_own_numbers():
+    a = _two_corner()
+    assert plotdata.element_label(a.capacitors["Cmu"]) == "R = 74.9 kΩ · τ = 150 ns · 84 % of b1"
+    tip = plotdata.element_tooltip(a.capacitors["Ce"])
+    assert "low band" in tip and "(pinned)" in tip and "Why: reason for Ce" in tip
+    assert "R = 30 Ω" in tip
+
+
+def test_block_internal_elements_belong_to_their_block():
+    assert plotdata.part_of("Q1.cmu") == "Q1" and plotdata.part_of("Cin") == "Cin"
+
+
+def test_verdict_reads_gain_corners_errors_and_the_limiting_element():
+    v = verdict_data(_two_corner())
+    assert v.gain_text == "A_m = -40 V/V (32.0 dB)"
+    assert v.high_text == "f_H ≈ 1 MHz estimated, 980 kHz exact (+2.0 %)"
+    assert v.low_text == "f_L ≈ 20 Hz estimated, 20.4 Hz exact (-2.0 %)"
+    assert v.dominant_text == "Cmu sets f_H (84 % of b1); Ce sets f_L (70 % of ω_L)"
+    assert v.warnings == ("a warning",)
+
+
+def test_verdict_says_plainly_when_a_corner_is_missing():
+    v = verdict_data(_two_corner(f_low_estimate=None, f_low_exact=None, f_high_exact=None))
+    assert v.low_text == "f_L: none (no element sets this corner)"
+    assert "never falls 3 dB" in v.high_text
