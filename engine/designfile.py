@@ -72,8 +72,10 @@ def _text(value, where: str, *, allow_empty=True) -> str:
 def _int(value, where: str) -> int:
     if isinstance(value, bool) or not isinstance(value, (int, float)):
         raise _fail(where, f"expected a number, found {type(value).__name__}")
-    if not math.isfinite(value) or value != int(value) or abs(value) > MAX_COORD:
-        raise _fail(where, f"{value!r} is not a whole number of scene units within ±{MAX_COORD}")
+    # abs() first: a huge JSON integer (10**400) cannot be turned into a float.
+    if abs(value) > MAX_COORD or not math.isfinite(value) or value != int(value):
+        shown = repr(value) if len(repr(value)) <= 30 else repr(value)[:27] + "..."
+        raise _fail(where, f"{shown} is not a whole number of scene units within ±{MAX_COORD}")
     return int(value)
 
 
