@@ -1,0 +1,89 @@
+"""Editing a part's main value right on the sheet (double-click the part)."""
+
+from __future__ import annotations
+
+from PySide6.QtCore import QPoint, Qt
+from PySide6.QtWidgets import QLabel, QLineEdit
+
+from engine.parts import KINDS
+
+from .. import edits
+from ..commands import Editor
+from ..engine_link import check_field, is_numeric, kind_fields
+from .view import SchematicView
+
+
+def main_field(part):
+    """The field a double-click edits: the part's first numeric field, or None."""
+    return next((f for f in kind_fields(part) if is_numeric(f) and f.key != "mode"), None)
+
+
+class InplaceEditor(QLineEdit):
+    """A line edit over the sheet for one part's main value.
+
+    Enter accepts the text only if the engine reads it; otherwise the editor stays open,
+    marked, with the reason shown under it. Esc, or leaving it, gives up the edit.
+    """
+
+    def __init__(self, view: SchematicView, editor: Editor, name: str):
+        super().__init__(view.viewport())
+        self._view, self._editor, self.name = view, editor, name
+        part = editor.doc.parts[name]
+        self.field = main_field(part)
+        self.setText(part.params.get(self.field.key, ""))
+        self.selectAll()
+        self.reason = QLabel(view.viewport())
+        self.reason.setWordWrap(True)
+        self.reason.setVisible(False)
+        theme = view.scene().theme
+        self.reason.setStyleSheet(f"QLabel {{ background: {theme.paper.name()}; color: {theme.problem.name()};"
+                                  f" border: 1px solid {theme.problem.name()}; padding: 2px; }}")
+        item = view.scene().part_item(name)
+        corner = view.mapFromScene(item.sceneBoundingRect().topRight())
+        self.setFixedWidth(150)
+        self.move(QPoint(min(corner.x(), view.viewport().width() - 160), max(corner.y(), 0)))
+        self.setPlaceholderText(KINDS[part.kind].field(self.field.key).label)
+        self.setToolTip(f"{name} {self.field.label}: Enter to accept, Esc to leave it")
+        self.returnPressed.connect(self.accept_text)
+        self.show()
+        self.setFocus()
+
+    def accept_text(self) -> bool:
+        """Take the text if it reads; True when the editor closed."""
+        doc = self._editor.doc
+        if self.name not in doc.parts:
+            self.close_editor()
+            return True
+        part = doc.parts[self.name]
+        verdict = check_field(doc, part, self.field, self.text())
+        if not verdict.ok:
+            self.setStyleSheet(f"QLineEdit {{ border: 2px solid {self._view.scene().theme.problem.name()}; }}")
+            self.reason.setText(verdict.shown)
+            self.reason.setFixedWidth(260)
+            self.reason.adjustSize()
+            self.reason.move(self.x(), self.y() + self.height() + 2)
+            self.reason.setVisible(True)
+            return False
+        if self.text().strip() != part.params.get(self.field.key, ""):
+            self._editor.patch(edits.edit_field(doc, self.name, self.field.key, self.text().strip()),
+                               f"Set {self.name} {self.field.label}")
+        self.close_editor()
+        return True
+
+    def close_editor(self) -> None:
+        """Remove the editor from the sheet and give the keyboard back to the canvas."""
+        self.reason.deleteLater()
+        self.deleteLater()
+        self.hide()
+        self._view.setFocus()
+
+    def keyPressEvent(self, event):
+        if event.key() == Qt.Key.Key_Escape:
+            self.close_editor()
+            return
+        super().keyPressEvent(event)
+
+    def focusOutEvent(self, event):
+        super().focusOutEvent(event)
+        if self.isVisible():
+            self.close_editor()

@@ -1,0 +1,116 @@
+"""Undoable edits: every change the user makes to a design is one of these on the undo stack.
+
+Each command carries a :class:`app.edits.Patch` and applies it forwards or backwards, which
+restores values exactly. The :class:`Editor` is the one way edits reach the document: it
+pushes a command and, once a gesture is complete, tells the document its edit is finished.
+"""
+
+from __future__ import annotations
+
+from dataclasses import replace
+from itertools import count
+
+from PySide6.QtGui import QUndoCommand, QUndoStack
+
+from engine.document import Document
+
+from . import edits
+from .edits import Patch
+
+_MOVE_ID = 1
+_drag_serials = count(1)
+
+
+def new_drag() -> int:
+    """A serial number for one drag, so its moves merge into one undo step."""
+    return next(_drag_serials)
+
+
+class PatchCommand(QUndoCommand):
+    """An edit described by a patch; subclasses only name it (and may merge)."""
+
+    def __init__(self, doc: Document, patch: Patch, text: str):
+        super().__init__(text)
+        self.doc = doc
+        self.patch = patch
+
+    def redo(self):
+        edits.apply_patch(self.doc, self.patch, forward=True)
+
+    def undo(self):
+        edits.apply_patch(self.doc, self.patch, forward=False)
+
+
+class MoveCommand(PatchCommand):
+    """Moving parts and wires; the moves of one drag merge into a single step."""
+
+    def __init__(self, doc: Document, patch: Patch, drag: int):
+        super().__init__(doc, patch, "Move")
+        self.drag = drag
+
+    def id(self) -> int:
+        return _MOVE_ID
+
+    def mergeWith(self, other) -> bool:
+        if not isinstance(other, MoveCommand) or other.drag != self.drag:
+            return False
+        self.patch = self.patch.merged(other.patch)
+        self.setObsolete(self.patch.is_empty())
+        return True
+
+
+class RenameCommand(QUndoCommand):
+    """Renaming a part; fields that named it (a sensed source) follow the new name."""
+
+    def __init__(self, doc: Document, old: str, new: str):
+        super().__init__(f"Rename {old} to {new}")
+        self.doc, self.old, self.new = doc, old, new
+        self.refs = edits.references_to(doc, old, new)
+
+    def redo(self):
+        self.doc.replace_part(self.old, replace(self.doc.parts[self.old], name=self.new))
+        edits.apply_patch(self.doc, self.refs, forward=True)
+
+    def undo(self):
+        edits.apply_patch(self.doc, self.refs, forward=False)
+        self.doc.replace_part(self.new, replace(self.doc.parts[self.new], name=self.old))
+
+
+class Editor:
+    """Pushes commands onto the one undo stack and announces finished gestures.
+
+    Parameters
+    ----------
+    doc : Document
+        The design being edited.
+    stack : QUndoStack
+        The undo stack every edit goes on.
+    """
+
+    def __init__(self, doc: Document, stack: QUndoStack):
+        self.doc = doc
+        self.stack = stack
+
+    def push(self, command: QUndoCommand, *, finished: bool = True) -> None:
+        """Do ``command`` as an undoable step; ``finished=False`` while a drag is still going."""
+        if isinstance(command, PatchCommand) and command.patch.is_empty():
+            return
+        self.stack.push(command)
+        if finished:
+            self.doc.finish_edit()
+
+    def patch(self, patch: Patch, text: str) -> None:
+        """Do a complete gesture described by ``patch``."""
+        self.push(PatchCommand(self.doc, patch, text))
+
+    def finish(self) -> None:
+        """A gesture pushed in pieces (a drag) is over."""
+        self.doc.finish_edit()
+
+    def undo(self) -> None:
+        self.stack.undo()
+        self.doc.finish_edit()
+
+    def redo(self) -> None:
+        self.stack.redo()
+        self.doc.finish_edit()

@@ -1,0 +1,351 @@
+"""What each editing gesture does to a document, worked out as a :class:`Patch`.
+
+A patch lists every part, wire and setting it touches with its value before and after, so
+applying it one way or the other redoes or undoes the gesture exactly. These functions read
+the document and build patches; only :mod:`app.commands` applies them. No Qt here: the rules
+for where wires go when parts move can be tested on their own.
+"""
+
+from __future__ import annotations
+
+from collections import Counter
+from dataclasses import dataclass, field, replace
+
+from engine.document import Document, Part, Wire
+from engine.parts import GRID, KINDS, ROTATIONS
+
+Point = tuple[int, int]
+
+
+@dataclass
+class Patch:
+    """Before/after values of what a gesture touches (None = absent).
+
+    ``parts`` is keyed by part name, ``wires`` by wire id, ``meta`` by ``title``,
+    ``description`` or ``input_source``, ``bands`` by element name.
+    """
+
+    parts: dict = field(default_factory=dict)
+    wires: dict = field(default_factory=dict)
+    meta: dict = field(default_factory=dict)
+    bands: dict = field(default_factory=dict)
+
+    def is_empty(self) -> bool:
+        """Whether applying the patch would change nothing."""
+        return all(b == a for table in (self.parts, self.wires, self.meta, self.bands)
+                   for b, a in table.values())
+
+    def merged(self, later: "Patch") -> "Patch":
+        """This patch followed by ``later``: before from this one, after from the later one."""
+        out = Patch()
+        for name in ("parts", "wires", "meta", "bands"):
+            mine, theirs = getattr(self, name), getattr(later, name)
+            table = dict(mine)
+            for key, (before, after) in theirs.items():
+                table[key] = (mine[key][0] if key in mine else before, after)
+            setattr(out, name, table)
+        return out
+
+
+def apply_patch(doc: Document, patch: Patch, forward: bool = True) -> None:
+    """Bring every touched value to its after state (``forward``) or its before state."""
+    pick = 1 if forward else 0
+    parts = {k: v[pick] for k, v in patch.parts.items()}
+    wires = {k: v[pick] for k, v in patch.wires.items()}
+    # Removals first, so a name or id freed by this patch can be taken by it.
+    for name, value in parts.items():
+        if value is None and name in doc.parts:
+            doc.remove_part(name)
+    for wid, value in wires.items():
+        if value is None and wid in doc.wires:
+            doc.remove_wire(wid)
+    for name, value in parts.items():
+        if value is not None:
+            if name in doc.parts:
+                if doc.parts[name] != value:
+                    doc.replace_part(name, value)
+            else:
+                doc.add_part(value)
+    for wid, value in wires.items():
+        if value is not None:
+            if wid in doc.wires:
+                if doc.wires[wid] != value:
+                    doc.replace_wire(value)
+            else:
+                doc.add_wire(value)
+    meta = {k: v[pick] for k, v in patch.meta.items() if getattr(doc, k) != v[pick]}
+    if meta:
+        doc.set_meta(**meta)
+    for element, value in patch.bands.items():
+        if doc.band_pins.get(element) != value[pick]:
+            doc.set_band_pin(element, value[pick])
+
+
+# -- geometry helpers ------------------------------------------------------------
+def snap(v: float) -> int:
+    """The nearest grid multiple."""
+    return int(round(v / GRID)) * GRID
+
+
+def pin_points(doc: Document) -> Counter:
+    """How many pins sit at each sheet point."""
+    return Counter(pt for p in doc.parts.values() for pt in p.pins().values())
+
+
+def _on_segment(pt: Point, a: Point, b: Point) -> bool:
+    """Whether ``pt`` lies strictly inside the orthogonal segment a-b."""
+    (x, y), (ax, ay), (bx, by) = pt, a, b
+    if ax == bx == x:
+        return min(ay, by) < y < max(ay, by)
+    if ay == by == y:
+        return min(ax, bx) < x < max(ax, bx)
+    return False
+
+
+def junctions(doc: Document) -> list[Point]:
+    """Points where three or more connections meet (pins, wire ends, wires passing through)."""
+    degree = pin_points(doc)
+    wires = list(doc.wires.values())
+    for w in wires:
+        pts = w.points
+        degree[pts[0]] += 1
+        degree[pts[-1]] += 1
+        for pt in pts[1:-1]:
+            degree[pt] += 2
+    for w in wires:
+        for end in (w.points[0], w.points[-1]):
+            for other in wires:
+                if other is not w and any(_on_segment(end, a, b)
+                                          for a, b in zip(other.points, other.points[1:])):
+                    degree[end] += 2
+    return sorted(pt for pt, n in degree.items() if n >= 3)
+
+
+def simplify(points, keep=frozenset()) -> tuple:
+    """Drop repeated points and straight-through bends (unless something connects there)."""
+    pts = []
+    for pt in points:
+        if not pts or pts[-1] != pt:
+            pts.append(pt)
+    changed = True
+    while changed and len(pts) > 2:
+        changed = False
+        for i in range(1, len(pts) - 1):
+            (ax, ay), (bx, by), (cx, cy) = pts[i - 1], pts[i], pts[i + 1]
+            straight = (ax == bx == cx) or (ay == by == cy)
+            if straight and pts[i] not in keep:
+                del pts[i]
+                changed = True
+                break
+    if len(pts) == 1:
+        pts.append(pts[0])
+    return tuple(pts)
+
+
+def _moved_end(points: list, at_start: bool, new: Point) -> list:
+    """Move one end of a polyline to ``new``, adding a bend so every segment stays orthogonal.
+
+    The segment leaving the end keeps its direction (a pin's lead keeps leaving the same way);
+    the jog goes in at the far end of that segment.
+    """
+    pts = list(points) if at_start else list(reversed(points))
+    old, nxt = pts[0], pts[1]
+    pts[0] = new
+    if new[0] != nxt[0] and new[1] != nxt[1]:
+        vertical = old[0] == nxt[0]
+        bend = (new[0], nxt[1]) if vertical else (nxt[0], new[1])
+        pts.insert(1, bend)
+    return pts if at_start else list(reversed(pts))
+
+
+def _follow(doc: Document, moved: dict, patch: Patch, skip_wires=frozenset(), keep=frozenset()) -> None:
+    """Add to ``patch`` the wires whose ends sat on pins of parts that ``moved`` (name -> new Part)."""
+    where = {}
+    for name, new in moved.items():
+        old_pins, new_pins = doc.parts[name].pins(), new.pins()
+        for pin, pt in old_pins.items():
+            where[pt] = new_pins[pin]
+    for wid, w in doc.wires.items():
+        if wid in skip_wires:
+            continue
+        pts = list(w.points)
+        start, end = pts[0] in where, pts[-1] in where
+        if not (start or end):
+            continue
+        if start and end and len(pts) == 2 and pts[0] != pts[1]:
+            # Both ends ride along: re-route as one bend instead of two jogs.
+            a, b = where[pts[0]], where[pts[-1]]
+            vertical = pts[0][0] == pts[1][0]
+            pts = [a, (a[0], b[1]) if vertical else (b[0], a[1]), b]
+        else:
+            if start:
+                pts = _moved_end(pts, True, where[w.points[0]])
+            if end:
+                pts = _moved_end(pts, False, where[w.points[-1]])
+        patch.wires[wid] = (w, Wire(wid, simplify(pts, keep)))
+
+
+def _connection_points(doc: Document) -> frozenset:
+    """Points a bend must not be simplified away at: pins and every wire end."""
+    pts = set(pin_points(doc))
+    for w in doc.wires.values():
+        pts.update((w.points[0], w.points[-1]))
+    return frozenset(pts)
+
+
+# -- gestures --------------------------------------------------------------------
+def move(doc: Document, names, wire_ids, dx: int, dy: int) -> Patch:
+    """Move parts and wires by a grid step; wires attached to moved pins follow them."""
+    patch = Patch()
+    moved = {n: replace(doc.parts[n], x=doc.parts[n].x + dx, y=doc.parts[n].y + dy) for n in names}
+    for n, p in moved.items():
+        patch.parts[n] = (doc.parts[n], p)
+    for wid in wire_ids:
+        w = doc.wires[wid]
+        patch.wires[wid] = (w, Wire(wid, tuple((x + dx, y + dy) for x, y in w.points)))
+    _follow(doc, moved, patch, skip_wires=set(wire_ids), keep=_connection_points(doc))
+    return patch
+
+
+def rotate(doc: Document, names, quarter_turns: int = 1) -> Patch:
+    """Turn each part clockwise about its origin by quarter turns; attached wires follow."""
+    moved = {}
+    for n in names:
+        p = doc.parts[n]
+        moved[n] = replace(p, rotation=ROTATIONS[(ROTATIONS.index(p.rotation) + quarter_turns) % 4])
+    return _transformed(doc, moved)
+
+
+def mirror(doc: Document, names) -> Patch:
+    """Flip each part left-to-right on the sheet (about its origin); attached wires follow.
+
+    Flipping the part's own frame would flip up-down for a part turned a quarter, so the
+    rotation is adjusted to keep the flip left-to-right as the user sees it.
+    """
+    moved = {}
+    for n in names:
+        p = doc.parts[n]
+        rotation = p.rotation if p.rotation in (0, 180) else (p.rotation + 180) % 360
+        moved[n] = replace(p, mirror=not p.mirror, rotation=rotation)
+    return _transformed(doc, moved)
+
+
+def _transformed(doc: Document, moved: dict) -> Patch:
+    patch = Patch(parts={n: (doc.parts[n], p) for n, p in moved.items()})
+    _follow(doc, moved, patch, keep=_connection_points(doc))
+    return patch
+
+
+def add_part(doc: Document, part: Part) -> Patch:
+    """Place a part; the first signal source placed becomes the design's signal input."""
+    patch = Patch(parts={part.name: (None, part)})
+    if part.kind in ("vsource", "isource") and doc.input_source is None:
+        patch.meta["input_source"] = (None, part.name)
+    return patch
+
+
+def delete(doc: Document, names, wire_ids) -> Patch:
+    """Remove parts and wires, with the settings that named a removed part."""
+    names = set(names)
+    patch = Patch(parts={n: (doc.parts[n], None) for n in names},
+                  wires={w: (doc.wires[w], None) for w in wire_ids})
+    if doc.input_source in names:
+        patch.meta["input_source"] = (doc.input_source, None)
+    for element, band in doc.band_pins.items():
+        if element in names:
+            patch.bands[element] = (band, None)
+    return patch
+
+
+def add_wire(doc: Document, points) -> Patch:
+    """Draw a wire; a wire it ends on mid-segment gets a bend there so the two visibly join."""
+    wid = doc.new_wire_id()
+    pts = simplify(points, _connection_points(doc))
+    patch = Patch(wires={wid: (None, Wire(wid, pts))})
+    for end in {pts[0], pts[-1]}:
+        for other in doc.wires.values():
+            o = patch.wires.get(other.id, (None, other))[1]
+            for i, (a, b) in enumerate(zip(o.points, o.points[1:])):
+                if _on_segment(end, a, b):
+                    split = o.points[: i + 1] + (end,) + o.points[i + 1:]
+                    patch.wires[other.id] = (other, Wire(other.id, split))
+                    break
+    return patch
+
+
+def edit_field(doc: Document, name: str, key: str, text: str) -> Patch:
+    """Set one field's text (as typed; values are parsed when analysed)."""
+    p = doc.parts[name]
+    return Patch(parts={name: (p, p.with_params(**{key: text}))})
+
+
+def set_input(doc: Document, name: str | None) -> Patch:
+    """Choose the source that carries the signal (or none)."""
+    return Patch(meta={"input_source": (doc.input_source, name)})
+
+
+def set_meta(doc: Document, key: str, value: str) -> Patch:
+    """Change the design's title or description."""
+    return Patch(meta={key: (getattr(doc, key), value)})
+
+
+def pin_band(doc: Document, element: str, band: str | None) -> Patch:
+    """Pin an element to the low or high band, or let the engine decide (None)."""
+    return Patch(bands={element: (doc.band_pins.get(element), band)})
+
+
+def references_to(doc: Document, old: str, new: str) -> Patch:
+    """The edits that keep fields naming part ``old`` pointing at it once it is called ``new``."""
+    patch = Patch()
+    for p in doc.parts.values():
+        for f in KINDS[p.kind].fields:
+            if f.unit == "name" and p.params.get(f.key) == old:
+                patch.parts[p.name] = (p, p.with_params(**{f.key: new}))
+    return patch
+
+
+def fresh_names(doc: Document, parts) -> dict:
+    """Names for ``parts`` (old name -> new name) that clash with nothing on the sheet."""
+    taken = {n.lower() for n in doc.parts}
+    out = {}
+    for p in parts:
+        name = p.name
+        if name.lower() in taken:
+            prefix, n = KINDS[p.kind].prefix, 1
+            while f"{prefix}{n}".lower() in taken:
+                n += 1
+            name = f"{prefix}{n}"
+        taken.add(name.lower())
+        out[p.name] = name
+    return out
+
+
+def paste(doc: Document, fragment: Document, dx: int, dy: int) -> Patch:
+    """Add a copied fragment's parts and wires, offset and renamed where names clash.
+
+    A copied field naming a copied part follows that part's new name.
+    """
+    names = fresh_names(doc, fragment.parts.values())
+    patch = Patch()
+    for p in fragment.parts.values():
+        params = dict(p.params)
+        for f in KINDS[p.kind].fields:
+            if f.unit == "name" and params.get(f.key) in names:
+                params[f.key] = names[params[f.key]]
+        new = replace(p, name=names[p.name], x=p.x + dx, y=p.y + dy, params=params)
+        patch.parts[new.name] = (None, new)
+    wid = doc.new_wire_id()
+    for w in fragment.wires.values():
+        patch.wires[wid] = (None, Wire(wid, tuple((x + dx, y + dy) for x, y in w.points)))
+        wid += 1
+    return patch
+
+
+def fragment_of(doc: Document, names, wire_ids) -> Document:
+    """A document holding copies of some parts and wires (what Copy puts on the clipboard)."""
+    frag = Document("Copied parts")
+    for n in names:
+        frag.add_part(doc.parts[n])
+    for wid in wire_ids:
+        frag.add_wire(Wire(frag.new_wire_id(), doc.wires[wid].points))
+    return frag

@@ -1,0 +1,90 @@
+"""Starting the window: ``run_gui`` is what the ``bandsketch`` command calls."""
+
+from __future__ import annotations
+
+import os
+import sys
+
+SETTLE_MS = 300
+"""How long a screenshot waits for layout and first paints before grabbing."""
+DEFAULT_SIZE = (1400, 900)
+
+
+def _application():
+    from PySide6.QtWidgets import QApplication
+
+    app = QApplication.instance()
+    if app is None:
+        app = QApplication(sys.argv[:1])
+    app.setOrganizationName("Bandsketch")
+    app.setApplicationName("Bandsketch")
+    return app
+
+
+def run_gui(design_path: str | None = None, screenshot: str | None = None,
+            size: tuple[int, int] | None = None, select: str | None = None) -> int:
+    """Open the main window, optionally on a design; with ``screenshot``, save a picture and exit.
+
+    Parameters
+    ----------
+    design_path : str, optional
+        Design file to open.
+    screenshot : str, optional
+        PNG file: the window opens offscreen, settles, is grabbed whole, and the program ends.
+    size : (int, int), optional
+        Window size in pixels.
+    select : str, optional
+        Reserved for showing one element's detail; not used yet.
+
+    Returns
+    -------
+    int
+        Exit status: 0 on success, 2 if the design (for a screenshot) cannot be read, 1 if the
+        picture cannot be written.
+    """
+    if screenshot:
+        os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
+    app = _application()
+
+    from PySide6.QtCore import QEventLoop, QTimer
+
+    from engine.designfile import load_design
+    from engine.errors import DesignFileError
+
+    from .main_window import MainWindow
+
+    if screenshot:
+        doc = None
+        if design_path:
+            try:
+                doc = load_design(design_path)
+            except DesignFileError as exc:
+                print(f"bandsketch: {exc}", file=sys.stderr)
+                return 2
+        window = MainWindow(keep_recovery=False)
+        window.resize(*(size or DEFAULT_SIZE))
+        window.show()
+        if doc is not None:
+            window.set_document(doc, design_path)
+        loop = QEventLoop()
+        QTimer.singleShot(SETTLE_MS // 2, window.view.zoom_to_fit)
+        QTimer.singleShot(SETTLE_MS, loop.quit)
+        loop.exec()
+        ok = window.grab().save(screenshot)
+        window.close()
+        if not ok:
+            print(f"bandsketch: could not write {screenshot}", file=sys.stderr)
+        return 0 if ok else 1
+
+    window = MainWindow()
+    window.resize(*(size or DEFAULT_SIZE))
+    window.show()
+
+    def start():
+        # Work recovered from a crash comes first; the design named on the command line
+        # then opens only if nothing was restored.
+        if not window.offer_recovery() and design_path:
+            window.open_design(design_path)
+
+    QTimer.singleShot(0, start)
+    return app.exec()

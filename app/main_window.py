@@ -1,0 +1,465 @@
+"""The main window: sheet in the middle, Parts and Properties beside it, analysis below."""
+
+from __future__ import annotations
+
+import json
+from pathlib import Path
+
+from PySide6.QtCore import QEvent, QMimeData, Qt
+from PySide6.QtGui import QAction, QGuiApplication, QKeySequence, QUndoStack
+from PySide6.QtWidgets import (QDockWidget, QLabel, QMainWindow, QSplitter, QVBoxLayout,
+                               QWidget)
+
+from engine.designfile import document_from_dict, document_to_dict, load_design, save_design
+from engine.document import Document
+from engine.errors import DesignFileError
+from engine.parts import GRID
+
+from . import dialogs, edits, preferences
+from .canvas.controller import CanvasController, Mode
+from .canvas.inplace import InplaceEditor, main_field
+from .canvas.scene import SchematicScene
+from .canvas.view import SchematicView
+from .commands import Editor
+from .help import HelpPanel
+from .palette import GROUPS, PartsPalette
+from .properties import PropertiesPanel
+from .recovery import RecoveryKeeper
+from .theme import system_theme
+
+APP_NAME = "Bandsketch"
+FRAGMENT_MIME = "application/x-bandsketch-fragment"
+PASTE_STEP = 2 * GRID
+ANALYSIS_PLACEHOLDER = "Analysis appears here once the circuit is complete"
+
+
+class MainWindow(QMainWindow):
+    """One design in one window.
+
+    Parameters
+    ----------
+    recovery_folder : Path or None
+        Where the recovery file is kept (the user's data folder if None).
+    keep_recovery : bool
+        Whether to write a recovery file at all (off for screenshots).
+    """
+
+    def __init__(self, recovery_folder=None, keep_recovery: bool = True):
+        super().__init__()
+        self.doc = Document()
+        self.stack = QUndoStack(self)
+        self.editor = Editor(self.doc, self.stack)
+        self.path: str | None = None
+        self._restored_unsaved = False
+        self._paste_count = 0
+        self.theme = system_theme()
+        style = preferences.resistor_style()
+
+        self.scene = SchematicScene(self.doc, self.theme, style)
+        self.controller = CanvasController(self.scene, self.editor)
+        self.view = SchematicView(self.scene, self.controller)
+        self.analysis_area = QWidget()
+        self.analysis_area.setObjectName("analysis_area")
+        analysis_layout = QVBoxLayout(self.analysis_area)
+        self.analysis_placeholder = QLabel(ANALYSIS_PLACEHOLDER)
+        self.analysis_placeholder.setAlignment(Qt.AlignmentFlag.AlignCenter)
+        self.analysis_placeholder.setEnabled(False)
+        analysis_layout.addWidget(self.analysis_placeholder)
+        self.splitter = QSplitter(Qt.Orientation.Vertical)
+        self.splitter.addWidget(self.view)
+        self.splitter.addWidget(self.analysis_area)
+        self.splitter.setStretchFactor(0, 3)
+        self.splitter.setStretchFactor(1, 1)
+        self.splitter.setSizes([640, 200])
+        self.setCentralWidget(self.splitter)
+
+        self.palette_panel = PartsPalette(self.theme, style)
+        self.palette_panel.chosen.connect(self.controller.start_place)
+        self.properties = PropertiesPanel(self.doc, self.editor, self.theme)
+        self.parts_dock = self._dock("Parts", self.palette_panel, Qt.DockWidgetArea.LeftDockWidgetArea)
+        self.properties_dock = self._dock("Properties", self.properties, Qt.DockWidgetArea.RightDockWidgetArea)
+
+        self._make_actions()
+        self.help_panel = HelpPanel(self.help_sections())
+        self.help_dock = self._dock("Help", self.help_panel, Qt.DockWidgetArea.RightDockWidgetArea)
+        self.tabifyDockWidget(self.properties_dock, self.help_dock)
+        self.properties_dock.raise_()
+        self.help_dock.hide()
+        self._make_menus()
+        self._make_status()
+
+        self.scene.selectionChanged.connect(self._selection_changed)
+        self.controller.mode_changed.connect(self._mode_changed)
+        self.controller.message.connect(lambda text: self.statusBar().showMessage(text, 6000))
+        self.controller.value_edit_requested.connect(self.edit_value_in_place)
+        self.stack.cleanChanged.connect(self._update_title)
+        self.stack.indexChanged.connect(self._update_title)
+        self.doc.edited.connect(self._update_problem_count)
+        self.keeper = RecoveryKeeper(self.doc, self.is_dirty, lambda: self.path, recovery_folder) \
+            if keep_recovery else None
+        self._update_title()
+        self._update_problem_count()
+        self._mode_changed(self.controller.mode)
+        self.inplace: InplaceEditor | None = None
+
+    # -- building -------------------------------------------------------------------------
+    def _dock(self, title: str, widget: QWidget, area) -> QDockWidget:
+        dock = QDockWidget(title, self)
+        dock.setObjectName(f"{title.lower()}_dock")
+        dock.setWidget(widget)
+        dock.setFeatures(QDockWidget.DockWidgetFeature.DockWidgetMovable
+                         | QDockWidget.DockWidgetFeature.DockWidgetClosable)
+        self.addDockWidget(area, dock)
+        return dock
+
+    def _action(self, text: str, slot, keys=(), tip: str = "") -> QAction:
+        action = QAction(text, self)
+        shortcuts = []
+        for key in keys:
+            shortcuts += QKeySequence.keyBindings(key) if isinstance(key, QKeySequence.StandardKey) \
+                else [QKeySequence(key)]
+        action.setShortcuts(shortcuts)
+        action.setStatusTip(tip or text.replace("&", ""))
+        action.triggered.connect(lambda checked=False: slot())
+        self.addAction(action)
+        return action
+
+    def _make_actions(self) -> None:
+        K = QKeySequence.StandardKey
+        a = self._action
+        self.act_new = a("&New", self.new_design, [K.New], "Start an empty design")
+        self.act_open = a("&Open…", self.open_design, [K.Open], "Open a design file")
+        self.act_save = a("&Save", self.save, [K.Save], "Save the design")
+        self.act_save_as = a("Save &as…", self.save_as, [K.SaveAs], "Save the design under a new name")
+        self.act_quit = a("&Quit", self.close, [K.Quit], "Close Bandsketch")
+        self.act_undo = a("&Undo", self.editor.undo, [K.Undo])
+        self.act_redo = a("&Redo", self.editor.redo, [K.Redo])
+        self.act_cut = a("Cu&t", self.cut, [K.Cut], "Copy the selection and remove it")
+        self.act_copy = a("&Copy", self.copy, [K.Copy], "Copy the selected parts and wires")
+        self.act_paste = a("&Paste", self.paste, [K.Paste], "Paste copied parts and wires")
+        self.act_duplicate = a("D&uplicate", self.duplicate, ["Ctrl+D"], "Copy and paste the selection at once")
+        self.act_delete = a("&Delete", self.delete_selection, [K.Delete, "Backspace"], "Remove the selection")
+        self.act_select_all = a("Select &all", self.select_all, [K.SelectAll])
+        self.act_rotate = a("&Rotate", lambda: self.turn(True), ["Ctrl+R"], "Turn the selection a quarter clockwise")
+        self.act_mirror = a("&Mirror", lambda: self.turn(False), ["Ctrl+M"], "Flip the selection left to right")
+        self.act_rename = a("Re&name…", self.rename_selected, ["F2"], "Rename the selected part")
+        self.act_prefs = a("Pre&ferences…", self.show_preferences, [K.Preferences])
+        self.act_zoom_in = a("Zoom &in", lambda: self.view.zoom_by(1.25), [K.ZoomIn])
+        self.act_zoom_out = a("Zoom &out", lambda: self.view.zoom_by(0.8), [K.ZoomOut])
+        self.act_zoom_fit = a("Zoom to &fit", self.view.zoom_to_fit, ["Ctrl+0"], "Show the whole drawing")
+        self.act_select_mode = a("&Select", lambda: self.controller.set_mode(Mode.SELECT), [],
+                                 "Click to select, drag to move (Esc)")
+        self.act_wire_mode = a("&Wire", self.controller.start_wiring, ["W"], "Draw wires between pins")
+        self.act_help = a("&Keys and mouse", self.toggle_help, [K.HelpContents], "Show the keys and gestures")
+        self.act_undo.setEnabled(False)
+        self.act_redo.setEnabled(False)
+        self.stack.canUndoChanged.connect(self.act_undo.setEnabled)
+        self.stack.canRedoChanged.connect(self.act_redo.setEnabled)
+        self.place_actions = []
+        for _, entries in GROUPS:
+            for entry in entries:
+                act = a(entry.title, lambda t=entry.template: self.controller.start_place(t),
+                        [entry.key] if entry.key else [], f"Place a {entry.title.lower()}")
+                self.place_actions.append(act)
+
+    def _make_menus(self) -> None:
+        bar = self.menuBar()
+        file_menu = bar.addMenu("&File")
+        file_menu.addActions([self.act_new, self.act_open])
+        self.recent_menu = file_menu.addMenu("Open &recent")
+        self.recent_menu.aboutToShow.connect(self._fill_recent)
+        file_menu.addActions([self.act_save, self.act_save_as])
+        file_menu.addSeparator()
+        file_menu.addAction(self.act_quit)
+        edit_menu = bar.addMenu("&Edit")
+        edit_menu.addActions([self.act_undo, self.act_redo])
+        edit_menu.addSeparator()
+        edit_menu.addActions([self.act_cut, self.act_copy, self.act_paste, self.act_duplicate, self.act_delete,
+                              self.act_select_all])
+        edit_menu.addSeparator()
+        edit_menu.addActions([self.act_rotate, self.act_mirror, self.act_rename])
+        edit_menu.addSeparator()
+        edit_menu.addAction(self.act_prefs)
+        place_menu = bar.addMenu("&Place")
+        place_menu.addActions([self.act_select_mode, self.act_wire_mode])
+        place_menu.addSeparator()
+        place_menu.addActions(self.place_actions)
+        view_menu = bar.addMenu("&View")
+        view_menu.addActions([self.act_zoom_in, self.act_zoom_out, self.act_zoom_fit])
+        view_menu.addSeparator()
+        for dock in (self.parts_dock, self.properties_dock, self.help_dock):
+            view_menu.addAction(dock.toggleViewAction())
+        help_menu = bar.addMenu("&Help")
+        help_menu.addAction(self.act_help)
+
+        tools = self.addToolBar("Main")
+        tools.setObjectName("main_toolbar")
+        tools.setMovable(False)
+        tools.setToolButtonStyle(Qt.ToolButtonStyle.ToolButtonTextOnly)
+        tools.addActions([self.act_new, self.act_open, self.act_save])
+        tools.addSeparator()
+        tools.addActions([self.act_undo, self.act_redo])
+        tools.addSeparator()
+        self.act_select_mode.setCheckable(True)
+        self.act_wire_mode.setCheckable(True)
+        tools.addActions([self.act_select_mode, self.act_wire_mode])
+        tools.addSeparator()
+        tools.addActions([self.act_rotate, self.act_mirror, self.act_delete])
+        tools.addSeparator()
+        tools.addActions([self.act_zoom_fit])
+
+    def _make_status(self) -> None:
+        self.mode_label = QLabel()
+        self.problem_label = QLabel()
+        self.statusBar().addPermanentWidget(self.problem_label)
+        self.statusBar().addPermanentWidget(self.mode_label)
+
+    def help_sections(self) -> list:
+        """Actions grouped as the help panel lists them."""
+        return [
+            ("Place (single keys on the sheet)", [self.act_wire_mode, *self.place_actions]),
+            ("Edit", [self.act_undo, self.act_redo, self.act_cut, self.act_copy, self.act_paste,
+                      self.act_duplicate, self.act_delete, self.act_select_all, self.act_rotate,
+                      self.act_mirror, self.act_rename]),
+            ("File", [self.act_new, self.act_open, self.act_save, self.act_save_as, self.act_quit]),
+            ("View", [self.act_zoom_in, self.act_zoom_out, self.act_zoom_fit, self.act_help]),
+        ]
+
+    # -- state shown ---------------------------------------------------------------------------
+    def is_dirty(self) -> bool:
+        """Whether the design has changes not in its file."""
+        return self._restored_unsaved or not self.stack.isClean()
+
+    def display_name(self) -> str:
+        return Path(self.path).name if self.path else "Untitled design"
+
+    def _update_title(self, *_) -> None:
+        self.setWindowTitle(f"{self.display_name()}[*] — {APP_NAME}")
+        self.setWindowModified(self.is_dirty())
+
+    def _update_problem_count(self) -> None:
+        n = len(self.scene.problems)
+        self.problem_label.setText("Connections complete" if n == 0 and self.doc.parts
+                                   else (f"{n} problem(s) marked on the sheet" if n else ""))
+
+    def _mode_changed(self, mode: Mode) -> None:
+        self.mode_label.setText(f"Mode: {mode.value}")
+        self.act_select_mode.setChecked(mode is Mode.SELECT)
+        self.act_wire_mode.setChecked(mode is Mode.WIRE)
+
+    def _selection_changed(self) -> None:
+        self.properties.show_selection(self.scene.selected_names(), self.scene.selected_wire_ids())
+
+    def changeEvent(self, event):
+        if event.type() in (QEvent.Type.PaletteChange, QEvent.Type.ApplicationPaletteChange):
+            self.apply_theme()
+        super().changeEvent(event)
+
+    def apply_theme(self) -> None:
+        """Follow the system palette (light or dark) and the resistor preference."""
+        self.theme = system_theme()
+        style = preferences.resistor_style()
+        self.scene.set_theme(self.theme, style)
+        self.controller.restyle()
+        self.palette_panel.restyle(self.theme, style)
+        self.properties.theme = self.theme
+
+    # -- editing actions -----------------------------------------------------------------------
+    def _selection(self):
+        return self.scene.selected_names(), self.scene.selected_wire_ids()
+
+    def delete_selection(self) -> None:
+        names, wires = self._selection()
+        if names or wires:
+            self.editor.patch(edits.delete(self.doc, names, wires), "Delete")
+
+    def select_all(self) -> None:
+        self.scene.select(list(self.doc.parts), list(self.doc.wires))
+
+    def turn(self, rotate: bool) -> None:
+        """Rotate or mirror what is being placed, else the selected parts."""
+        if self.controller.turn_template(rotate):
+            return
+        names = self.scene.selected_names()
+        if names:
+            patch = edits.rotate(self.doc, names) if rotate else edits.mirror(self.doc, names)
+            self.editor.patch(patch, "Rotate" if rotate else "Mirror")
+
+    def copy(self) -> None:
+        names, wires = self._selection()
+        if not (names or wires):
+            return
+        mime = QMimeData()
+        data = json.dumps(document_to_dict(edits.fragment_of(self.doc, names, wires)))
+        mime.setData(FRAGMENT_MIME, data.encode("utf-8"))
+        QGuiApplication.clipboard().setMimeData(mime)
+        self._paste_count = 0
+
+    def cut(self) -> None:
+        self.copy()
+        self.delete_selection()
+
+    def paste(self) -> None:
+        mime = QGuiApplication.clipboard().mimeData()
+        if mime is None or not mime.hasFormat(FRAGMENT_MIME):
+            self.statusBar().showMessage("Nothing to paste: copy parts or wires first", 4000)
+            return
+        try:
+            fragment = document_from_dict(json.loads(bytes(mime.data(FRAGMENT_MIME)).decode("utf-8")), "clipboard")
+        except (ValueError, DesignFileError) as exc:
+            self.statusBar().showMessage(f"Cannot paste: {exc}", 6000)
+            return
+        self._paste_count += 1
+        self._paste_fragment(fragment, self._paste_count * PASTE_STEP)
+
+    def duplicate(self) -> None:
+        names, wires = self._selection()
+        if names or wires:
+            self._paste_fragment(edits.fragment_of(self.doc, names, wires), PASTE_STEP)
+
+    def _paste_fragment(self, fragment: Document, offset: int) -> None:
+        patch = edits.paste(self.doc, fragment, offset, offset)
+        self.editor.patch(patch, "Paste")
+        self.scene.select(list(patch.parts), list(patch.wires))
+
+    def rename_selected(self) -> None:
+        names = self.scene.selected_names()
+        if len(names) == 1:
+            self.properties_dock.show()
+            self.properties_dock.raise_()
+            self.properties.focus_field("name")
+
+    def edit_value_in_place(self, name: str) -> None:
+        """Open the in-place editor on a part's main value (or its Properties if it has none)."""
+        part = self.doc.parts[name]
+        self.scene.select([name])
+        if main_field(part) is None:
+            return
+        self.inplace = InplaceEditor(self.view, self.editor, name)
+
+    def toggle_help(self) -> None:
+        if self.help_dock.isVisible() and not self.help_dock.visibleRegion().isEmpty():
+            self.help_dock.hide()
+        else:
+            self.help_dock.show()
+            self.help_dock.raise_()
+
+    def show_preferences(self) -> None:
+        dialog = preferences.PreferencesDialog(self)
+        dialog.style_chosen.connect(lambda _: self.apply_theme())
+        dialog.setAttribute(Qt.WidgetAttribute.WA_DeleteOnClose)
+        dialog.show()
+
+    # -- files ---------------------------------------------------------------------------------
+    def set_document(self, doc: Document, path: str | None, *, unsaved: bool = False) -> None:
+        """Show ``doc`` (opened from ``path``) in place of the current design; fresh undo history."""
+        self.controller.set_mode(Mode.SELECT)
+        self.scene.clearSelection()
+        self.stack.clear()
+        self.doc.replace_all(doc)
+        self.stack.setClean()
+        self.path = path
+        self._restored_unsaved = unsaved
+        self._paste_count = 0
+        self.doc.finish_edit()
+        self._update_title()
+        self.view.zoom_to_fit()
+
+    def keep_or_drop_changes(self) -> bool:
+        """Ask about unsaved changes; True when it is fine to replace or close the design."""
+        if not self.is_dirty():
+            return True
+        answer = dialogs.ask_unsaved(self, self.display_name())
+        if answer is dialogs.Unsaved.SAVE:
+            return self.save()
+        return answer is dialogs.Unsaved.DISCARD
+
+    def new_design(self) -> None:
+        if self.keep_or_drop_changes():
+            self.set_document(Document(), None)
+            if self.keeper:
+                self.keeper.discard()
+
+    def open_design(self, path: str | None = None) -> bool:
+        """Open a design file; a file that cannot be read leaves the current design as it was."""
+        if not self.keep_or_drop_changes():
+            return False
+        if path is None:
+            folder = str(Path(self.path).parent) if self.path else str(Path.home())
+            path = dialogs.ask_open_path(self, folder)
+            if path is None:
+                return False
+        try:
+            doc = load_design(path)
+        except DesignFileError as exc:
+            dialogs.show_error(self, "Cannot open design",
+                               f"{exc}\n\nThe design on screen has not been changed.")
+            return False
+        self.set_document(doc, str(path))
+        preferences.add_recent(str(path))
+        if self.keeper:
+            self.keeper.discard()
+        return True
+
+    def save(self) -> bool:
+        """Save to the design's file (asking where if it has none); True if saved."""
+        if self.path is None:
+            return self.save_as()
+        return self._write(self.path)
+
+    def save_as(self) -> bool:
+        suggestion = self.path or str(Path.home() / f"{self.doc.title or 'design'}.json")
+        path = dialogs.ask_save_path(self, suggestion)
+        if path is None:
+            return False
+        if not Path(path).suffix:
+            path += ".json"
+        return self._write(path)
+
+    def _write(self, path: str) -> bool:
+        try:
+            save_design(self.doc, path)
+        except DesignFileError as exc:
+            dialogs.show_error(self, "Cannot save design", str(exc))
+            return False
+        self.path = path
+        self._restored_unsaved = False
+        self.stack.setClean()
+        preferences.add_recent(path)
+        if self.keeper:
+            self.keeper.discard()
+        self._update_title()
+        self.statusBar().showMessage(f"Saved {Path(path).name}", 4000)
+        return True
+
+    def _fill_recent(self) -> None:
+        self.recent_menu.clear()
+        paths = preferences.recent_files()
+        if not paths:
+            self.recent_menu.addAction("(none yet)").setEnabled(False)
+        for p in paths:
+            self.recent_menu.addAction(p, lambda p=p: self.open_design(p))
+
+    def offer_recovery(self) -> bool:
+        """If the last session ended unexpectedly, offer its unsaved work; True if restored."""
+        if self.keeper is None:
+            return False
+        found = self.keeper.left_over()
+        if found is None:
+            return False
+        name = Path(found.path).name if found.path else "an untitled design"
+        if not dialogs.ask_restore(self, found.when(), name):
+            self.keeper.set_aside()
+            return False
+        self.set_document(found.doc, found.path, unsaved=True)
+        self.keeper.write()
+        return True
+
+    def closeEvent(self, event):
+        if not self.keep_or_drop_changes():
+            event.ignore()
+            return
+        if self.keeper:
+            self.keeper.stop()
+            self.keeper.discard()
+        event.accept()

@@ -1,0 +1,299 @@
+"""The Properties panel: every field of the selected part, checked by the engine's parser.
+
+A field's text is only accepted when the engine reads it; otherwise the entry stays as typed,
+marked, with the reason under it, and the document keeps its previous value.
+"""
+
+from __future__ import annotations
+
+from PySide6.QtCore import Qt
+from PySide6.QtWidgets import (QCheckBox, QComboBox, QFormLayout, QGroupBox, QLabel, QLineEdit,
+                               QVBoxLayout, QWidget)
+
+from engine.document import Change, Document
+from engine.parts import KINDS, Field
+from engine.values import format_value
+
+from . import edits
+from .commands import Editor, RenameCommand
+from .engine_link import check_field, derived_values, kind_fields
+from .theme import Theme
+
+MODE_NAMES = {"small_signal": "Small-signal values", "operating_point": "Operating point"}
+BAND_NAMES = {None: "Decided by the estimate", "low": "Low band", "high": "High band"}
+DERIVED_UNITS = {"gm": "S", "rpi": "Ω", "ro": "Ω", "cpi": "F", "cmu": "F", "rb": "Ω", "gmb": "S",
+                 "cgs": "F", "cgd": "F", "ft": "Hz", "ic": "A", "id": "A", "beta": ""}
+
+
+class _Entry(QWidget):
+    """A line edit with the verdict under it: the value as read, or why it cannot be."""
+
+    def __init__(self, text: str, on_commit, theme: Theme):
+        super().__init__()
+        self._theme = theme
+        self._on_commit = on_commit
+        self.edit = QLineEdit(text)
+        self.note = QLabel()
+        self.note.setWordWrap(True)
+        self.note.setTextInteractionFlags(Qt.TextInteractionFlag.TextSelectableByMouse)
+        box = QVBoxLayout(self)
+        box.setContentsMargins(0, 0, 0, 0)
+        box.setSpacing(1)
+        box.addWidget(self.edit)
+        box.addWidget(self.note)
+        self.invalid = False
+        self.edit.editingFinished.connect(self._commit)
+
+    def _commit(self):
+        self._on_commit(self, self.edit.text())
+
+    def show_verdict(self, ok: bool, shown: str) -> None:
+        """Show a read value quietly, or a reason in the problem colour with the entry marked."""
+        self.invalid = not ok
+        self.note.setText(shown)
+        colour = self._theme.value if ok else self._theme.problem
+        self.note.setStyleSheet(f"color: {colour.name()};")
+        self.edit.setStyleSheet("" if ok else f"QLineEdit {{ border: 2px solid {self._theme.problem.name()}; }}")
+        self.edit.setToolTip("" if ok else shown)
+
+    def set_text(self, text: str) -> None:
+        """Show the document's text unless the user is typing here or has a rejected entry."""
+        if not self.edit.hasFocus() and not self.invalid and self.edit.text() != text:
+            self.edit.setText(text)
+
+
+class PropertiesPanel(QWidget):
+    """Edits the selected part (or the design itself when nothing is selected).
+
+    Parameters
+    ----------
+    doc : Document
+        The design.
+    editor : Editor
+        Where accepted edits go.
+    theme : Theme
+        Colours for verdicts.
+    """
+
+    def __init__(self, doc: Document, editor: Editor, theme: Theme):
+        super().__init__()
+        self.doc = doc
+        self.editor = editor
+        self.theme = theme
+        self.part_name: str | None = None
+        self._selection: tuple = ((), ())
+        self._entries: dict[str, _Entry] = {}
+        self._layout = QVBoxLayout(self)
+        self._layout.setContentsMargins(6, 6, 6, 6)
+        self._body: QWidget | None = None
+        self._derived: QFormLayout | None = None
+        self._shape = None
+        doc.changed.connect(self._on_change)
+        doc.edited.connect(self._refresh_derived)
+        self.show_selection((), ())
+
+    # -- which form ------------------------------------------------------------------------
+    def show_selection(self, names, wire_ids) -> None:
+        """Show the form for what is selected."""
+        self._selection = (tuple(names), tuple(wire_ids))
+        self.part_name = names[0] if len(names) == 1 and not wire_ids else None
+        self._rebuild()
+
+    def _form_shape(self):
+        """What decides which rows the form has (rebuilt only when this changes)."""
+        if self.part_name is None:
+            return ("doc", self._selection, tuple(sorted(self.doc.parts)), self.doc.input_source)
+        p = self.doc.parts[self.part_name]
+        sensed = (tuple(sorted(self.doc.parts)), p.params.get("sensed")) if p.kind in ("cccs", "ccvs") else ()
+        return ("part", p.kind, p.params.get("mode"), p.params.get("polarity"), sensed,
+                self.doc.input_source == p.name, self.doc.band_pins.get(p.name))
+
+    def _rebuild(self) -> None:
+        if self._body is not None:
+            self._layout.removeWidget(self._body)
+            self._body.deleteLater()
+        self._entries = {}
+        self._derived = None
+        self._body = QWidget()
+        self._layout.addWidget(self._body)
+        self._shape = self._form_shape()
+        names, wires = self._selection
+        if self.part_name is not None:
+            self._part_form()
+        elif names or wires:
+            box = QVBoxLayout(self._body)
+            box.addWidget(QLabel(f"{len(names)} part(s) and {len(wires)} wire(s) selected.\n"
+                                 "Select a single part to edit its fields."))
+            box.addStretch(1)
+        else:
+            self._design_form()
+
+    def _on_change(self, change: Change) -> None:
+        if change.what == "reset":
+            self.show_selection((), ())
+            return
+        if self.part_name is not None and change.what == "part_changed" and change.key == self.part_name:
+            self.part_name = change.new_key
+        if self.part_name is not None and self.part_name not in self.doc.parts:
+            self.show_selection((), ())
+            return
+        if self._form_shape() != self._shape:
+            self._rebuild()
+            return
+        self._refresh_texts()
+
+    # -- the forms -----------------------------------------------------------------------
+    def _design_form(self) -> None:
+        form = QFormLayout(self._body)
+        title = _Entry(self.doc.title, lambda e, t: self._set_meta(e, "title", t), self.theme)
+        description = _Entry(self.doc.description, lambda e, t: self._set_meta(e, "description", t), self.theme)
+        self._entries = {"title": title, "description": description}
+        form.addRow("Title", title)
+        form.addRow("Notes", description)
+        sources = QComboBox()
+        sources.addItem("(none)", None)
+        for p in self.doc.parts.values():
+            if p.kind in ("vsource", "isource"):
+                sources.addItem(p.name, p.name)
+        sources.setCurrentIndex(max(0, sources.findData(self.doc.input_source)))
+        sources.currentIndexChanged.connect(
+            lambda i: self.editor.patch(edits.set_input(self.doc, sources.itemData(i)), "Choose signal input"))
+        form.addRow("Signal input", sources)
+        hint = QLabel("Select a part on the sheet to edit it.")
+        hint.setWordWrap(True)
+        form.addRow(hint)
+
+    def _part_form(self) -> None:
+        part = self.doc.parts[self.part_name]
+        outer = QVBoxLayout(self._body)
+        outer.setContentsMargins(0, 0, 0, 0)
+        heading = QLabel(f"<b>{KINDS[part.kind].title}</b>")
+        outer.addWidget(heading)
+        form = QFormLayout()
+        outer.addLayout(form)
+        name = _Entry(part.name, self._rename, self.theme)
+        self._entries["name"] = name
+        form.addRow("Name", name)
+        for f in KINDS[part.kind].fields:
+            if f.key in ("polarity", "mode"):
+                form.addRow(f.label, self._choice(part, f))
+        for f in kind_fields(part):
+            if f.key in ("polarity", "mode"):
+                continue
+            if f.unit == "name":
+                form.addRow(f.label, self._sensed(part, f))
+                continue
+            entry = _Entry(part.params.get(f.key, ""), lambda e, t, f=f: self._set_field(e, f, t), self.theme)
+            entry.edit.setPlaceholderText("not used" if f.optional else "")
+            self._entries[f.key] = entry
+            verdict = check_field(self.doc, part, f, entry.edit.text())
+            entry.show_verdict(verdict.ok, verdict.shown)
+            form.addRow(f.label, entry)
+        if part.kind in ("vsource", "isource"):
+            check = QCheckBox("Carries the input signal")
+            check.setChecked(self.doc.input_source == part.name)
+            check.toggled.connect(lambda on: self.editor.patch(
+                edits.set_input(self.doc, self.part_name if on else None), "Choose signal input"))
+            form.addRow("Signal", check)
+        if part.kind == "capacitor":
+            band = QComboBox()
+            for key, text in BAND_NAMES.items():
+                band.addItem(text, key)
+            band.setCurrentIndex(band.findData(self.doc.band_pins.get(part.name)))
+            band.currentIndexChanged.connect(lambda i: self.editor.patch(
+                edits.pin_band(self.doc, self.part_name, band.itemData(i)), "Pin band"))
+            form.addRow("Sets band", band)
+        if part.kind in ("bjt", "mosfet"):
+            group = QGroupBox("Derived (read-only)")
+            self._derived = QFormLayout(group)
+            outer.addWidget(group)
+            self._refresh_derived()
+        outer.addStretch(1)
+
+    def _choice(self, part, f: Field) -> QComboBox:
+        box = QComboBox()
+        for choice in f.choices:
+            box.addItem(MODE_NAMES.get(choice, choice), choice)
+        box.setCurrentIndex(box.findData(part.params.get(f.key)))
+        box.currentIndexChanged.connect(lambda i: self.editor.patch(
+            edits.edit_field(self.doc, self.part_name, f.key, box.itemData(i)), f"Set {self.part_name} {f.label}"))
+        return box
+
+    def _sensed(self, part, f: Field) -> QComboBox:
+        box = QComboBox()
+        sources = [p.name for p in self.doc.parts.values() if p.kind == "vsource"]
+        current = part.params.get(f.key, "")
+        if current not in sources:
+            box.addItem(f"{current or '(none)'} — not a voltage source here", current)
+        for name in sources:
+            box.addItem(name, name)
+        box.setCurrentIndex(box.findData(current))
+        box.currentIndexChanged.connect(lambda i: self._set_field(None, f, box.itemData(i)))
+        return box
+
+    # -- committing ---------------------------------------------------------------------------
+    def _set_field(self, entry: _Entry | None, f: Field, text: str) -> None:
+        part = self.doc.parts[self.part_name]
+        verdict = check_field(self.doc, part, f, text)
+        if entry is not None:
+            entry.show_verdict(verdict.ok, verdict.shown)
+        if verdict.ok and text.strip() != part.params.get(f.key, ""):
+            self.editor.patch(edits.edit_field(self.doc, part.name, f.key, text.strip()),
+                              f"Set {part.name} {f.label}")
+
+    def _rename(self, entry: _Entry, text: str) -> None:
+        text = text.strip()
+        if text == self.part_name:
+            entry.show_verdict(True, "")
+            return
+        problem = self.doc.name_problem(text, current=self.part_name)
+        entry.show_verdict(problem is None, problem or "")
+        if problem is None:
+            self.editor.push(RenameCommand(self.doc, self.part_name, text))
+
+    def _set_meta(self, entry: _Entry, key: str, text: str) -> None:
+        if len(text) > 200:
+            entry.show_verdict(False, "Keep this under 200 characters")
+            return
+        entry.show_verdict(True, "")
+        if text != getattr(self.doc, key):
+            self.editor.patch(edits.set_meta(self.doc, key, text), f"Set {key}")
+
+    # -- keeping up with the document -------------------------------------------------------------
+    def _refresh_texts(self) -> None:
+        if self.part_name is None:
+            for key in ("title", "description"):
+                if key in self._entries:
+                    self._entries[key].set_text(getattr(self.doc, key))
+            return
+        part = self.doc.parts[self.part_name]
+        for key, entry in self._entries.items():
+            if key == "name":
+                entry.set_text(part.name)
+                continue
+            entry.set_text(part.params.get(key, ""))
+            if not entry.invalid:
+                verdict = check_field(self.doc, part, KINDS[part.kind].field(key), entry.edit.text())
+                entry.show_verdict(verdict.ok, verdict.shown)
+
+    def _refresh_derived(self) -> None:
+        if self._derived is None or self.part_name not in self.doc.parts:
+            return
+        while self._derived.rowCount():
+            self._derived.removeRow(0)
+        values = derived_values(self.doc.parts[self.part_name])
+        if isinstance(values, str):
+            note = QLabel(values)
+            note.setWordWrap(True)
+            self._derived.addRow(note)
+            return
+        for key, value in values.items():
+            shown = QLabel(format_value(value, DERIVED_UNITS.get(key, "")))
+            shown.setTextInteractionFlags(Qt.TextInteractionFlag.TextSelectableByMouse)
+            self._derived.addRow(key, shown)
+
+    def focus_field(self, key: str) -> None:
+        """Put the cursor in one field's entry (when a part is shown)."""
+        if key in self._entries:
+            self._entries[key].edit.setFocus()
+            self._entries[key].edit.selectAll()
