@@ -31,6 +31,9 @@ POLE_REACH_DECADES = 3.0
 """Poles and zeros further than this beyond the corners do not stretch the sweep: a stray
 parasitic pole at terahertz would otherwise squeeze the corners into a corner of the plot."""
 
+VIEW_DEPTH_DB = 60.0
+"""How far below the mid-band gain the magnitude axis reaches at most, dB."""
+
 BAND_TITLES = {"high": "High band", "low": "Low band", "neutral": "No effect on the gain"}
 
 
@@ -109,6 +112,31 @@ class BodeData:
     def freq_range(self) -> tuple:
         """(lowest, highest) swept frequency, Hz."""
         return float(self.exact.freq_hz[0]), float(self.exact.freq_hz[-1])
+
+    @property
+    def magnitude_view_db(self) -> tuple:
+        """(bottom, top) of the magnitude axis, dB: the exact curve, but no deeper than
+        :data:`VIEW_DEPTH_DB` below the mid band, so a deep notch does not flatten the corners."""
+        m = self.exact.magnitude_db
+        top = max(float(m.max()), self.midband_db) + 6.0
+        bottom = max(float(m.min()), self.midband_db - VIEW_DEPTH_DB) - 6.0
+        return bottom, top
+
+    def readout(self, freq_hz: float) -> str:
+        """The exact response at the swept point nearest ``freq_hz``, as the hover line reads it.
+
+        Returns
+        -------
+        str
+            E.g. ``"f = 1.23 MHz · 28.9 dB · ∠ 135.2°"``; empty outside the sweep.
+        """
+        f = self.exact.freq_hz
+        if not (f[0] <= freq_hz <= f[-1]):
+            return ""
+        i = int(np.argmin(np.abs(np.log(f / freq_hz))))
+        unit = "dB" if self.gain_unit == "V/V" else f"dB{self.gain_unit}"
+        return (f"f = {format_value(f[i], 'Hz')} · {self.exact.magnitude_db[i]:.1f} {unit}"
+                f" · ∠ {self.exact.phase_deg[i]:.1f}°")
 
 
 @dataclass(frozen=True)
@@ -263,9 +291,13 @@ def sweep_frequencies(analysis) -> np.ndarray:
     return np.logspace(math.log10(lo), math.log10(hi), n)
 
 
+DB_FLOOR = -400.0
+"""Where a transmission zero's −∞ dB is drawn: far below any view, and a finite number to plot."""
+
+
 def _db(h) -> np.ndarray:
     with np.errstate(divide="ignore"):
-        return 20 * np.log10(np.abs(h))
+        return np.maximum(20 * np.log10(np.abs(h)), DB_FLOOR)
 
 
 def _curve(f, h, reference_deg: float, anchor_hz: float) -> Curve:

@@ -155,3 +155,26 @@ def test_verdict_says_plainly_when_a_corner_is_missing():
     v = verdict_data(_two_corner(f_low_estimate=None, f_low_exact=None, f_high_exact=None))
     assert v.low_text == "f_L: none (no element sets this corner)"
     assert "never falls 3 dB" in v.high_text
+
+
+def test_hover_readout_reads_the_nearest_swept_point():
+    d = bode_data(_two_corner())
+    f = d.exact.freq_hz
+    i = int(np.argmin(np.abs(f - 1e6)))
+    assert d.readout(f[i] * 1.001) == (f"f = {plotdata.format_value(f[i], 'Hz')} · "
+                                      f"{d.exact.magnitude_db[i]:.1f} dB · ∠ {d.exact.phase_deg[i]:.1f}°")
+    assert d.readout(1e12) == ""
+
+
+def test_magnitude_view_keeps_the_corners_in_sight():
+    d = bode_data(_two_corner())
+    bottom, top = d.magnitude_view_db
+    assert top == pytest.approx(d.midband_db + 6.0, abs=0.01)
+    # The sweep reaches a decade beyond each corner, 20 dB down: all of it is in view.
+    assert bottom == pytest.approx(d.exact.magnitude_db.min() - 6.0)
+    assert bottom == pytest.approx(d.midband_db - 20.0 - 6.0, abs=0.1)
+    # A zero on the swept frequency reads as the floor, a finite number, not −∞, and the
+    # view stops VIEW_DEPTH_DB below the mid band.
+    notch = bode_data(_two_corner(response=lambda f: np.zeros(len(f))))
+    assert np.all(notch.exact.magnitude_db == plotdata.DB_FLOOR)
+    assert notch.magnitude_view_db[0] == pytest.approx(notch.midband_db - plotdata.VIEW_DEPTH_DB - 6.0)
