@@ -107,7 +107,9 @@ def build_netlist(doc) -> Netlist:
     labels = defaultdict(list)
     for part in doc.parts.values():
         if part.kind == "label":
-            labels[part.params.get("net", "").strip()].append(("pin", part.name, "p"))
+            net = part.params.get("net", "").strip()
+            if net:  # a blank label names nothing, so it joins nothing
+                labels[net].append(("pin", part.name, "p"))
         elif part.kind == "ground":
             labels["0"].append(("pin", part.name, "g"))
     for name, keys in labels.items():
