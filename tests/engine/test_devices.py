@@ -8,7 +8,7 @@ import pytest
 from engine.circuit import Circuit
 from engine.devices import (BOLTZMANN, ELEMENTARY_CHARGE, bjt_values, expand, mosfet_values,
                             opamp_values, thermal_voltage)
-from engine.elements import VCCS, VCVS, Capacitor, Resistor
+from engine.elements import VCCS, Resistor
 from engine.errors import BadValueError
 from engine.mna import build_system
 from engine.response import frequency_response, poles
