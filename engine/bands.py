@@ -1,0 +1,157 @@
+"""Which band each capacitor and inductor belongs to: the short/open gain test at mid band.
+
+At the mid-band frequency every element is shorted and opened in turn, the others left as
+they are. Both states are rank-one changes of A = G + jωC along the element's port vector
+u, so one factorisation gives them all (Sherman–Morrison): with x = A⁻¹b, y = A⁻ᵀc and
+z = uᵀA⁻¹u, removing the element's own term t (a capacitor opened, an inductor shorted)
+gives H + t·(yᵀu)(uᵀx)/(1 − t·z), and letting the term grow without bound (a capacitor
+shorted, an inductor opened) gives the exact limit H − (yᵀu)(uᵀx)/z.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+import networkx as nx
+import numpy as np
+
+from .elements import CCCS, CCVS, VCCS, VCVS, Capacitor, Inductor, ISource, VSource
+from .timeconstants import factorize, port_columns, port_diagonal
+
+LOW, HIGH, NEUTRAL = "low", "high", "neutral"
+BANDS = (LOW, HIGH, NEUTRAL)
+
+NEUTRAL_DB = 0.01
+"""An element whose two states differ by less than this (dB) in gain sets no corner."""
+IN_BAND_DB = 1.0
+"""An element both of whose states lower the gain by more than this (dB) acts inside the band."""
+ROUNDOFF = 1e-10
+"""A state's gain below this fraction of the largest is rounding error of an exact zero."""
+
+
+@dataclass(frozen=True)
+class BandTest:
+    """The short/open gain test of one element at the mid-band frequency.
+
+    Attributes
+    ----------
+    name : str
+        The element.
+    gain_shorted, gain_opened : float
+        |H| with the element shorted, opened (V/V, or V/A for a current input), the
+        others as they are at the test frequency.
+    gain_as_is : float
+        |H| with every element as it is.
+    band : str
+        The test's verdict: ``"low"``, ``"high"`` or ``"neutral"``.
+    acts_in_band : bool
+        Both states lower the gain by more than :data:`IN_BAND_DB`.
+    fixed : str or None
+        Why one of the states is undefined (the element sits across an ideal voltage
+        source, or in series with an ideal current source); such an element is neutral.
+    """
+
+    name: str
+    gain_shorted: float
+    gain_opened: float
+    gain_as_is: float
+    band: str
+    acts_in_band: bool
+    fixed: str | None = None
+
+
+def _db(ratio: float) -> float:
+    return 20 * math.log10(ratio) if ratio > 0 else -math.inf
+
+
+def fixed_elements(circuit) -> dict[str, str]:
+    """Elements one of whose states is undefined, with the reason.
+
+    A capacitor whose nodes are joined by ideal voltage sources cannot be shorted; an
+    inductor whose removal leaves its nodes joined only through current sources cannot be
+    opened. Either one carries what the sources impose and is reported as neutral.
+    """
+    els = list(circuit.elements.values())
+    held = nx.Graph()
+    held.add_edges_from((el.nodes[0], el.nodes[1]) for el in els if isinstance(el, (VSource, VCVS, CCVS)))
+    joined = {node: i for i, part in enumerate(nx.connected_components(held)) for node in part}
+    carries = nx.MultiGraph()
+    carries.add_nodes_from(circuit.nodes())
+    for el in els:
+        if not isinstance(el, (ISource, VCCS, CCCS)):
+            carries.add_edge(el.nodes[0], el.nodes[1], name=el.name)
+    simple = nx.Graph(carries)
+    bridges = {frozenset(e) for e in nx.bridges(simple)
+               if carries.number_of_edges(*e) == 1}
+    out = {}
+    for el in els:
+        if isinstance(el, Capacitor) and el.a in joined and joined.get(el.b) == joined[el.a]:
+            out[el.name] = "it sits across an ideal voltage source, which fixes its voltage"
+        elif isinstance(el, Inductor) and frozenset(el.nodes) in bridges:
+            out[el.name] = "it is in series with an ideal current source, which fixes its current"
+    return out
+
+
+def verdict(gain_shorted: float, gain_opened: float, low_state_is_open: bool) -> str:
+    """The band the two gains point to.
+
+    Parameters
+    ----------
+    gain_shorted, gain_opened : float
+        |H| in the two states.
+    low_state_is_open : bool
+        True for a capacitor (open at low frequencies), False for an inductor (a short).
+    """
+    low_state, high_state = (gain_opened, gain_shorted) if low_state_is_open else (gain_shorted, gain_opened)
+    top = max(low_state, high_state)
+    if top == 0 or abs(_db(low_state / top) - _db(high_state / top)) < NEUTRAL_DB:
+        return NEUTRAL
+    return LOW if low_state < high_state else HIGH
+
+
+def band_tests(system, reactive, f_test: float, fixed) -> dict[str, BandTest]:
+    """Short/open gain test of every capacitor and inductor at ``f_test`` (Hz).
+
+    Parameters
+    ----------
+    system : engine.mna.MnaSystem
+        The full network, every element as it is.
+    reactive : sequence of Capacitor or Inductor
+        The elements to test.
+    f_test : float
+        Test frequency in Hz.
+    fixed : Mapping[str, str]
+        :func:`fixed_elements` of the circuit: these are neutral without a test.
+
+    Returns
+    -------
+    dict
+        Name -> :class:`BandTest`.
+    """
+    w = 2 * math.pi * f_test
+    lu = factorize(system.G + 1j * w * system.C, f"at the test frequency {f_test:g} Hz")
+    x = lu.solve(system.b.astype(complex))
+    y = lu.solve(system.c.astype(complex), trans="T")
+    H = complex(system.c @ x)
+    U = port_columns(system, reactive)
+    p = U.T @ x
+    q = U.T @ y
+    z = port_diagonal(lu, U)
+    t = np.array([1j * w * el.value if isinstance(el, Capacitor) else -1j * w * el.value for el in reactive])
+    out = {}
+    for k, el in enumerate(reactive):
+        if el.name in fixed:
+            out[el.name] = BandTest(el.name, abs(H), abs(H), abs(H), NEUTRAL, False, fixed[el.name])
+            continue
+        removed = abs(H + t[k] * q[k] * p[k] / (1 - t[k] * z[k]))
+        unbounded = abs(H - q[k] * p[k] / z[k])
+        top = max(removed, unbounded, abs(H))
+        removed, unbounded = (float(v) if v >= ROUNDOFF * top else 0.0 for v in (removed, unbounded))
+        is_cap = isinstance(el, Capacitor)
+        shorted, opened = (unbounded, removed) if is_cap else (removed, unbounded)
+        band = verdict(shorted, opened, is_cap)
+        lower = _db(abs(H)) - IN_BAND_DB
+        acts = abs(H) > 0 and _db(shorted) < lower and _db(opened) < lower
+        out[el.name] = BandTest(el.name, shorted, opened, abs(H), band, bool(acts))
+    return out

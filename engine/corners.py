@@ -1,0 +1,142 @@
+"""The exact corners: a wide sweep of the full network and root finding on log f."""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+from scipy.optimize import brentq
+
+from .elements import Capacitor, Inductor, Resistor
+from .response import DENSE_LIMIT, frequency_response
+
+SETTLED = 1e-3
+"""A sweep end is settled when |H| changes by less than this fraction of its peak over a decade."""
+MAX_EXTRA_DECADES = 8
+"""How far a sweep may grow past its first span at each end, in decades."""
+
+
+def points_per_decade(system) -> int:
+    """Sweep density: fine where a batched dense solve is cheap, coarser where each point is an LU."""
+    return 20 if system.size <= DENSE_LIMIT else 8
+
+
+def first_span(circuit) -> tuple[float, float]:
+    """A frequency span (Hz) that the element values suggest, at least four decades wide.
+
+    Every R·C and L/R that the parts could form lies within it; the sweep then grows at
+    each end until the response settles, which covers time constants that gain multiplies.
+    """
+    els = circuit.elements.values()
+    rs = [el.value for el in els if isinstance(el, Resistor)] or [1.0]
+    taus = []
+    for el in els:
+        if isinstance(el, Capacitor):
+            taus += [el.value * min(rs), el.value * max(rs)]
+        elif isinstance(el, Inductor):
+            taus += [el.value / max(rs), el.value / min(rs)]
+    if not taus:
+        return 1.0, 1e4
+    lo, hi = 1 / (2 * math.pi * max(taus)), 1 / (2 * math.pi * min(taus))
+    centre = math.sqrt(lo * hi)
+    half = max(2.0, math.log10(hi / lo) / 2 + 1.0)
+    return centre * 10 ** -half, centre * 10 ** half
+
+
+def wide_sweep(system, span, per_decade: int):
+    """Exact response on a log sweep that starts on ``span`` and grows until both ends settle.
+
+    The low end has settled when |H| is within :data:`SETTLED` of the peak from the exact
+    d.c. gain; the high end when |H| no longer moves by that much over the last decade.
+
+    Returns
+    -------
+    (numpy.ndarray, numpy.ndarray)
+        Frequencies (Hz, rising) and the complex response there.
+    """
+    lo, hi = span
+    n = max(2, int(round(per_decade * math.log10(hi / lo))) + 1)
+    f = np.geomspace(lo, hi, n)
+    H = frequency_response(system, f)
+    dc = abs(frequency_response(system, [0.0])[0])
+    decade = np.geomspace(1.0, 10.0, per_decade + 1)[1:]
+    for _ in range(MAX_EXTRA_DECADES):
+        peak = max(np.abs(H).max(), dc)
+        low_done = abs(abs(H[0]) - dc) <= SETTLED * peak
+        high_done = abs(abs(H[-1]) - abs(H[-1 - per_decade])) <= SETTLED * peak if len(H) > per_decade else False
+        if low_done and high_done:
+            break
+        if not low_done:
+            fl = f[0] / decade[::-1]
+            f, H = np.concatenate((fl, f)), np.concatenate((frequency_response(system, fl), H))
+        if not high_done:
+            fh = f[-1] * decade
+            f, H = np.concatenate((f, fh)), np.concatenate((H, frequency_response(system, fh)))
+    return f, H
+
+
+def midband_guess(f: np.ndarray, H: np.ndarray) -> float:
+    """Geometric centre (Hz) of the stretch around the peak where |H| stays within 3 dB of it."""
+    mag = np.abs(H)
+    top = int(np.argmax(mag))
+    level = mag[top] / math.sqrt(2)
+    lo = top
+    while lo > 0 and mag[lo - 1] >= level:
+        lo -= 1
+    hi = top
+    while hi < len(mag) - 1 and mag[hi + 1] >= level:
+        hi += 1
+    return math.sqrt(f[lo] * f[hi])
+
+
+def brackets(f: np.ndarray, H: np.ndarray, f_mid: float, level: float):
+    """Sweep intervals holding the corners nearest ``f_mid`` below and above it.
+
+    Starts at the sweep point nearest ``f_mid`` at which |H| ≥ ``level`` and walks outward
+    to the first point where |H| < ``level``.
+
+    Returns
+    -------
+    (tuple or None, tuple or None)
+        (f_a, f_b) in Hz, rising, for the lower and the upper corner; None where the sweep
+        never falls to ``level`` on that side.
+    """
+    mag = np.abs(H)
+    above = np.flatnonzero(mag >= level)
+    if above.size == 0:
+        return None, None
+    start = int(above[np.argmin(np.abs(np.log(f[above] / f_mid)))])
+
+    def walk(step):
+        i = start
+        while 0 <= i + step < len(f):
+            if mag[i + step] < level:
+                return tuple(sorted((float(f[i]), float(f[i + step]))))
+            i += step
+        return None
+
+    return walk(-1), walk(+1)
+
+
+def corner(system, bracket, level: float) -> float | None:
+    """Frequency (Hz) in ``bracket`` where the exact |H| equals ``level``: brentq on log f."""
+    if bracket is None:
+        return None
+
+    def g(logf):
+        return abs(frequency_response(system, [10.0 ** logf])[0]) - level
+
+    return 10.0 ** brentq(g, math.log10(bracket[0]), math.log10(bracket[1]), xtol=1e-13, rtol=1e-13)
+
+
+def second_order_corner(b1: float, b2: float) -> float | None:
+    """Upper corner (Hz) of 1/(1 + b1·s + b2·s²): the root of (1 − b2ω²)² + (b1ω)² = 2.
+
+    With u = ω², b2²u² + (b1² − 2b2)u − 1 = 0 has one positive root, written here in the
+    form without cancellation.
+    """
+    if b1 <= 0 and b2 <= 0:
+        return None
+    a = b1 * b1 - 2 * b2
+    u = 2.0 / (a + math.sqrt(a * a + 4 * b2 * b2))
+    return math.sqrt(u) / (2 * math.pi)

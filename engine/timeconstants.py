@@ -1,0 +1,228 @@
+"""Port matrices of a resistive network and the time constants they give.
+
+A capacitor is a port driven by a test current between its two nodes; its response is the
+voltage across it, so its port entry is a resistance. An inductor that the network holds
+as a 0-V branch is a port driven by a test voltage in that branch; its response is the
+branch current, so its entry is minus the conductance it sees. With the weights
+D = diag(C, −L), det(G + s·U·D·Uᵀ) / det(G) = det(I + s·D·Z) with Z = Uᵀ G⁻¹ U, which is
+what makes one factorisation of G serve every element at once (Cochrun and Grabel, IEEE
+Trans. Circuit Theory CT-20(1), 1973; zero-value time constants for the inductors).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+import scipy.linalg as la
+import scipy.sparse as sp
+import scipy.sparse.linalg as spla
+
+from .elements import Capacitor, Inductor
+from .errors import CircuitError
+
+FULL_MATRIX_LIMIT = 1000
+"""Up to this many ports the whole port matrix is formed (b2, exact time constants);
+beyond it only its diagonal (b1), since the matrix costs N² memory and its eigenvalues N³."""
+_CHUNK_BYTES = 32 * 1024 * 1024
+_SINGULAR = 1e-12
+"""A port matrix whose smallest singular value is below this fraction of its largest is singular."""
+
+
+def port_columns(system, elements) -> sp.csc_matrix:
+    """Port vectors of ``elements`` in the unknowns of ``system``, one column each.
+
+    Parameters
+    ----------
+    system : engine.mna.MnaSystem
+        Equations in which every capacitor named is left out (open) and every inductor
+        named is a branch (it is not opened).
+    elements : sequence of Capacitor or Inductor
+
+    Returns
+    -------
+    scipy.sparse.csc_matrix
+        Capacitor: +1 at node a, −1 at node b. Inductor: 1 at its branch unknown.
+    """
+    rows, cols, vals = [], [], []
+    for j, el in enumerate(elements):
+        if isinstance(el, Inductor):
+            rows.append(system.branch_index[el.name])
+            cols.append(j)
+            vals.append(1.0)
+            continue
+        for node, sign in ((el.a, 1.0), (el.b, -1.0)):
+            if node in system.node_index:
+                rows.append(system.node_index[node])
+                cols.append(j)
+                vals.append(sign)
+    return sp.csc_matrix((vals, (rows, cols)), shape=(system.size, len(elements)))
+
+
+def port_weights(elements) -> np.ndarray:
+    """D of det(I + s·D·Z): C (F) for a capacitor, −L (H) for an inductor."""
+    return np.array([el.value if isinstance(el, Capacitor) else -el.value for el in elements], dtype=float)
+
+
+def factorize(G, what: str, parts=()):
+    """Sparse LU of ``G``; a singular ``G`` is a :class:`CircuitError` saying ``what`` it was."""
+    try:
+        return spla.splu(sp.csc_matrix(G))
+    except RuntimeError:
+        raise CircuitError(f"The network {what} has no unique solution: a loop of shorts or ideal "
+                           "sources fixes no current, or a node is held only by capacitors and "
+                           "current sources. Pin one of the parts to another band or add a resistance.",
+                           parts=parts) from None
+
+
+def _column_chunks(n_rows: int, n_cols: int, itemsize: int):
+    step = max(1, min(n_cols, _CHUNK_BYTES // max(1, itemsize * n_rows)))
+    for start in range(0, n_cols, step):
+        yield slice(start, min(n_cols, start + step))
+
+
+def port_matrix(lu, U: sp.csc_matrix) -> np.ndarray:
+    """Z = Uᵀ A⁻¹ U for a factorised A, solved in column blocks (N × N)."""
+    Z = np.empty((U.shape[1], U.shape[1]), dtype=np.result_type(lu.L.dtype, float))
+    Ut = U.T.tocsr()
+    for cols in _column_chunks(U.shape[0], U.shape[1], Z.itemsize):
+        Z[:, cols] = Ut @ lu.solve(U[:, cols].toarray().astype(Z.dtype))
+    return Z
+
+
+def port_diagonal(lu, U: sp.csc_matrix) -> np.ndarray:
+    """diag(Uᵀ A⁻¹ U) without forming the whole matrix."""
+    dtype = np.result_type(lu.L.dtype, float)
+    out = np.empty(U.shape[1], dtype=dtype)
+    for cols in _column_chunks(U.shape[0], U.shape[1], np.dtype(dtype).itemsize):
+        block = U[:, cols]
+        X = lu.solve(block.toarray().astype(dtype))
+        out[cols] = np.asarray(block.multiply(X).sum(axis=0)).ravel()
+    return out
+
+
+@dataclass(frozen=True)
+class OpenCircuit:
+    """Open-circuit (zero-value) time constants of one set of ports.
+
+    Attributes
+    ----------
+    port_values : numpy.ndarray
+        Z_jj: the resistance (Ω) a capacitor sees, or minus the conductance (S) an
+        inductor sees, with the other ports at zero value.
+    time_constants : numpy.ndarray
+        D_j·Z_jj (s): C·R for a capacitor, L/R for an inductor.
+    b1 : float
+        Σ τ_j (s), the s-coefficient of the normalised denominator.
+    b2 : float or None
+        Σ_{i<j} D_i D_j (Z_ii Z_jj − Z_ij Z_ji) (s²); None above :data:`FULL_MATRIX_LIMIT`.
+    exact : numpy.ndarray or None
+        Eigenvalues λ of D·Z (s), largest magnitude first: the true time constants, whose
+        poles are −1/λ; None above :data:`FULL_MATRIX_LIMIT`.
+    """
+
+    port_values: np.ndarray
+    time_constants: np.ndarray
+    b1: float
+    b2: float | None
+    exact: np.ndarray | None
+
+
+def _pair_sum(d: np.ndarray) -> float:
+    """Σ_{i<j} d_i d_j from running sums, which avoids the cancellation in ((Σd)² − Σd²)/2."""
+    before = np.concatenate(([0.0], np.cumsum(d)[:-1]))
+    return float(np.dot(d, before))
+
+
+def _eigenvalues(D: np.ndarray, Z: np.ndarray) -> np.ndarray:
+    M = D[:, None] * Z
+    if np.all(D > 0) and np.allclose(Z, Z.T, rtol=1e-12, atol=0.0):
+        # A reciprocal network: D·Z is similar to the symmetric √D·Z·√D, whose solver is faster and exact.
+        r = np.sqrt(D)
+        S = r[:, None] * Z * r[None, :]
+        lam = la.eigvalsh((S + S.T) / 2).astype(complex)
+    else:
+        lam = la.eigvals(M)
+    return lam[np.argsort(-np.abs(lam), kind="stable")]
+
+
+def open_circuit(lu, U: sp.csc_matrix, D: np.ndarray, *, full: bool | None = None) -> OpenCircuit:
+    """Open-circuit time constants of the ports ``U`` with weights ``D``, from one LU.
+
+    Parameters
+    ----------
+    lu : scipy.sparse.linalg.SuperLU
+        Factorisation (:func:`factorize`) of the conductance matrix with the ports at zero
+        value (capacitors out, inductors 0-V branches).
+    U : scipy.sparse.csc_matrix
+        Port columns (:func:`port_columns`).
+    D : numpy.ndarray
+        Port weights (:func:`port_weights`), F or −H.
+    full : bool, optional
+        Form the whole port matrix for b2 and the exact time constants; by default only up
+        to :data:`FULL_MATRIX_LIMIT` ports.
+    """
+    n = U.shape[1]
+    if n == 0:
+        empty = np.zeros(0)
+        return OpenCircuit(empty, empty, 0.0, 0.0, empty.astype(complex))
+    if full is None:
+        full = n <= FULL_MATRIX_LIMIT
+    if not full:
+        z = port_diagonal(lu, U)
+        return OpenCircuit(z, D * z, float(np.dot(D, z)), None, None)
+    Z = port_matrix(lu, U)
+    z = np.diag(Z).copy()
+    M = D[:, None] * Z
+    b2 = _pair_sum(D * z) - float(np.triu(M * M.T, 1).sum())
+    return OpenCircuit(z, D * z, float(np.dot(D, z)), b2, _eigenvalues(D, Z))
+
+
+@dataclass(frozen=True)
+class ShortCircuit:
+    """Short-circuit time constants of one set of ports.
+
+    Attributes
+    ----------
+    inverse_diagonal : numpy.ndarray
+        (Z⁻¹)_jj: the conductance (S) a capacitor sees, or minus the resistance (Ω) an
+        inductor sees, with the other ports at infinite value (capacitors shorted,
+        inductors open).
+    time_constants : numpy.ndarray
+        D_j / (Z⁻¹)_jj (s): C·R for a capacitor, L/R for an inductor.
+    omega : float
+        Σ 1/τ_j = tr((D·Z)⁻¹) (rad/s), the exact sum of the pole magnitudes when the poles are real.
+    """
+
+    inverse_diagonal: np.ndarray
+    time_constants: np.ndarray
+    omega: float
+
+
+def short_circuit(lu, U: sp.csc_matrix, D: np.ndarray, names) -> ShortCircuit:
+    """Short-circuit time constants of the ports ``U``: R_jˢ = 1/(Z⁻¹)_jj, from one LU.
+
+    Parameters
+    ----------
+    lu, U, D
+        As for :func:`open_circuit`: the network with every port at zero value.
+    names : sequence of str
+        Port names, for the message when ports form a loop (parallel capacitors) and no
+        port can be shorted alone.
+    """
+    n = U.shape[1]
+    if n == 0:
+        empty = np.zeros(0)
+        return ShortCircuit(empty, empty, 0.0)
+    Z = port_matrix(lu, U)
+    u, s, vt = la.svd(Z)
+    if s[-1] <= _SINGULAR * s[0]:
+        null = np.abs(vt[-1])
+        loop = [names[j] for j in np.flatnonzero(null > 1e-6 * null.max())]
+        raise CircuitError(
+            f"{', '.join(loop)} form a loop (for instance capacitors in parallel): shorting one shorts "
+            "the others, so none has a short-circuit time constant of its own. Combine them into one "
+            "part, or pin all but one of them to the neutral band.", parts=loop)
+    inv_diag = np.einsum("ij,ji->i", vt.T / s[None, :], u.T)
+    tau = D / inv_diag
+    return ShortCircuit(inv_diag, tau, float(np.sum(1.0 / tau)))
