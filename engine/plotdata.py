@@ -21,15 +21,15 @@ from .values import format_value
 HALF_POWER_DB = 20 * math.log10(math.sqrt(2))
 """The −3 dB corner lies this many dB (3.0103) below the mid-band gain."""
 
-POINTS_PER_DECADE = 60
-MAX_POINTS = 900
+POINTS_PER_DECADE = 40
+MAX_POINTS = 600
 DEFAULT_RANGE_HZ = (10.0, 100e6)
 """Sweep used when the analysis names no corner and no pole to centre on."""
 MIN_DECADES = 4.0
 """A sweep narrower than this shows too little of the mid band around a single corner."""
-POLE_REACH_DECADES = 3.0
-"""Poles and zeros further than this beyond the corners do not stretch the sweep: a stray
-parasitic pole at terahertz would otherwise squeeze the corners into a corner of the plot."""
+POLE_REACH_DECADES = 1.0
+"""Poles further than this beyond the corners do not stretch the sweep: a parasitic pole at
+tens of gigahertz would otherwise squeeze the corners into a corner of the plot."""
 
 VIEW_DEPTH_DB = 60.0
 """How far below the mid-band gain the magnitude axis reaches at most, dB."""
@@ -98,7 +98,7 @@ class BodeData:
     markers : tuple of Marker
         f_H and f_L, estimated and exact, where they exist.
     gain_unit : str
-        ``"V/V"`` or ``"Ω"`` (what the dB are of).
+        ``"V/V"``, or ``"V/A"`` for a current input (its dB are dBΩ).
     """
 
     exact: Curve
@@ -134,7 +134,7 @@ class BodeData:
         if not (f[0] <= freq_hz <= f[-1]):
             return ""
         i = int(np.argmin(np.abs(np.log(f / freq_hz))))
-        unit = "dB" if self.gain_unit == "V/V" else f"dB{self.gain_unit}"
+        unit = db_unit(self.gain_unit)
         return (f"f = {format_value(f[i], 'Hz')} · {self.exact.magnitude_db[i]:.1f} {unit}"
                 f" · ∠ {self.exact.phase_deg[i]:.1f}°")
 
@@ -241,12 +241,20 @@ def part_of(element: str) -> str:
     return element.split(".", 1)[0]
 
 
-def _elements(analysis) -> dict:
-    return {**analysis.capacitors, **analysis.inductors}
-
-
 def _positive(x) -> float | None:
     return float(x) if x is not None and math.isfinite(x) and x > 0 else None
+
+
+def _pole_frequencies(analysis) -> list:
+    """Hz: the high band's exact poles (−1/λ) and each low-band element's 1/(2πτ).
+
+    These come with the analysis; the full network's poles would need an eigenproblem of
+    the whole system on every edit, which the sweep range does not justify.
+    """
+    out = [1 / (2 * math.pi * abs(lam)) for lam in (analysis.high_time_constants or ()) if abs(lam) > 0]
+    out += [1 / (2 * math.pi * r.time_constant) for r in analysis.elements.values()
+            if r.band == "low" and r.time_constant and r.time_constant > 0]
+    return [f for f in out if math.isfinite(f)]
 
 
 def sweep_range(analysis) -> tuple:
@@ -263,13 +271,12 @@ def sweep_range(analysis) -> tuple:
     """
     corners = [f for f in map(_positive, (analysis.f_low_estimate, analysis.f_low_exact,
                                           analysis.f_high_estimate, analysis.f_high_exact)) if f]
-    roots = [abs(complex(p)) / (2 * math.pi) for p in (*analysis.poles, *analysis.zeros)]
-    roots = [f for f in roots if f > 0 and math.isfinite(f)]
+    poles = _pole_frequencies(analysis)
     if corners:
         lo_c, hi_c = min(corners), max(corners)
         reach = 10 ** POLE_REACH_DECADES
-        roots = [f for f in roots if lo_c / reach <= f <= hi_c * reach]
-    found = corners + roots
+        poles = [f for f in poles if lo_c / reach <= f <= hi_c * reach]
+    found = corners + poles
     if not found:
         return DEFAULT_RANGE_HZ
     lo, hi = min(found) / 10, max(found) * 10
@@ -293,6 +300,11 @@ def sweep_frequencies(analysis) -> np.ndarray:
 
 DB_FLOOR = -400.0
 """Where a transmission zero's −∞ dB is drawn: far below any view, and a finite number to plot."""
+
+
+def db_unit(gain_unit: str) -> str:
+    """What 20·log10|H| is in: ``"dB"`` for a V/V gain, ``"dBΩ"`` for a V/A transimpedance."""
+    return "dBΩ" if gain_unit == "V/A" else "dB"
 
 
 def _db(h) -> np.ndarray:
@@ -363,14 +375,12 @@ def _marker_text(corner: str, estimated: bool, f: float) -> str:
     return f"{sym} {'≈' if estimated else '='} {format_value(f, 'Hz')}"
 
 
-def bode_data(analysis, gain_unit: str = "V/V") -> BodeData:
+def bode_data(analysis) -> BodeData:
     """The Bode plot's curves and markers for ``analysis``.
 
     Parameters
     ----------
     analysis : engine.analysis.Analysis
-    gain_unit : str, optional
-        What the gain is in: ``"V/V"`` for a voltage input, ``"Ω"`` for a current input.
 
     Returns
     -------
@@ -388,10 +398,10 @@ def bode_data(analysis, gain_unit: str = "V/V") -> BodeData:
         fh = f if split is None else f[f >= split]
         if fh.size:
             high = _curve(fh, high_estimate_response(am, analysis.b1, fh), ref, anchor)
-    if f_lo:
+    if f_lo and _positive(analysis.omega_low_estimate):
         fl = f if split is None else f[f <= split]
         if fl.size:
-            low = _curve(fl, low_estimate_response(am, 2 * math.pi * f_lo, fl), ref, anchor)
+            low = _curve(fl, low_estimate_response(am, analysis.omega_low_estimate, fl), ref, anchor)
     mid_db = float(_db(am))
     level = mid_db - HALF_POWER_DB
     markers = []
@@ -401,11 +411,12 @@ def bode_data(analysis, gain_unit: str = "V/V") -> BodeData:
                                ("low", False, analysis.f_low_exact)):
         if _positive(value):
             markers.append(Marker(corner, est, float(value), level, _marker_text(corner, est, value)))
-    return BodeData(exact, high, low, mid_db, tuple(markers), gain_unit)
+    return BodeData(exact, high, low, mid_db, tuple(markers), analysis.gain_unit)
 
 
 def _percent(share: float) -> str:
-    return f"{100 * share:.0f} %"
+    # A small but real share reads "<1 %", not "0 %", which would say it adds nothing.
+    return "<1 %" if 0 < share < 0.005 else f"{100 * share:.0f} %"
 
 
 def _band_sum_name(band: str) -> str:
@@ -448,7 +459,7 @@ def element_tooltip(result) -> str:
 
 def _group(band: str, results: list, analysis) -> BandGroup:
     results = sorted(results, key=lambda r: (-r.share, r.name))
-    top = results[0].name if results and band != "neutral" and results[0].share > 0 else None
+    top = {"high": analysis.dominant_high, "low": analysis.dominant_low}.get(band)
     rows = []
     for r in results:
         if band == "high":
@@ -478,7 +489,7 @@ def _group(band: str, results: list, analysis) -> BandGroup:
 def bar_data(analysis) -> BarData:
     """The time-constant bars of ``analysis``: one group per band that has elements."""
     by_band: dict = {"high": [], "low": [], "neutral": []}
-    for r in _elements(analysis).values():
+    for r in analysis.elements.values():
         by_band[r.band].append(r)
     return BarData(tuple(_group(b, rs, analysis) for b, rs in by_band.items() if rs))
 
@@ -500,19 +511,16 @@ def _corner_text(sym: str, est, exact) -> str:
 
 
 def _gain_text(gain: float, unit: str) -> str:
-    if gain == 0:
-        return f"A_m = 0 {unit}: no signal reaches the output in the mid band"
-    return f"A_m = {format_value(gain, unit)} ({float(_db(gain)):.1f} dB)"
+    shown = "Ω" if unit == "V/A" else unit
+    return f"A_m = {format_value(gain, shown)} ({float(_db(gain)):.1f} {db_unit(unit)})"
 
 
-def verdict_data(analysis, gain_unit: str = "V/V") -> VerdictData:
+def verdict_data(analysis) -> VerdictData:
     """The verdict strip's lines for ``analysis``.
 
     Parameters
     ----------
     analysis : engine.analysis.Analysis
-    gain_unit : str, optional
-        ``"V/V"`` or ``"Ω"``.
     """
     bars = bar_data(analysis)
     limits = []
@@ -522,7 +530,7 @@ def verdict_data(analysis, gain_unit: str = "V/V") -> VerdictData:
             corner = "f_H" if g.band == "high" else "f_L"
             limits.append(f"{top.name} sets {corner} ({top.share_text})")
     dominant = "; ".join(limits) if limits else "no element sets a corner"
-    return VerdictData(_gain_text(float(analysis.midband_gain), gain_unit),
+    return VerdictData(_gain_text(float(analysis.midband_gain), analysis.gain_unit),
                        _corner_text("f_H", analysis.f_high_estimate, analysis.f_high_exact),
                        _corner_text("f_L", analysis.f_low_estimate, analysis.f_low_exact),
                        dominant, tuple(analysis.warnings))
