@@ -112,12 +112,14 @@ def junctions(doc: Document) -> list[Point]:
         degree[pts[-1]] += 1
         for pt in pts[1:-1]:
             degree[pt] += 2
-    for w in wires:
-        for end in (w.points[0], w.points[-1]):
-            for other in wires:
-                if other is not w and any(_on_segment(end, a, b)
+    # A wire end or a pin on the inside of a segment joins it (a T): that segment counts twice.
+    touching = [(w, pt) for w in wires for pt in (w.points[0], w.points[-1])]
+    touching += [(None, pt) for pt in pin_points(doc)]
+    for owner, pt in touching:
+        for other in wires:
+            if other is not owner and any(_on_segment(pt, a, b)
                                           for a, b in zip(other.points, other.points[1:])):
-                    degree[end] += 2
+                degree[pt] += 2
     return sorted(pt for pt, n in degree.items() if n >= 3)
 
 
@@ -159,13 +161,22 @@ def _moved_end(points: list, at_start: bool, new: Point) -> list:
 
 
 def _follow(doc: Document, moved: dict, patch: Patch, skip_wires=frozenset(), keep=frozenset()) -> None:
-    """Add to ``patch`` the wires whose ends sat on pins of parts that ``moved`` (name -> new Part)."""
-    where = {}
+    """Add to ``patch`` what keeps the pins of parts that ``moved`` (name -> new Part) connected.
+
+    A wire ending on a moved pin has that end moved (with a bend where needed). A moved pin
+    that touched something without being a wire's end — the middle of a wire, or another
+    part's pin — gets a new wire from where it was to where it is.
+    """
+    where, leads = {}, {}
     for name, new in moved.items():
         old_pins, new_pins = doc.parts[name].pins(), new.pins()
         for pin, pt in old_pins.items():
             where[pt] = new_pins[pin]
+            dx, dy = new_pins[pin][0] - new.x, new_pins[pin][1] - new.y
+            leads[pt] = abs(dy) >= abs(dx)
+    ends = set()
     for wid, w in doc.wires.items():
+        ends.update((w.points[0], w.points[-1]))
         if wid in skip_wires:
             continue
         pts = list(w.points)
@@ -183,6 +194,17 @@ def _follow(doc: Document, moved: dict, patch: Patch, skip_wires=frozenset(), ke
             if end:
                 pts = _moved_end(pts, False, where[w.points[-1]])
         patch.wires[wid] = (w, Wire(wid, simplify(pts, keep)))
+    still = Counter(pt for n, p in doc.parts.items() if n not in moved for pt in p.pins().values())
+    wid = doc.new_wire_id()
+    for old, new in where.items():
+        if old == new or old in ends:
+            continue
+        on_wire = any(old in w.points or any(_on_segment(old, a, b) for a, b in zip(w.points, w.points[1:]))
+                      for i, w in doc.wires.items() if i not in skip_wires)
+        if on_wire or still[old]:
+            bend = (new[0], old[1]) if leads[old] else (old[0], new[1])
+            patch.wires[wid] = (None, Wire(wid, simplify([new, bend, old])))
+            wid += 1
 
 
 def _connection_points(doc: Document) -> frozenset:

@@ -56,6 +56,7 @@ class MainWindow(QMainWindow):
         style = preferences.resistor_style()
 
         self.scene = SchematicScene(self.doc, self.theme, style)
+        self.scene.setParent(self)
         self.controller = CanvasController(self.scene, self.editor)
         self.view = SchematicView(self.scene, self.controller)
         self.analysis_area = QWidget()
@@ -462,4 +463,6 @@ class MainWindow(QMainWindow):
         if self.keeper:
             self.keeper.stop()
             self.keeper.discard()
+        # The scene deletes its items as it goes; nothing may ask it about selection then.
+        self.scene.selectionChanged.disconnect(self._selection_changed)
         event.accept()

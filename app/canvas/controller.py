@@ -132,8 +132,8 @@ class CanvasController(QObject):
     def start_place(self, template: Template) -> None:
         """Arm placing a part: it follows the cursor until a click puts it down."""
         self.set_mode(Mode.PLACE)
-        self._template = template
         self._drop_ghost()
+        self._template = template
         self._ghost = PartItem(template.part(self.doc.new_name(template.kind), 0, 0),
                                self.scene.theme, self.scene.style, ghost=True)
         self._ghost.setVisible(False)

@@ -1,0 +1,47 @@
+"""Qt runs offscreen, with settings and recovery files in a throwaway folder, no dialog ever waits."""
+
+import os
+import tempfile
+
+os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
+_HOME = tempfile.mkdtemp(prefix="bandsketch-tests-")
+os.environ["XDG_CONFIG_HOME"] = os.path.join(_HOME, "config")
+os.environ["XDG_DATA_HOME"] = os.path.join(_HOME, "data")
+
+import pytest  # noqa: E402
+
+from app import dialogs  # noqa: E402
+
+
+@pytest.fixture(autouse=True)
+def no_waiting_dialogs(monkeypatch, qapp):
+    """Any dialog a test did not answer fails the test instead of waiting for a click."""
+    qapp.setOrganizationName("BandsketchTests")
+    qapp.setApplicationName("BandsketchTests")
+
+    def unexpected(name):
+        def fail(*args, **kwargs):
+            raise AssertionError(f"unexpected dialog {name}{args[1:]}")
+        return fail
+
+    for name in ("ask_open_path", "ask_save_path", "ask_unsaved", "ask_restore", "show_error"):
+        monkeypatch.setattr(dialogs, name, unexpected(name))
+
+
+@pytest.fixture
+def window(qtbot, tmp_path):
+    """A main window with its recovery file in ``tmp_path / "recovery"``."""
+    from app.main_window import MainWindow
+
+    w = MainWindow(recovery_folder=tmp_path / "recovery")
+    w.resize(1200, 800)
+    w.show()
+    qtbot.waitExposed(w)
+    w.view.resetTransform()
+    w.view.centerOn(250, 200)
+    yield w
+    # Whatever the test left unsaved is thrown away without asking.
+    w.stack.setClean()
+    w._restored_unsaved = False
+    w.close()
+    w.deleteLater()
