@@ -145,7 +145,7 @@ class Analysis:
         None when the high band has more than the full-matrix limit of elements.
     high_time_constants : tuple of complex or None
         s, the exact high-band time constants λ (eigenvalues of D·Z), largest first; the
-        poles are −1/λ. None when b2 is None.
+        poles are −1/λ, and λ = 0 marks a loop of capacitors (no pole). None when b2 is None.
     f_high_estimate : float or None
         Hz, 1/(2π·b1).
     f_high_estimate_2nd : float or None

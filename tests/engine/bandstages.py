@@ -1,0 +1,125 @@
+"""Invented test stages and an independent symbolic nodal analysis to check the engine against.
+
+Every scenario here is invented for the tests. The symbolic analysis is written from the
+nodal equations directly (Ho, Ruehli, Brennan, "The Modified Nodal Approach to Network
+Analysis", IEEE Trans. Circuits and Systems CAS-22(6), 1975), not from engine.mna.
+"""
+
+from __future__ import annotations
+
+import sympy
+
+from engine import Circuit
+from engine.elements import VCCS, Capacitor, Resistor, VSource
+
+s = sympy.Symbol("s")
+
+
+def denominator(circuit, skip=()):
+    """Coefficients [1, b1, b2, ...] of det(G + sC)/det(G), exact, with the sources zeroed.
+
+    Handles resistors, capacitors, transconductances and voltage sources (0-V branches);
+    capacitors named in ``skip`` are left out.
+    """
+    nodes = sorted({n for el in circuit.elements.values() for n in el.nodes} - {"0"})
+    vsrc = [el for el in circuit.elements.values() if isinstance(el, VSource)]
+    idx = {n: i for i, n in enumerate(nodes)}
+    size = len(nodes) + len(vsrc)
+    Y = sympy.zeros(size, size)
+
+    def add(r, c, v):
+        if r in idx and c in idx:
+            Y[idx[r], idx[c]] += v
+
+    for el in circuit.elements.values():
+        if isinstance(el, (Resistor, Capacitor)):
+            if el.name in skip:
+                continue
+            y = 1 / sympy.Rational(el.value) if isinstance(el, Resistor) else s * sympy.Rational(el.value)
+            add(el.a, el.a, y), add(el.b, el.b, y), add(el.a, el.b, -y), add(el.b, el.a, -y)
+        elif isinstance(el, VCCS):
+            g = sympy.Rational(el.gm)
+            add(el.p, el.cp, g), add(el.p, el.cn, -g), add(el.n, el.cp, -g), add(el.n, el.cn, g)
+        elif not isinstance(el, VSource):
+            raise TypeError(type(el).__name__)
+    for k, el in enumerate(vsrc):
+        row = len(nodes) + k
+        for node, sign in ((el.p, 1), (el.n, -1)):
+            if node in idx:
+                Y[idx[node], row] += sign
+                Y[row, idx[node]] += sign
+    poly = sympy.Poly(sympy.expand(Y.det(method="berkowitz")), s)
+    coeffs = poly.all_coeffs()[::-1]
+    return [sympy.Rational(c) / coeffs[0] for c in coeffs]
+
+
+def common_emitter(load=True, coupling=False):
+    """Invented "hydrophone preamp" common-emitter stage with hybrid-π values."""
+    c = Circuit("hydrophone preamp (invented)")
+    c.vsource("Vsig", "sig", "0")
+    if coupling:
+        c.resistor("Rsig", "sig", "x", 600)
+        c.capacitor("Cin", "x", "b", 4.7e-6)
+        c.resistor("Rbias", "b", "0", 8200)
+    else:
+        c.resistor("Rsig", "sig", "b", 600)
+    c.bjt("Q1", collector="c", base="b", emitter="e" if coupling else "0",
+          gm=0.08, rpi=2500, ro=50e3, rb=100, cpi=20e-12, cmu=2e-12, ccs=1e-12 if load else None)
+    c.resistor("Rc", "c", "0", 2200)
+    if coupling:
+        c.resistor("Re", "e", "0", 470)
+        c.capacitor("Ce", "e", "0", 100e-6)
+        c.capacitor("Cout", "c", "out", 1e-6)
+        c.resistor("RL", "out", "0", 10e3)
+        if load:
+            c.capacitor("CL", "out", "0", 10e-12)
+        c.output("out")
+    else:
+        if load:
+            c.capacitor("CL", "c", "0", 5e-12)
+        c.output("c")
+    return c
+
+
+def common_source(coupling=False):
+    """Invented "photodiode front end" common-source stage."""
+    c = Circuit("photodiode front end (invented)")
+    c.vsource("Vsig", "sig", "0")
+    if coupling:
+        c.resistor("Rsig", "sig", "x", 1000)
+        c.capacitor("Cin", "x", "g", 100e-9)
+        c.resistor("Rg", "g", "0", 1e6)
+        c.mosfet("M1", drain="d", gate="g", source="s", gm=5e-3, ro=40e3, cgs=1e-12, cgd=0.2e-12, cdb=0.3e-12)
+        c.resistor("Rs", "s", "0", 1000)
+        c.capacitor("Cs", "s", "0", 47e-6)
+    else:
+        c.resistor("Rsig", "sig", "g", 1000)
+        c.mosfet("M1", drain="d", gate="g", source="0", gm=5e-3, ro=40e3, cgs=1e-12, cgd=0.2e-12, cdb=0.3e-12)
+    c.resistor("Rd", "d", "0", 5000)
+    c.capacitor("CL", "d", "0", 2e-12)
+    c.output("d")
+    return c
+
+
+def ladder(n=4, r=1000.0, cap=1e-9):
+    """Invented "sensor cable model": an unbranched RC ladder, output at the far end."""
+    c = Circuit("sensor cable model (invented)")
+    c.vsource("Vsig", "n0", "0")
+    for k in range(1, n + 1):
+        c.resistor(f"R{k}", f"n{k - 1}", f"n{k}", r * k)
+        c.capacitor(f"C{k}", f"n{k}", "0", cap / k)
+    c.output(f"n{n}")
+    return c
+
+
+def follower(rs=600.0, cl=None):
+    """Invented "line driver" emitter follower; collector at signal ground."""
+    c = Circuit("line driver (invented)")
+    c.vsource("Vsig", "sig", "0")
+    c.resistor("Rsig", "sig", "b", rs)
+    c.bjt("Q1", collector="0", base="b", emitter="e", gm=0.04, rpi=5000, rb=200, cpi=15e-12, cmu=1e-12)
+    c.resistor("Re", "e", "0", 1000)
+    if cl:
+        c.capacitor("CL", "e", "0", cl)
+    c.output("e")
+    return c
