@@ -7,7 +7,7 @@ from pathlib import Path
 
 from PySide6.QtCore import QEvent, QMimeData, Qt
 from PySide6.QtGui import QAction, QGuiApplication, QKeySequence, QUndoStack
-from PySide6.QtWidgets import (QDockWidget, QLabel, QMainWindow, QSplitter, QVBoxLayout,
+from PySide6.QtWidgets import (QDockWidget, QLabel, QMainWindow, QScrollArea, QSplitter, QVBoxLayout,
                                QWidget)
 
 from engine.designfile import document_from_dict, document_to_dict, load_design, save_design
@@ -77,7 +77,13 @@ class MainWindow(QMainWindow):
         self.palette_panel = PartsPalette(self.theme, style)
         self.palette_panel.chosen.connect(self.controller.start_place)
         self.properties = PropertiesPanel(self.doc, self.editor, self.theme)
-        self.parts_dock = self._dock("Parts", self.palette_panel, Qt.DockWidgetArea.LeftDockWidgetArea)
+        palette_scroll = QScrollArea()
+        palette_scroll.setWidget(self.palette_panel)
+        palette_scroll.setWidgetResizable(True)
+        palette_scroll.setHorizontalScrollBarPolicy(Qt.ScrollBarPolicy.ScrollBarAlwaysOff)
+        palette_scroll.setFrameShape(QScrollArea.Shape.NoFrame)
+        palette_scroll.setMinimumWidth(self.palette_panel.sizeHint().width() + 16)
+        self.parts_dock = self._dock("Parts", palette_scroll, Qt.DockWidgetArea.LeftDockWidgetArea)
         self.properties_dock = self._dock("Properties", self.properties, Qt.DockWidgetArea.RightDockWidgetArea)
 
         self._make_actions()
