@@ -66,6 +66,12 @@ def _text(value, where: str, *, allow_empty=True) -> str:
         raise _fail(where, f"text longer than {MAX_TEXT} characters")
     if not allow_empty and not value:
         raise _fail(where, "is empty")
+    if not value.isascii():
+        try:
+            value.encode("utf-8")
+        except UnicodeEncodeError:
+            # A lone surrogate (JSON "\\ud800"): Python reads it, but no file can hold it.
+            raise _fail(where, "holds a broken character (an unpaired UTF-16 surrogate)") from None
     return value
 
 
@@ -99,7 +105,7 @@ def _part(raw, i: int) -> Part:
     if kind not in KINDS:
         raise _fail(where, f"unknown kind {kind!r} (known: {', '.join(KINDS)})")
     name = _text(raw["name"], f"{where} name", allow_empty=False)
-    if not NAME_RE.match(name):
+    if not NAME_RE.fullmatch(name):  # fullmatch: NAME_RE's $ lets a trailing newline through
         raise _fail(where, f"{name!r} is not a usable part name")
     where = f"part {name}"
     rotation = _int(raw.get("rotation", 0), f"{where} rotation")
@@ -219,7 +225,8 @@ def load_design(path) -> Document:
     except OSError as exc:
         raise DesignFileError(f"{path.name}: cannot be read ({exc.strerror or exc})") from None
     try:
-        data = json.loads(raw.decode("utf-8"), parse_constant=_refuse_constant)
+        data = json.loads(raw.decode("utf-8"), parse_constant=_refuse_constant,
+                          parse_int=_parse_int, object_pairs_hook=_refuse_duplicate_keys)
     except UnicodeDecodeError:
         raise DesignFileError(f"{path.name}: is not UTF-8 text") from None
     except RecursionError:
@@ -236,6 +243,23 @@ def _refuse_constant(name: str):
     raise ValueError(f"holds {name}, which is not a number a design can use")
 
 
+def _parse_int(text: str) -> int:
+    # Past ~4300 digits int() refuses with advice meant for programmers; say it plainly first.
+    if len(text.lstrip("-")) > 4000:
+        raise ValueError(f"holds a number {len(text.lstrip('-'))} digits long, which no design uses")
+    return int(text)
+
+
+def _refuse_duplicate_keys(pairs) -> dict:
+    # json keeps the last of repeated keys silently; a file that says two things is refused.
+    out = dict(pairs)
+    if len(out) != len(pairs):
+        seen = set()
+        twice = next(k for k, _ in pairs if k in seen or seen.add(k))
+        raise ValueError(f"holds the key {twice!r} twice in one object")
+    return out
+
+
 def save_design(doc: Document, path) -> None:
     """Write a design file atomically (temporary file, fsync, rename).
 
@@ -246,11 +270,24 @@ def save_design(doc: Document, path) -> None:
     """
     path = Path(path)
     text = json.dumps(document_to_dict(doc), indent=1, ensure_ascii=False) + "\n"
+    if len(text) > MAX_FILE_BYTES // 4:
+        # Indented, each coordinate takes a line: a big design could outgrow what load_design reads.
+        text = json.dumps(document_to_dict(doc), separators=(",", ":"), ensure_ascii=False) + "\n"
+    try:
+        data = text.encode("utf-8")
+    except UnicodeEncodeError as exc:
+        raise DesignFileError(f"{path.name}: could not be saved (a text holds a broken character at "
+                              f"{text[max(0, exc.start - 20):exc.start]!r}); the design is still open "
+                              "and unsaved") from None
+    if len(data) > MAX_FILE_BYTES:
+        raise DesignFileError(f"{path.name}: could not be saved: at {len(data) / 1e6:.1f} MB it would be "
+                              f"larger than a design file can be ({MAX_FILE_BYTES // (1024 * 1024)} MiB); "
+                              "the design is still open and unsaved")
     tmp = None
     try:
         fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=path.parent or ".")
-        with os.fdopen(fd, "w", encoding="utf-8") as fh:
-            fh.write(text)
+        with os.fdopen(fd, "wb") as fh:
+            fh.write(data)
             fh.flush()
             os.fsync(fh.fileno())
         os.replace(tmp, path)
