@@ -475,7 +475,8 @@ def _warnings(results, tests, gain, b1, oc, f_high_est, f_high_2nd, f_high, f_lo
     excess = 20 * math.log10(mag[top] / abs(gain))
     if excess > PEAKING_DB:
         notes.append(f"The exact gain peaks {excess:.1f} dB above the mid-band gain, at {_hz(freqs[top])}.")
-    if oc.exact is not None and len(oc.exact) >= 2 and abs(oc.exact[1]) > 0:
+    # A complex pair is reported above; dominance is a question about real poles.
+    if oc.exact is not None and len(oc.exact) >= 2 and abs(oc.exact[1]) > 0 and oc.exact[0].imag == 0:
         ratio = abs(oc.exact[0]) / abs(oc.exact[1])
         if ratio < DOMINANCE:
             p1, p2 = (1 / (2 * math.pi * abs(v)) for v in oc.exact[:2])

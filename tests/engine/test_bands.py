@@ -1,0 +1,144 @@
+"""The band test: which capacitors and inductors set the lower corner, which the upper, which none.
+
+All stages are invented scenarios (see bandstages.py).
+"""
+
+import pytest
+
+from bandstages import common_emitter, common_source, follower
+from engine import Circuit, CircuitError, analyze
+
+
+# Expected bands follow the usual reading of these stages: coupling and bypass capacitors
+# set the lower corner, device and load capacitors the upper one (Gray, Hurst, Lewis, Meyer,
+# Analysis and Design of Analog Integrated Circuits; from memory).
+def test_common_emitter_bands():
+    a = analyze(common_emitter(coupling=True))
+    bands = {n: r.band for n, r in a.capacitors.items()}
+    assert bands == {"Cin": "low", "Ce": "low", "Cout": "low",
+                     "Q1.cpi": "high", "Q1.cmu": "high", "Q1.ccs": "high", "CL": "high"}
+    assert not any(r.pinned or r.acts_in_band for r in a.capacitors.values())
+    assert a.midband_gain < 0 and a.dominant_high == "Q1.cmu" and a.dominant_low == "Ce"
+
+
+# As above, for the MOS stage (Razavi, Design of Analog CMOS Integrated Circuits; from memory).
+def test_common_source_bands():
+    a = analyze(common_source(coupling=True))
+    bands = {n: r.band for n, r in a.capacitors.items()}
+    assert bands == {"Cin": "low", "Cs": "low", "M1.cgs": "high", "M1.cgd": "high", "M1.cdb": "high",
+                     "CL": "high"}
+
+
+# The test's evidence is kept: opening a coupling capacitor drops the gain to nothing
+# (common practice, no source).
+def test_reason_keeps_the_two_gains():
+    a = analyze(common_emitter(coupling=True))
+    cin = a.capacitors["Cin"]
+    assert cin.gain_opened == 0 and cin.gain_shorted == pytest.approx(abs(a.midband_gain), rel=1e-3)
+    assert cin.reason.startswith("opening Cin drops the gain from 40.2 dB to −∞ dB")
+
+
+# A pin always wins and is shown as a pin (common practice, no source).
+def test_pin_overrides_the_test():
+    a = analyze(common_emitter(coupling=True), bands={"Ce": "high"})
+    ce = a.capacitors["Ce"]
+    assert ce.band == "high" and ce.pinned and ce.reason.startswith("pinned to the high band")
+    assert a.capacitors["Cin"].band == "low" and not a.capacitors["Cin"].pinned
+
+
+def test_pin_of_an_unknown_part_names_it():
+    with pytest.raises(CircuitError, match="Cx") as err:
+        analyze(common_emitter(coupling=True), bands={"Cx": "low"})
+    assert err.value.parts == ("Cx",)
+
+
+# A capacitor on a branch that only loads the ideal source, and one across that source,
+# cannot change the gain: both are neutral (common practice, no source).
+def test_neutral_capacitors():
+    c = common_emitter(coupling=True)
+    c.resistor("Rmon", "sig", "mon", 10e3)
+    c.resistor("Rmon2", "mon", "0", 10e3)
+    c.capacitor("Cmon", "mon", "0", 1e-6)
+    c.capacitor("Csrc", "sig", "0", 1e-9)
+    a = analyze(c)
+    for name in ("Cmon", "Csrc"):
+        r = a.capacitors[name]
+        assert r.band == "neutral" and r.resistance is None and r.share == 0
+        assert a.test_picture(name) is None
+    assert "ideal voltage source" in a.capacitors["Csrc"].reason
+    assert a.capacitors["Cmon"].reason.endswith("neutral")
+
+
+# A follower driving a capacitive load has an inductive output impedance and a complex
+# pole pair, so it peaks (Gray, Hurst, Lewis, Meyer, as above; from memory).
+def test_follower_with_load_capacitance_warns_of_peaking():
+    a = analyze(follower(rs=600, cl=20e-12))
+    assert a.b1 ** 2 < 4 * a.b2
+    assert any("complex poles" in w for w in a.warnings)
+    assert any("peaks" in w for w in a.warnings)
+    quiet = analyze(follower(rs=600))
+    assert not any("peaks" in w or "complex" in w for w in quiet.warnings)
+
+
+# A bypassed cascode base: opening the bypass only lets a little signal current into the
+# lower device's output resistance, a pole–zero pair without a corner (common practice,
+# no source). The stage is d.c.-coupled, so there is no lower corner at all.
+def test_bypassed_cascode_base_is_a_pole_zero_pair():
+    c = Circuit("hydrophone cascode (invented)")
+    c.vsource("Vsig", "sig", "0")
+    c.resistor("Rsig", "sig", "b1", 600)
+    c.bjt("Q1", collector="m", base="b1", emitter="0", gm=0.04, rpi=2500, ro=20e3, rb=100, cpi=20e-12, cmu=2e-12)
+    c.bjt("Q2", collector="out", base="b2", emitter="m", gm=0.04, rpi=2500, ro=50e3, rb=100, cpi=20e-12,
+          cmu=2e-12)
+    c.resistor("Rb1", "b2", "0", 100e3)
+    c.resistor("Rb2", "b2", "0", 100e3)
+    c.capacitor("Cb", "b2", "0", 10e-6)
+    c.resistor("Rc", "out", "0", 5000)
+    c.output("out")
+    a = analyze(c)
+    assert a.capacitors["Cb"].band == "low"
+    assert a.f_low_exact is None and a.f_low_ratio is None
+    assert any(w.startswith("Opening Cb costs only") and "pole–zero pair" in w for w in a.warnings)
+
+
+# The right-half-plane zero of a common-source stage sits at +g_m/C_gd (Razavi, as above;
+# from memory); here it is only a few times f_H away.
+def test_right_half_plane_zero_warning():
+    c = Circuit("antenna buffer (invented)")
+    c.vsource("Vsig", "sig", "0")
+    c.resistor("Rsig", "sig", "g", 50)
+    c.mosfet("M1", drain="d", gate="g", source="0", gm=1e-3, cgs=1e-12, cgd=2e-12)
+    c.resistor("Rd", "d", "0", 1000)
+    c.output("d")
+    a = analyze(c)
+    assert any("right-half-plane zero" in w for w in a.warnings)
+    assert any(abs(z - 1e-3 / 2e-12) < 1e-6 * 5e8 for z in a.zeros)
+
+
+# Two capacitors in series with nothing else at the node between them leave that node
+# without a d.c. path: an error naming the node (common practice, no source).
+def test_series_capacitors_name_the_node():
+    c = common_emitter(coupling=True)
+    c.capacitor("Cx1", "out", "mid", 1e-9)
+    c.capacitor("Cx2", "mid", "0", 1e-9)
+    with pytest.raises(CircuitError, match="mid") as err:
+        analyze(c)
+    assert "mid" in err.value.nodes and {"Cx1", "Cx2"} <= set(err.value.parts)
+
+
+# A tuned stage at resonance: shorting the tank capacitor kills the gain and opening it
+# leaves R‖jωL, so both states lower the gain; the same for the inductor. Both act inside
+# the band, and the resistive mid-band gain is g_m·R (common practice, no source).
+def test_tank_elements_act_inside_the_band():
+    c = Circuit("IF strip tank (invented)")
+    c.vsource("Vsig", "sig", "0")
+    c.vccs("Gm", "0", "t", "sig", "0", 10e-3)
+    c.resistor("Rt", "t", "0", 100)
+    c.inductor("Lt", "t", "0", 1e-6)
+    c.capacitor("Ct", "t", "0", 1e-9)
+    c.output("t")
+    a = analyze(c)
+    assert a.capacitors["Ct"].acts_in_band and a.inductors["Lt"].acts_in_band
+    assert a.midband_gain == pytest.approx(1.0, rel=1e-12)
+    assert sum("acts inside the band" in w for w in a.warnings) == 2
+    assert a.f_low_exact < a.midband_frequency < a.f_high_exact
