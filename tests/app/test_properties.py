@@ -1,0 +1,109 @@
+"""Field edits go through the engine's parser: a bad entry is shown with its reason, never taken."""
+
+from pathlib import Path
+
+from PySide6.QtCore import Qt
+from PySide6.QtWidgets import QComboBox
+
+from sheet import at, place
+
+
+def _entry(window, key):
+    return window.properties._entries[key]
+
+
+def _type(qtbot, edit, text):
+    """Type ``text`` and press Enter (characters beyond ASCII are inserted, as a paste would)."""
+    edit.setFocus()
+    edit.selectAll()
+    for ch in text:
+        if ch.isascii():
+            qtbot.keyClicks(edit, ch)
+        else:
+            edit.insert(ch)
+    qtbot.keyClick(edit, Qt.Key.Key_Return)
+
+
+def test_value_with_iec_code_is_taken_and_shown_formatted(qtbot, window):
+    r = place(qtbot, window, "Resistor", 100, 100)
+    entry = _entry(window, "value")
+    _type(qtbot, entry.edit, "4K7")
+    assert window.doc.parts[r].params["value"] == "4K7"
+    assert not entry.invalid and entry.note.text() == "4.7 kΩ"
+
+
+def test_bad_value_is_marked_with_the_reason_and_not_taken(qtbot, window):
+    r = place(qtbot, window, "Capacitor", 100, 100)
+    steps = window.stack.count()
+    entry = _entry(window, "value")
+    _type(qtbot, entry.edit, "4,7n")
+    assert window.doc.parts[r].params["value"] == "100n"
+    assert window.stack.count() == steps
+    assert entry.invalid and "C1" in entry.note.text() and "comma" in entry.note.text()
+    assert entry.edit.text() == "4,7n", "the rejected entry stays as typed"
+    _type(qtbot, entry.edit, "47 Ω")
+    assert entry.invalid and "farads" in entry.note.text()
+    _type(qtbot, entry.edit, "4n7")
+    assert window.doc.parts[r].params["value"] == "4n7" and not entry.invalid
+
+
+def test_rename_clash_is_refused_in_place(qtbot, window):
+    place(qtbot, window, "Resistor", 100, 100)
+    r2 = place(qtbot, window, "Resistor", 200, 100)
+    entry = _entry(window, "name")
+    _type(qtbot, entry.edit, "r1")
+    assert r2 in window.doc.parts and entry.invalid and "already the name of R1" in entry.note.text()
+    _type(qtbot, entry.edit, "Rload")
+    assert "Rload" in window.doc.parts and window.scene.selected_names() == ["Rload"]
+
+
+def test_transistor_switches_to_operating_point_with_derived_values(qtbot, window):
+    q = place(qtbot, window, "NPN transistor", 200, 200)
+    assert "gm" in window.properties._entries and "ic" not in window.properties._entries
+    boxes = [b for b in window.properties.findChildren(QComboBox) if b.findData("operating_point") >= 0]
+    boxes[0].setCurrentIndex(boxes[0].findData("operating_point"))
+    assert window.doc.parts[q].params["mode"] == "operating_point"
+    assert "ic" in window.properties._entries and "gm" not in window.properties._entries
+    derived = window.properties._derived
+    shown = {derived.itemAt(i, derived.ItemRole.LabelRole).widget().text(): derived.itemAt(
+        i, derived.ItemRole.FieldRole).widget().text() for i in range(derived.rowCount())}
+    assert shown["gm"].endswith("mS") and shown["rpi"].endswith("kΩ")
+    window.act_undo.trigger()
+    assert window.doc.parts[q].params["mode"] == "small_signal"
+
+
+def test_double_click_edits_the_value_in_place(qtbot, window):
+    r = place(qtbot, window, "Resistor", 100, 100)
+    window.scene.clearSelection()
+    qtbot.mouseDClick(window.view.viewport(), Qt.MouseButton.LeftButton, Qt.KeyboardModifier.NoModifier,
+                      at(window, 100, 100))
+    editor = window.inplace
+    assert editor is not None and editor.text() == "10k"
+    editor.setText("abc")
+    assert not editor.accept_text()
+    assert "R1" in editor.reason.text() and editor.reason.isVisible()
+    assert window.doc.parts[r].params["value"] == "10k"
+    editor.setText("2k2")
+    assert editor.accept_text()
+    assert window.doc.parts[r].params["value"] == "2k2"
+
+
+def test_problems_are_marked_where_they_are(qtbot, window):
+    r = place(qtbot, window, "Resistor", 100, 100)
+    problems = window.scene.problems
+    assert problems, "a lone resistor cannot be analysed"
+    marks = [i for i in window.scene.items() if type(i).__name__ == "ProblemItem"]
+    assert all(m.toolTip() for m in marks)
+    assert window.scene.part_item(r).problem
+    assert "problem" in window.problem_label.text()
+
+
+def test_complete_stage_shows_no_problem_marks(qtbot, window):
+    window.open_design(str(Path(__file__).with_name("invented_ce_stage.json")))
+    assert window.scene.problems == []
+    assert window.problem_label.text() == "Connections complete"
+    r = place(qtbot, window, "Resistor", 600, 300)
+    assert window.scene.problems, "a part touching nothing is reported"
+    assert any(r in p.parts for p in window.scene.problems)
+    window.act_undo.trigger()
+    assert window.scene.problems == []
