@@ -11,6 +11,7 @@ sum of the short-circuit reciprocal time constants.
 
 from __future__ import annotations
 
+import csv
 import math
 from dataclasses import dataclass
 
@@ -534,3 +535,28 @@ def verdict_data(analysis) -> VerdictData:
                        _corner_text("f_H", analysis.f_high_estimate, analysis.f_high_exact),
                        _corner_text("f_L", analysis.f_low_estimate, analysis.f_low_exact),
                        dominant, tuple(analysis.warnings))
+
+
+def write_curves_csv(data: BodeData, path) -> None:
+    """Write the plotted curves as CSV: one row per swept frequency.
+
+    Columns: ``frequency_hz``, ``exact_db``, ``exact_phase_deg``, ``estimate_db``,
+    ``estimate_phase_deg``. The estimate is the high-band first-order response above the
+    mid band and the low-band one below it (blank where neither is drawn). The dB are of
+    the gain unit (dB for V/V, dBΩ for V/A).
+
+    Parameters
+    ----------
+    data : BodeData
+    path : str or os.PathLike
+    """
+    estimate = {}
+    for curve in (data.low_estimate, data.high_estimate):
+        if curve is not None:
+            for f, m, ph in zip(curve.freq_hz, curve.magnitude_db, curve.phase_deg):
+                estimate[float(f)] = (f"{m:.6g}", f"{ph:.6g}")
+    with open(path, "w", newline="", encoding="utf-8") as fh:
+        out = csv.writer(fh)
+        out.writerow(["frequency_hz", "exact_db", "exact_phase_deg", "estimate_db", "estimate_phase_deg"])
+        for f, m, ph in zip(data.exact.freq_hz, data.exact.magnitude_db, data.exact.phase_deg):
+            out.writerow([f"{f:.6g}", f"{m:.6g}", f"{ph:.6g}", *estimate.get(float(f), ("", ""))])

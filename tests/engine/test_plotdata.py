@@ -184,3 +184,18 @@ def test_magnitude_view_keeps_the_corners_in_sight():
     notch = bode_data(_two_corner(response=lambda f: np.zeros(len(f))))
     assert np.all(notch.exact.magnitude_db == plotdata.DB_FLOOR)
     assert notch.magnitude_view_db[0] == pytest.approx(notch.midband_db - plotdata.VIEW_DEPTH_DB - 6.0)
+
+
+def test_curves_csv_has_every_swept_point_and_the_estimate_where_drawn(tmp_path):
+    import csv
+
+    d = bode_data(_two_corner())
+    path = tmp_path / "curves.csv"
+    plotdata.write_curves_csv(d, path)
+    with path.open(encoding="utf-8") as fh:
+        rows = list(csv.DictReader(fh))
+    assert len(rows) == len(d.exact.freq_hz)
+    assert float(rows[0]["frequency_hz"]) == pytest.approx(d.exact.freq_hz[0], rel=1e-5)
+    assert float(rows[-1]["exact_db"]) == pytest.approx(d.exact.magnitude_db[-1], abs=1e-4)
+    assert float(rows[-1]["estimate_db"]) == pytest.approx(d.high_estimate.magnitude_db[-1], abs=1e-4)
+    assert float(rows[0]["estimate_db"]) == pytest.approx(d.low_estimate.magnitude_db[0], abs=1e-4)
