@@ -1,0 +1,211 @@
+"""Relative sensitivities of the corners and the gain to every part value, by adjoint solves.
+
+For each part value x (a resistance, a capacitance, a g_m ...) this module gives
+d ln f / d ln x — "a 1 % rise in x moves f by this many per cent" — for the estimated and
+the exact upper and lower corners, and d ln |A_m| / d ln x for the mid-band gain.
+
+Estimates (method notes §7). With X = G⁻¹E and Y = G⁻ᵀE for the port columns E, a change
+of a stamp coefficient p_k with pattern P_k changes the port matrix by dZ = −Yᵀ P_k X, so
+b1 = Σ D_j Z_jj gives ∂b1/∂p_k = −Σ_ab P_k[a,b] (X D Yᵀ)[b,a], and ∂b1/∂D_j = Z_jj; and
+ω_L = tr((D Z)⁻¹) gives ∂ω_L/∂p_k = Σ_ab P_k[a,b] (X W⁻² D Yᵀ)[b,a] with W = D Z, and
+∂ω_L/∂ln D_j = −D_j (Z W⁻²)_jj. One solve set each for X and Y serves every part.
+
+Exact corners. A corner f solves F = ln|H(j2πf)| − ln|A_m| + ½ ln 2 = 0, so by the implicit
+function theorem d ln f / d ln p = −(∂F/∂ln p) / (∂F/∂ln f). With x = A⁻¹b and y = A⁻ᵀc for
+A = G + jωC, ∂H/∂p_k = −yᵀ(P_Gk + jω P_Ck)x and ∂H/∂ln ω = −jω yᵀCx; A_m likewise from the
+mid-band matrices. Both are analytic; the tests check them against central differences of
+the full analysis.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+from types import MappingProxyType
+from typing import Mapping
+
+import numpy as np
+
+from .analysis import midband_states
+from .bands import HIGH, LOW
+from .elements import Capacitor, Inductor, Resistor
+from .mna import build_system
+from .partvalues import PartValue, parametric_system, part_values
+from .timeconstants import port_columns, port_weights
+
+FIGURES = ("high_exact", "high_estimate", "low_exact", "low_estimate", "gain")
+"""The figures a :class:`Sensitivity` row holds, by attribute name."""
+
+FIGURE_TITLES = MappingProxyType({
+    "high_exact": "f_H exact", "high_estimate": "f_H estimated",
+    "low_exact": "f_L exact", "low_estimate": "f_L estimated", "gain": "|A_m|",
+})
+
+
+@dataclass(frozen=True)
+class Sensitivity:
+    """How one part value moves each figure; every entry is d ln(figure) / d ln(value).
+
+    Dimensionless: +1 means the figure rises in proportion to the value, −0.5 that a 1 %
+    rise in the value lowers the figure by 0.5 %. None where the design has no such figure.
+
+    Attributes
+    ----------
+    value : PartValue
+        The part value (element, part, label, unit, nominal).
+    high_exact, high_estimate : float or None
+        Of the exact upper corner, and of the open-circuit estimate 1/(2π b1).
+    low_exact, low_estimate : float or None
+        Of the exact lower corner, and of the short-circuit estimate ω_L/(2π).
+    gain : float
+        Of the resistive mid-band gain magnitude |A_m|.
+    """
+
+    value: PartValue
+    high_exact: float | None
+    high_estimate: float | None
+    low_exact: float | None
+    low_estimate: float | None
+    gain: float
+
+
+@dataclass(frozen=True)
+class Sensitivities:
+    """Sensitivities of every part value of a design.
+
+    Attributes
+    ----------
+    rows : tuple of Sensitivity
+        In circuit order.
+    """
+
+    rows: tuple
+
+    def ranked(self, figure: str = "high_exact") -> tuple:
+        """Rows with a value for ``figure`` (one of :data:`FIGURES`), largest magnitude first."""
+        if figure not in FIGURES:
+            raise ValueError(f"unknown figure {figure!r}; choose one of {', '.join(FIGURES)}")
+        have = [r for r in self.rows if getattr(r, figure) is not None]
+        return tuple(sorted(have, key=lambda r: -abs(getattr(r, figure))))
+
+    def by_part(self) -> Mapping[str, tuple]:
+        """Part name -> its rows (a transistor groups its g_m, r_π, C_π ...), in circuit order."""
+        out: dict = {}
+        for r in self.rows:
+            out.setdefault(r.value.part, []).append(r)
+        return MappingProxyType({k: tuple(v) for k, v in out.items()})
+
+
+def _coefficient_sign(circuit, names) -> np.ndarray:
+    """d ln p / d ln x: −1 for a resistor (p = 1/R), +1 for every other value."""
+    return np.array([-1.0 if isinstance(circuit.elements[n], Resistor) else 1.0 for n in names])
+
+
+def _pattern_terms(patterns: np.ndarray, M: np.ndarray) -> np.ndarray:
+    """Σ_ab P_k[a,b] M[b,a] for every pattern k."""
+    return np.einsum("kab,ba->k", patterns, M)
+
+
+def _ports(system, elements):
+    return port_columns(system, elements).toarray(), port_weights(elements)
+
+
+def _high_estimate(mid_sys, mid_ps, high, coef, sign, names):
+    if not high:
+        return None
+    E, D = _ports(mid_sys, high)
+    G = mid_sys.G.toarray()
+    X, Y = np.linalg.solve(G, E), np.linalg.solve(G.T, E)
+    z = np.einsum("ij,ij->j", E, X)
+    b1 = float(D @ z)
+    if not b1 > 0:
+        return None
+    d_b1 = -_pattern_terms(mid_ps.G_patterns, (X * D) @ Y.T) * coef * sign
+    at = {el.name: j for j, el in enumerate(high)}
+    for k, n in enumerate(names):
+        if n in at:
+            d_b1[k] += D[at[n]] * z[at[n]]
+    return -d_b1 / b1
+
+
+def _low_estimate(dc_sys, dc_ps, low, coef, sign, names):
+    if not low:
+        return None
+    U, D = _ports(dc_sys, low)
+    G = dc_sys.G.toarray()
+    X, Y = np.linalg.solve(G, U), np.linalg.solve(G.T, U)
+    Z = U.T @ X
+    W_inv = np.linalg.inv(D[:, None] * Z)
+    W2 = W_inv @ W_inv
+    omega = float(np.trace(W_inv))
+    if not omega > 0:
+        return None
+    d_omega = _pattern_terms(dc_ps.G_patterns, X @ (W2 * D[None, :]) @ Y.T) * coef * sign
+    at = {el.name: j for j, el in enumerate(low)}
+    ZW2 = Z @ W2
+    for k, n in enumerate(names):
+        if n in at:
+            d_omega[k] += -D[at[n]] * ZW2[at[n], at[n]]
+    return d_omega / omega
+
+
+def _midband_gain_terms(mid_sys, mid_ps, coef, sign):
+    G = mid_sys.G.toarray()
+    x = np.linalg.solve(G, mid_sys.b)
+    y = np.linalg.solve(G.T, mid_sys.c)
+    am = float(mid_sys.c @ x)
+    # d ln|A_m| / d p_k = −yᵀ P_k x / A_m (real network, so no real part needed).
+    d = -np.einsum("kab,a,b->k", mid_ps.G_patterns, y, x) / am
+    return d * coef * sign
+
+
+def _corner_exact(full_sys, full_ps, f_hz, d_gain, coef, sign):
+    if f_hz is None:
+        return None
+    w = 2 * math.pi * f_hz
+    A = full_sys.G.toarray() + 1j * w * full_sys.C.toarray()
+    x = np.linalg.solve(A, full_sys.b.astype(complex))
+    y = np.linalg.solve(A.T, full_sys.c.astype(complex))
+    H = full_sys.c @ x
+    dA = full_ps.G_patterns + 1j * w * full_ps.C_patterns
+    d_lnH = (-np.einsum("kab,a,b->k", dA, y, x) / H).real * coef * sign
+    d_lnH_dlnw = (-1j * w * (y @ full_sys.C.toarray() @ x) / H).real
+    return -(d_lnH - d_gain) / d_lnH_dlnw
+
+
+def sensitivities(circuit, analysis) -> Sensitivities:
+    """d ln(figure) / d ln(value) for every part value of ``circuit``.
+
+    Parameters
+    ----------
+    circuit : engine.circuit.Circuit
+    analysis : engine.analysis.Analysis
+        Its analysis (bands, exact corners).
+
+    Returns
+    -------
+    Sensitivities
+    """
+    pvs = part_values(circuit)
+    names = [p.element for p in pvs]
+    reactive = [el for el in circuit.elements.values() if isinstance(el, (Capacitor, Inductor))]
+    bands = {name: r.band for name, r in analysis.elements.items()}
+    states = midband_states(reactive, bands)
+    mid_sys, dc_sys = build_system(circuit, states), build_system(circuit)
+    mid_ps = parametric_system(circuit, names, states)
+    full_ps = parametric_system(circuit, names)
+    coef, sign = full_ps.coefficients, _coefficient_sign(circuit, names)
+    high = [el for el in reactive if bands[el.name] == HIGH]
+    low = [el for el in reactive if bands[el.name] == LOW]
+    hi_est = _high_estimate(mid_sys, mid_ps, high, coef, sign, names)
+    lo_est = _low_estimate(dc_sys, full_ps, low, coef, sign, names)
+    d_gain = _midband_gain_terms(mid_sys, mid_ps, coef, sign)
+    hi_ex = _corner_exact(dc_sys, full_ps, analysis.f_high_exact, d_gain, coef, sign)
+    lo_ex = _corner_exact(dc_sys, full_ps, analysis.f_low_exact, d_gain, coef, sign)
+
+    def at(v, k):
+        return None if v is None else float(v[k])
+
+    rows = tuple(Sensitivity(pv, at(hi_ex, k), at(hi_est, k), at(lo_ex, k), at(lo_est, k), float(d_gain[k]))
+                 for k, pv in enumerate(pvs))
+    return Sensitivities(rows)
