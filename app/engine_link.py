@@ -86,8 +86,11 @@ def check_field(doc: Document, part: Part, f: Field, text: str) -> FieldCheck:
     return FieldCheck(True, _formatted(value, f))
 
 
-def shown_value(part: Part, f: Field) -> str:
-    """A field's value as a label shows it: formatted if it reads, the raw text if not."""
+def shown_value(part: Part, f: Field, *, unit: bool = True) -> str:
+    """A field's value as a label shows it: formatted if it reads, the raw text if not.
+
+    ``unit=False`` leaves the unit off (a gain in V/V reads better as a bare number).
+    """
     text = part.params.get(f.key, "")
     if not is_numeric(f) or not text.strip():
         return text
@@ -95,7 +98,7 @@ def shown_value(part: Part, f: Field) -> str:
         value = parse_field(part.name, f, text)
     except BadValueError:
         return text
-    return _formatted(value, f)
+    return _formatted(value, f) if unit else format_value(value)
 
 
 def _formatted(value: float, f: Field) -> str:

@@ -58,11 +58,11 @@ def value_lines(part: Part) -> list[str]:
     if kind == "vccs":
         return [f"gm {shown_value(part, fields['gm'])}"]
     if kind == "vcvs":
-        return [f"×{shown_value(part, fields['gain'])}"]
-    if kind in ("cccs", "ccvs"):
-        key = "gain" if kind == "cccs" else "r"
-        mult = "×" if kind == "cccs" else ""
-        return [f"{mult}{shown_value(part, fields[key])} · I({part.params.get('sensed', '')})"]
+        return [f"×{shown_value(part, fields['gain'], unit=False)}"]
+    if kind == "cccs":
+        return [f"×{shown_value(part, fields['gain'], unit=False)} · I({part.params.get('sensed', '')})"]
+    if kind == "ccvs":
+        return [f"{shown_value(part, fields['r'])} · I({part.params.get('sensed', '')})"]
     if kind in ("bjt", "mosfet"):
         keys = {("bjt", "small_signal"): ("gm", "rpi"), ("bjt", "operating_point"): ("ic", "beta"),
                 ("mosfet", "small_signal"): ("gm", "ro"), ("mosfet", "operating_point"): ("id", "vov")}
@@ -72,7 +72,7 @@ def value_lines(part: Part) -> list[str]:
                 shown.append(f"{_field_caption(fields[key].label)} {shown_value(part, fields[key])}")
         return shown
     if kind == "opamp":
-        return [f"A₀ {shown_value(part, fields['a0'])}", f"fᵤ {shown_value(part, fields['fu'])}"]
+        return [f"A₀ {shown_value(part, fields['a0'], unit=False)}", f"fᵤ {shown_value(part, fields['fu'])}"]
     return []
 
 
@@ -96,19 +96,35 @@ def _stroke(path: QPainterPath, width: float) -> QPainterPath:
 
 
 def _place_beside(body: QRectF, size: tuple, blocked: QPainterPath, avoid: list) -> QRectF:
-    """The first spot beside ``body`` (right, left, above, below) that clears leads and ``avoid``."""
+    """The spot beside ``body`` (right, left, above, below, in that preference) that clears
+    the leads, pins and ``avoid``; if none is clear, the one that covers the least of them."""
     w, h = size
     c = body.center()
     spots = (
         QRectF(body.right() + LABEL_GAP, c.y() - h / 2, w, h),
         QRectF(body.left() - LABEL_GAP - w, c.y() - h / 2, w, h),
-        QRectF(c.x() - w / 2, body.top() - LABEL_GAP / 2 - h, w, h),
-        QRectF(c.x() - w / 2, body.bottom() + LABEL_GAP / 2, w, h),
+        QRectF(c.x() - w / 2, body.top() - LABEL_GAP - h, w, h),
+        QRectF(c.x() - w / 2, body.bottom() + LABEL_GAP, w, h),
     )
+
+    def covered(spot: QRectF) -> float:
+        box = QPainterPath()
+        box.addRect(spot)
+        hit = blocked.intersected(box).boundingRect()
+        return hit.width() * hit.height() + sum(1e4 for r in avoid if spot.intersects(r))
+
     for spot in spots:
-        if not blocked.intersects(spot) and not any(spot.intersects(r) for r in avoid):
+        if covered(spot) == 0:
             return spot
-    return spots[0]
+    return min(spots, key=covered)
+
+
+def _blocked(symbol: Symbol, pins) -> QPainterPath:
+    """Where labels must not go: the leads and outline, and a ring round each pin."""
+    blocked = _stroke(symbol.lines, 4).united(_stroke(symbol.heavy, 4))
+    for x, y in pins:
+        blocked.addEllipse(QPointF(x, y), 8, 8)
+    return blocked
 
 
 class PartItem(QGraphicsItem):
@@ -122,6 +138,7 @@ class PartItem(QGraphicsItem):
         self._hover = False
         self._accent: QColor | None = None
         self._problem: str | None = None
+        self._outline = False
         self._is_input = False
         self.part = part
         self.setZValue(Z_PREVIEW if ghost else Z_PART)
@@ -148,7 +165,7 @@ class PartItem(QGraphicsItem):
         self._symbol: Symbol = own.mapped(frame_transform(part.rotation, part.mirror))
         self._texts: list[_Text] = []
         self._badge: QRectF | None = None
-        blocked = _stroke(self._symbol.lines, 6).united(_stroke(self._symbol.heavy, 6))
+        blocked = _blocked(self._symbol, [(x - part.x, y - part.y) for x, y in part.pins().values()])
         rects = []
         if part.kind == "label":
             self._place_net_name(own, part, nf)
@@ -214,9 +231,14 @@ class PartItem(QGraphicsItem):
         self._accent = colour
         self.update()
 
-    def set_problem(self, message: str | None) -> None:
-        """Mark the part as at fault with the engine's message as tooltip, or clear the mark."""
+    def set_problem(self, message: str | None, *, outline: bool = True) -> None:
+        """Give the part the engine's message as tooltip, or clear it.
+
+        ``outline`` rings the part; it is left off when the fault is already marked at its
+        pins, so a half-wired sketch is not boxed all over.
+        """
         self._problem = message
+        self._outline = bool(message) and outline
         self.setToolTip(message or "")
         self.update()
 
@@ -266,7 +288,7 @@ class PartItem(QGraphicsItem):
         painter.setPen(Qt.PenStyle.NoPen)
         painter.setBrush(QBrush(ink))
         painter.drawPath(sym.solid)
-        if self._problem:
+        if self._outline:
             painter.setBrush(Qt.BrushStyle.NoBrush)
             painter.setPen(QPen(t.problem, 1.5, Qt.PenStyle.DashLine))
             painter.drawRoundedRect(sym.body.adjusted(-5, -5, 5, 5), 4, 4)

@@ -122,11 +122,14 @@ class SchematicScene(QGraphicsScene):
         for item in self._problem_marks:
             self.addItem(item)
         faults: dict[str, list[str]] = {}
+        pointless: set[str] = set()
         for pr in self.problems:
             for name in pr.parts:
                 faults.setdefault(name, []).append(pr.message)
+                if not pr.points:
+                    pointless.add(name)
         for name, item in self._parts.items():
-            item.set_problem("\n".join(faults[name]) if name in faults else None)
+            item.set_problem("\n".join(faults[name]) if name in faults else None, outline=name in pointless)
 
     # -- looks ---------------------------------------------------------------------
     def set_theme(self, theme: Theme, style: ResistorStyle) -> None:

@@ -28,17 +28,28 @@ class ResistorStyle(Enum):
 class Symbol:
     """A symbol's outline: ``lines`` stroked, ``solid`` filled, ``heavy`` stroked thick.
 
-    ``body`` bounds the symbol without its leads, for placing labels beside it.
+    ``body`` bounds the symbol without its leads, for placing labels beside it. ``signs``
+    are polarity marks (x, y, "+" or "-", half-size): they move with the symbol but stay
+    upright, since a minus turned a quarter would read as a bar.
     """
 
     lines: QPainterPath
     solid: QPainterPath
     heavy: QPainterPath
     body: QRectF
+    signs: tuple = ()
 
     def mapped(self, t: QTransform) -> "Symbol":
-        """The symbol in another frame (the sheet's axes after mirror and rotation)."""
-        return Symbol(t.map(self.lines), t.map(self.solid), t.map(self.heavy), t.mapRect(self.body))
+        """The symbol in another frame (the sheet's axes after mirror and rotation), signs drawn in."""
+        lines = t.map(self.lines)
+        for x, y, sign, size in self.signs:
+            c = t.map(QPointF(x, y))
+            lines.moveTo(c.x() - size, c.y())
+            lines.lineTo(c.x() + size, c.y())
+            if sign == "+":
+                lines.moveTo(c.x(), c.y() - size)
+                lines.lineTo(c.x(), c.y() + size)
+        return Symbol(lines, t.map(self.solid), t.map(self.heavy), t.mapRect(self.body))
 
 
 def frame_transform(rotation: int, mirror: bool) -> QTransform:
@@ -55,6 +66,7 @@ class _Pen:
         self.lines = QPainterPath()
         self.solid = QPainterPath()
         self.heavy = QPainterPath()
+        self.signs = []
 
     def line(self, *pts):
         self.lines.moveTo(*pts[0])
@@ -84,14 +96,13 @@ class _Pen:
         self.solid.addPath(head_path)
 
     def plus(self, cx, cy, s=4.0):
-        self.line((cx - s, cy), (cx + s, cy))
-        self.line((cx, cy - s), (cx, cy + s))
+        self.signs.append((cx, cy, "+", s))
 
     def minus(self, cx, cy, s=4.0):
-        self.line((cx - s, cy), (cx + s, cy))
+        self.signs.append((cx, cy, "-", s))
 
     def done(self, body: QRectF) -> Symbol:
-        return Symbol(self.lines, self.solid, self.heavy, body)
+        return Symbol(self.lines, self.solid, self.heavy, body, tuple(self.signs))
 
 
 G = GRID
