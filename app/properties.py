@@ -21,8 +21,16 @@ from .theme import Theme
 
 MODE_NAMES = {"small_signal": "Small-signal values", "operating_point": "Operating point"}
 BAND_NAMES = {None: "Decided by the estimate", "low": "Low band", "high": "High band"}
-DERIVED_UNITS = {"gm": "S", "rpi": "Ω", "ro": "Ω", "cpi": "F", "cmu": "F", "rb": "Ω", "gmb": "S",
-                 "cgs": "F", "cgd": "F", "ft": "Hz", "ic": "A", "id": "A", "beta": ""}
+DERIVED_UNITS = {"gm": "S", "rpi": "Ω", "ro": "Ω", "cpi": "F", "cmu": "F", "ccs": "F", "rb": "Ω", "gmb": "S",
+                 "cgs": "F", "cgd": "F", "cdb": "F", "csb": "F", "vt": "V", "a0": "", "fu": "Hz", "fp": "Hz",
+                 "rout": "Ω", "rin": "Ω"}
+DERIVED_LABELS = {"vt": "V_T", "fp": "f_p"}
+
+
+def caption(label: str) -> str:
+    """A catalogue label as rich text: the part after "_" becomes a subscript (r_π -> rπ with π low)."""
+    head, _, sub = label.partition("_")
+    return f"{head}<sub>{sub}</sub>" if sub else label
 
 
 class _Entry(QWidget):
@@ -188,7 +196,7 @@ class PropertiesPanel(QWidget):
             self._entries[f.key] = entry
             verdict = check_field(self.doc, part, f, entry.edit.text())
             entry.show_verdict(verdict.ok, verdict.shown)
-            form.addRow(f.label, entry)
+            form.addRow(caption(f.label), entry)
         if part.kind in ("vsource", "isource"):
             check = QCheckBox("Carries the input signal")
             check.setChecked(self.doc.input_source == part.name)
@@ -287,10 +295,13 @@ class PropertiesPanel(QWidget):
             note.setWordWrap(True)
             self._derived.addRow(note)
             return
+        kind = KINDS[self.doc.parts[self.part_name].kind]
+        labels = {f.key: f.label for f in kind.fields} | DERIVED_LABELS
         for key, value in values.items():
             shown = QLabel(format_value(value, DERIVED_UNITS.get(key, "")))
+            shown.setObjectName(f"derived_{key}")
             shown.setTextInteractionFlags(Qt.TextInteractionFlag.TextSelectableByMouse)
-            self._derived.addRow(key, shown)
+            self._derived.addRow(caption(labels.get(key, key)), shown)
 
     def focus_field(self, key: str) -> None:
         """Put the cursor in one field's entry (when a part is shown)."""

@@ -64,10 +64,11 @@ def test_transistor_switches_to_operating_point_with_derived_values(qtbot, windo
     boxes[0].setCurrentIndex(boxes[0].findData("operating_point"))
     assert window.doc.parts[q].params["mode"] == "operating_point"
     assert "ic" in window.properties._entries and "gm" not in window.properties._entries
-    derived = window.properties._derived
-    shown = {derived.itemAt(i, derived.ItemRole.LabelRole).widget().text(): derived.itemAt(
-        i, derived.ItemRole.FieldRole).widget().text() for i in range(derived.rowCount())}
-    assert shown["gm"].endswith("mS") and shown["rpi"].endswith("kΩ")
+    from PySide6.QtWidgets import QLabel
+    shown = {label.objectName(): label.text() for label in window.properties.findChildren(QLabel)
+             if label.objectName().startswith("derived_")}
+    assert shown["derived_gm"].endswith("mS") and shown["derived_rpi"].endswith("kΩ")
+    assert shown["derived_vt"].endswith("mV")
     window.act_undo.trigger()
     assert window.doc.parts[q].params["mode"] == "small_signal"
 
