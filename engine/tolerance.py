@@ -32,7 +32,7 @@ from .analysis import midband_states
 from .elements import Capacitor, Inductor
 from .errors import CircuitError
 from .partvalues import PartValue, coefficients_for, parametric_system, part_values
-from .targets import Targets
+from .values import format_value
 
 _SRC_COMMON = "common practice, no source"
 DEFAULT_TOLERANCES = MappingProxyType({
@@ -357,9 +357,7 @@ def _histogram(figure, unit, values, nominal, lines) -> Histogram:
     return Histogram(figure, unit, edges, counts, nominal, lines, int(values.size - good.size))
 
 
-def _target_lines(targets: Targets | None, figure: str, gain_unit: str) -> tuple:
-    from .values import format_value
-
+def _target_lines(targets: "engine.targets.Targets | None", figure: str, gain_unit: str) -> tuple:
     if targets is None:
         return ()
     if figure == "f_high" and targets.f_high_min is not None:
@@ -372,7 +370,7 @@ def _target_lines(targets: Targets | None, figure: str, gain_unit: str) -> tuple
     return ()
 
 
-def _yields(targets: Targets | None, fh, fl, gain) -> dict:
+def _yields(targets: "engine.targets.Targets | None", fh, fl, gain) -> dict:
     if targets is None or targets.is_empty():
         return {}
     # NaN means "no corner was found near the nominal one": a failure, never a silent pass.
@@ -395,7 +393,7 @@ def _check_samples(samples: int) -> None:
 
 
 def monte_carlo(circuit, analysis, tolerances=None, *, samples: int = 10_000, seed: int = 1,
-                targets: Targets | None = None, gain_unit: str = "V/V",
+                targets: "engine.targets.Targets | None" = None, gain_unit: str = "V/V",
                 progress: Callable[[int, int], None] | None = None,
                 cancel: Callable[[], bool] | None = None) -> Spread:
     """Draw ``samples`` designs within the tolerances and find each one's exact figures.

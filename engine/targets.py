@@ -1,0 +1,576 @@
+"""Design targets: what the document asks for, whether the stage meets it, and what would.
+
+A design may hold a minimum upper corner f_H, a maximum lower corner f_L and a mid-band gain
+with a tolerance (texts, see :data:`engine.document.TARGET_KEYS`). :func:`parse_targets`
+reads them; :func:`check_targets` judges the exact figures of an analysis against them and
+says beside each what the time-constant estimate would have said; :func:`values_that_meet`
+finds, per part field, the single value that alone meets a failing target.
+"""
+
+from __future__ import annotations
+
+import math
+import re
+from dataclasses import dataclass
+
+from scipy.optimize import brentq
+
+from . import eseries
+from .analysis import analyze
+from .devices import given_from_params
+from .document import Document
+from .errors import BadValueError, CircuitError
+from .netlist import NO_ELEMENT, design_to_circuit
+from .parts import KINDS
+from .tolerance import Cancelled
+from .values import format_value, parse_value
+
+DEFAULT_GAIN_TOLERANCE_DB = 1.0
+"""The gain window when a gain target has no tolerance: ±1 dB (common practice, no source)."""
+
+TARGET_LABELS = {"f_high_min": "minimum f_H", "f_low_max": "maximum f_L",
+                 "gain": "mid-band gain", "gain_tolerance": "gain tolerance"}
+"""How messages and tables name each target field."""
+
+_DB = re.compile(r"^\s*(?P<num>[+-]?[0-9.]+(?:[eE][+-]?[0-9]+)?)\s*dB\s*$")
+_PERCENT = re.compile(r"^\s*(?P<num>[0-9.]+(?:[eE][+-]?[0-9]+)?)\s*%\s*$")
+
+
+@dataclass(frozen=True)
+class Targets:
+    """The targets a design holds, in SI units; None where a target is not set.
+
+    Attributes
+    ----------
+    f_high_min : float or None
+        The upper −3 dB corner must be at least this, Hz.
+    f_low_max : float or None
+        The lower −3 dB corner must be at most this, Hz.
+    gain : float or None
+        Wanted mid-band gain magnitude |A_m|, V/V (Ω for a current input); its sign is
+        not judged, since an inverting stage is as good as a follower of the same size.
+    gain_min, gain_max : float or None
+        The window |A_m| must fall in (same unit as ``gain``).
+    gain_window_text : str
+        How the window was given, e.g. ``"±10 %"`` or ``"±1 dB (default)"``.
+    """
+
+    f_high_min: float | None = None
+    f_low_max: float | None = None
+    gain: float | None = None
+    gain_min: float | None = None
+    gain_max: float | None = None
+    gain_window_text: str = ""
+
+    def is_empty(self) -> bool:
+        """Whether no target is set."""
+        return self.f_high_min is None and self.f_low_max is None and self.gain is None
+
+
+def _bad(key: str, text: str, problem: str) -> BadValueError:
+    return BadValueError(f"Target {TARGET_LABELS[key]}: '{text.strip()}' {problem}",
+                         part=None, field=key, text=text)
+
+
+def _gain(text: str) -> float:
+    m = _DB.match(text)
+    if m:
+        return 10 ** (float(m["num"]) / 20)
+    value = parse_value(text, unit="V/V", field=f"target {TARGET_LABELS['gain']}",
+                        allow_negative=True)
+    return abs(value)
+
+
+def _window(text: str, gain: float) -> tuple:
+    m = _DB.match(text)
+    if m:
+        db = abs(float(m["num"]))
+        return gain * 10 ** (-db / 20), gain * 10 ** (db / 20), f"±{db:g} dB"
+    m = _PERCENT.match(text)
+    if m:
+        frac = float(m["num"]) / 100
+        if frac >= 1:
+            raise _bad("gain_tolerance", text, "is 100 % or more; give a window narrower than the gain itself")
+        return gain * (1 - frac), gain * (1 + frac), f"±{float(m['num']):g} %"
+    raise _bad("gain_tolerance", text, "is not a tolerance: write a percentage (10 %) or decibels (1 dB)")
+
+
+def parse_targets(targets) -> Targets:
+    """Read a document's target texts.
+
+    Parameters
+    ----------
+    targets : Mapping[str, str]
+        :attr:`engine.document.Document.targets`: ``f_high_min`` and ``f_low_max`` in Hz
+        (``"1M"``, ``"20 Hz"``), ``gain`` in V/V or dB (``"-100"``, ``"40 dB"``),
+        ``gain_tolerance`` as a percentage or in dB (``"10 %"``, ``"1 dB"``).
+
+    Returns
+    -------
+    Targets
+
+    Raises
+    ------
+    BadValueError
+        A target text does not read; the message names the target and what to write.
+    """
+    def hz(key):
+        text = (targets.get(key) or "").strip()
+        if not text:
+            return None
+        return parse_value(text, unit="Hz", field=f"target {TARGET_LABELS[key]}")
+
+    f_high, f_low = hz("f_high_min"), hz("f_low_max")
+    gain_text = (targets.get("gain") or "").strip()
+    tol_text = (targets.get("gain_tolerance") or "").strip()
+    if not gain_text:
+        if tol_text:
+            raise _bad("gain_tolerance", tol_text, "has no gain to apply to: set the gain target too, "
+                                                   "or clear the tolerance")
+        return Targets(f_high, f_low)
+    gain = _gain(gain_text)
+    if gain == 0:
+        raise _bad("gain", gain_text, "is zero; a gain target must be a size the stage should reach")
+    if tol_text:
+        lo, hi, shown = _window(tol_text, gain)
+    else:
+        d = DEFAULT_GAIN_TOLERANCE_DB
+        lo, hi, shown = gain * 10 ** (-d / 20), gain * 10 ** (d / 20), f"±{d:g} dB (default)"
+    return Targets(f_high, f_low, gain, lo, hi, shown)
+
+
+def _usable(x) -> bool:
+    return x is not None and math.isfinite(x) and x > 0
+
+
+def meets(targets: Targets, f_high, f_low, gain) -> dict:
+    """Which targets a set of figures meets.
+
+    Parameters
+    ----------
+    targets : Targets
+    f_high, f_low : float or None
+        Upper and lower corners, Hz; None (or NaN) when the gain never falls 3 dB on that
+        side, which meets a minimum f_H or a maximum f_L.
+    gain : float
+        Mid-band gain, V/V (or Ω), signed.
+
+    Returns
+    -------
+    dict
+        Target key -> bool, for the targets that are set.
+    """
+    out = {}
+    if targets.f_high_min is not None:
+        out["f_high_min"] = not _usable(f_high) or f_high >= targets.f_high_min
+    if targets.f_low_max is not None:
+        out["f_low_max"] = not _usable(f_low) or f_low <= targets.f_low_max
+    if targets.gain is not None:
+        out["gain"] = targets.gain_min <= abs(gain) <= targets.gain_max
+    return out
+
+
+@dataclass(frozen=True)
+class TargetCheck:
+    """One target judged on the exact figures, with the estimate's verdict beside it.
+
+    Attributes
+    ----------
+    key : str
+        ``"f_high_min"``, ``"f_low_max"`` or ``"gain"``.
+    target_text : str
+        The target as shown, e.g. ``"f_H ≥ 1 MHz"``.
+    exact : float or None
+        The exact figure (Hz, or |A_m| in V/V); None where there is no corner.
+    estimate : float or None
+        The time-constant estimate of the same figure (Hz); for the gain, the same as exact.
+    passed : bool
+        Whether the exact figure meets the target.
+    margin : float or None
+        How far inside (positive) or outside (negative) the target the exact figure is:
+        a fraction of the target for a corner, dB for the gain; None where there is no corner.
+    estimate_passed : bool or None
+        What the estimate would have said; None where there is no estimate.
+    text : str
+        The verdict line, e.g. ``"f_H = 1.2 MHz ≥ 1 MHz: pass by 20 % (the estimate, 950 kHz,
+        would have said fail)"``.
+    """
+
+    key: str
+    target_text: str
+    exact: float | None
+    estimate: float | None
+    passed: bool
+    margin: float | None
+    estimate_passed: bool | None
+    text: str
+
+
+def _fmt(value: float, unit: str, digits: int = 3) -> str:
+    """A value with its unit; a per-volt value keeps its prefix apart from the unit."""
+    if unit == "1/V":
+        return f"{format_value(value, '', digits)} /V"
+    return format_value(value, unit, digits)
+
+
+def _corner_check(key, sym, op, target, exact, estimate) -> TargetCheck:
+    minimum = key == "f_high_min"
+    target_text = f"{sym} {op} {format_value(target, 'Hz')}"
+
+    def ok(f):
+        return None if f is None else (not _usable(f) or (f >= target if minimum else f <= target))
+
+    if not _usable(exact):
+        exact = None
+        passed, margin = True, None
+        head = f"no {'upper' if minimum else 'lower'} corner (the gain never falls 3 dB): {target_text} met"
+    else:
+        passed = ok(exact)
+        margin = exact / target - 1 if minimum else target / exact - 1
+        word = "pass" if passed else "fail"
+        head = f"{sym} = {format_value(exact, 'Hz')} {op} {format_value(target, 'Hz')}: {word} by {abs(margin) * 100:.0f} %"
+        if not passed:
+            head = f"{sym} = {format_value(exact, 'Hz')}, not {op} {format_value(target, 'Hz')}: fail, " \
+                   f"{abs(margin) * 100:.0f} % short"
+    est = estimate if _usable(estimate) else None
+    est_ok = ok(est)
+    if est is None:
+        tail = " (no estimate)"
+    else:
+        agree = "agrees" if est_ok == passed else "would have said " + ("pass" if est_ok else "fail")
+        tail = f" (the estimate, {format_value(est, 'Hz')}, {agree})"
+    return TargetCheck(key, target_text, exact, est, passed, margin, est_ok, head + tail)
+
+
+def _db(x: float) -> float:
+    return 20 * math.log10(x)
+
+
+def check_targets(targets: Targets, analysis, gain_unit: str = "V/V") -> tuple:
+    """Judge an analysis against the targets.
+
+    Parameters
+    ----------
+    targets : Targets
+    analysis : engine.analysis.Analysis
+    gain_unit : str, optional
+        ``"V/V"`` for a voltage input, ``"Ω"`` for a current input.
+
+    Returns
+    -------
+    tuple of TargetCheck
+        One per target that is set, in the order f_H, f_L, gain.
+    """
+    out = []
+    if targets.f_high_min is not None:
+        out.append(_corner_check("f_high_min", "f_H", "≥", targets.f_high_min,
+                                 analysis.f_high_exact, analysis.f_high_estimate))
+    if targets.f_low_max is not None:
+        out.append(_corner_check("f_low_max", "f_L", "≤", targets.f_low_max,
+                                 analysis.f_low_exact, analysis.f_low_estimate))
+    if targets.gain is not None:
+        g = abs(float(analysis.midband_gain))
+        passed = targets.gain_min <= g <= targets.gain_max
+        if g > 0:
+            margin = min(_db(g) - _db(targets.gain_min), _db(targets.gain_max) - _db(g))
+        else:
+            margin = -math.inf
+        wanted = f"{format_value(targets.gain, gain_unit)} {targets.gain_window_text}"
+        target_text = f"|A_m| = {wanted}"
+        if g > 0:
+            word = "pass, inside the window by" if passed else "fail, outside the window by"
+            text = f"|A_m| = {format_value(g, gain_unit)} against {wanted}: {word} {abs(margin):.2f} dB"
+        else:
+            text = f"|A_m| = 0: no signal reaches the output; {target_text} failed"
+        out.append(TargetCheck("gain", target_text, g, g, passed, margin, passed, text))
+    return tuple(out)
+
+
+# -- the value that meets it -------------------------------------------------------------------
+SEARCH_DECADES = 2.0
+"""How far a part's value is searched: from 1/100 to 100 times its present value."""
+_ROOT_XTOL = 1e-5
+"""brentq's tolerance on ln(value): the root is found to 0.001 %."""
+_STANDARD_FIELDS = {"resistor": "Ω", "capacitor": "F", "inductor": "H"}
+"""Kinds whose value is bought from an IEC 60063 series."""
+_SKIP_FIELDS = {"temp"}
+"""Fields that are conditions of use, not a design choice (the temperature)."""
+_PARSER_UNITS = {"Ω", "F", "H", "S", "V/V", "A/A", "V", "A", "Hz", "K"}
+
+
+@dataclass(frozen=True)
+class Knob:
+    """A field of a part that the designer can set to a number.
+
+    Attributes
+    ----------
+    part : str
+        The part's name.
+    key : str
+        The field's key (``"value"``, ``"ic"``, ``"gm"`` ...).
+    label : str
+        How a table names it (``"RC"``, ``"Q1 I_C"``).
+    unit : str
+        The field's unit (``"Ω"``, ``"A"``, ``""`` for β).
+    nominal : float
+        The value the field holds now, SI units (signed for a gain).
+    standard : bool
+        Whether the value is bought from an E series (resistors, capacitors, inductors).
+    """
+
+    part: str
+    key: str
+    label: str
+    unit: str
+    nominal: float
+    standard: bool
+
+
+def knobs(doc) -> tuple:
+    """Every numeric field of ``doc`` that holds a usable value and that a design can change.
+
+    Transistor blocks offer the fields of their chosen model mode; empty optional fields
+    (an absent r_o) and the temperature are left out.
+    """
+    out = []
+    for part in doc.parts.values():
+        if part.kind in NO_ELEMENT:
+            continue
+        kind = KINDS[part.kind]
+        active = given_from_params(part.kind, part.params) if part.kind in ("bjt", "mosfet", "opamp") else part.params
+        for f in kind.fields:
+            if f.unit in ("choice", "name", "net") or f.key in _SKIP_FIELDS or f.key not in active:
+                continue
+            text = part.params.get(f.key, "").strip()
+            if not text:
+                continue
+            try:
+                value = parse_value(text, unit=f.unit if f.unit in _PARSER_UNITS else None, part=part.name,
+                                    field=f.label, allow_negative=f.allow_negative, allow_zero=True)
+            except BadValueError:
+                continue
+            if value == 0 or not math.isfinite(value):
+                continue
+            label = part.name if f.key == "value" else f"{part.name} {f.label}"
+            out.append(Knob(part.name, f.key, label, f.unit, value, part.kind in _STANDARD_FIELDS))
+    return tuple(out)
+
+
+def with_field(doc, part: str, key: str, text: str):
+    """A copy of ``doc`` with one field's text changed (the original is not touched)."""
+    copy = Document(doc.title)
+    copy.replace_all(doc)
+    copy.replace_part(part, copy.parts[part].with_params(**{key: text}))
+    return copy
+
+
+def field_text(value: float) -> str:
+    """A field text for a trial value that reads back to 12 significant figures."""
+    return f"{value:.12g}"
+
+
+@dataclass(frozen=True)
+class Remedy:
+    """The single value of one field that alone meets a failing target.
+
+    Attributes
+    ----------
+    target : str
+        The target key (``"f_high_min"``, ``"f_low_max"``, ``"gain"``).
+    knob : Knob
+        Which field.
+    exact_value : float or None
+        The value at which the exact figure just meets the target (SI units); None when
+        no value within :data:`SEARCH_DECADES` decades either way does.
+    estimate_value : float or None
+        Where the time-constant estimate would have put it (None likewise).
+    standard_value : float or None
+        For a resistor, capacitor or inductor: the nearest value of ``series`` that still
+        meets the target, checked by a full analysis; None if none near the root does.
+    series : str or None
+        The E series ``standard_value`` is from.
+    apply_text : str or None
+        The text to write into the field: the standard value if there is one, else the
+        exact value rounded to three figures on the side that meets the target.
+    text : str
+        One line saying it all, or "no single value of this part can".
+    """
+
+    target: str
+    knob: Knob
+    exact_value: float | None
+    estimate_value: float | None
+    standard_value: float | None
+    series: str | None
+    apply_text: str | None
+    text: str
+
+    @property
+    def change(self) -> float:
+        """|ln(new / present)| of the value to apply: how far the part must move (inf if none)."""
+        new = self.standard_value or self.exact_value
+        return abs(math.log(abs(new / self.knob.nominal))) if new else math.inf
+
+
+class _Figure:
+    """g(x) = ln(figure) − ln(goal) of one target as a field's value x varies; cached analyses."""
+
+    def __init__(self, doc, knob: Knob, target: str, targets: Targets):
+        self._build = lambda d: analyze(design_to_circuit(d), bands=dict(d.band_pins))
+        self.doc, self.knob, self.target, self.targets = doc, knob, target, targets
+        self.cache: dict = {}
+        self.goal = {"f_high_min": targets.f_high_min, "f_low_max": targets.f_low_max,
+                     "gain": targets.gain}[target]
+
+    def analysis(self, x: float):
+        if x not in self.cache:
+            try:
+                text = field_text(math.copysign(x, self.knob.nominal))
+                self.cache[x] = self._build(with_field(self.doc, self.knob.part, self.knob.key, text))
+            except CircuitError:
+                # This value breaks the network (a derived C_π below zero, a singular mid band).
+                self.cache[x] = None
+        return self.cache[x]
+
+    def g(self, x: float, estimate: bool) -> float:
+        """Signed log distance to the goal; NaN where the network cannot be analysed there."""
+        a = self.analysis(x)
+        if a is None:
+            return math.nan
+        if self.target == "gain":
+            return math.log(abs(a.midband_gain)) - math.log(self.goal) if a.midband_gain else -math.inf
+        side = "high" if self.target == "f_high_min" else "low"
+        f = getattr(a, f"f_{side}_{'estimate' if estimate else 'exact'}")
+        if not _usable(f):
+            # No corner on this side: as good as a corner beyond any target.
+            return 50.0 if side == "high" else -50.0
+        return math.log(f) - math.log(self.goal)
+
+    def passes(self, x: float, estimate: bool = False) -> bool:
+        a = self.analysis(x)
+        if a is None:
+            return False
+        if estimate:
+            return self.ok(self.g(x, True))
+        return meets(self.targets, a.f_high_exact, a.f_low_exact, a.midband_gain)[self.target]
+
+    def ok(self, g: float) -> bool:
+        if math.isnan(g):
+            return False
+        if self.target == "f_high_min":
+            return g >= 0
+        if self.target == "f_low_max":
+            return g <= 0
+        return math.log(self.targets.gain_min / self.goal) <= g <= math.log(self.targets.gain_max / self.goal)
+
+
+def _root(fig: _Figure, estimate: bool) -> float | None:
+    """ln(x / x0) nearest 0 where g crosses zero (the goal), or None within the search reach.
+
+    The ladder steps out half a decade at a time in both directions, nearest first, until g
+    changes sign; brentq then solves g = 0 on ln x between the last two rungs. For a corner
+    the root is where the target is just met; for the gain it is the window's centre.
+    """
+    x0 = abs(fig.knob.nominal)
+    half = math.log(10) / 2
+    g0 = fig.g(x0, estimate)
+    if math.isnan(g0):
+        return None
+    for rung in range(1, int(2 * SEARCH_DECADES) + 1):
+        for sense in (1.0, -1.0):
+            outer, inner = sense * rung * half, sense * (rung - 1) * half
+            g_out, g_in = fig.g(x0 * math.exp(outer), estimate), fig.g(x0 * math.exp(inner), estimate)
+            if math.isnan(g_out) or math.isnan(g_in) or (g_out > 0) == (g_in > 0):
+                continue
+            return brentq(lambda u: fig.g(x0 * math.exp(u), estimate), inner, outer, xtol=_ROOT_XTOL)
+    return None
+
+
+def _rounded_toward(x: float, passes) -> str | None:
+    """Three-figure text for ``x``: whichever neighbour at that rounding meets the target."""
+    exponent = math.floor(math.log10(x)) - 2
+    unit = 10.0 ** exponent
+    for candidate in (round(x / unit) * unit, math.ceil(x / unit) * unit, math.floor(x / unit) * unit):
+        candidate = float(f"{candidate:.3g}")
+        if passes(candidate):
+            return candidate
+    return None
+
+
+def values_that_meet(doc, target: str, targets: Targets, series: str = "E24", *,
+                     progress=None, cancel=None) -> tuple:
+    """For each field of the design, the single value that alone meets one failing target.
+
+    Parameters
+    ----------
+    doc : engine.document.Document
+        The design (not changed: each trial value is analysed on a copy).
+    target : str
+        ``"f_high_min"``, ``"f_low_max"`` or ``"gain"``.
+    targets : Targets
+        The design's targets (:func:`parse_targets`).
+    series : str
+        The IEC 60063 series to pick resistors, capacitors and inductors from
+        (``"E12"``, ``"E24"``, ``"E48"``, ``"E96"``).
+    progress : callable, optional
+        ``progress(done, total)`` after each field.
+    cancel : callable, optional
+        Polled between fields; True stops the search with :class:`engine.tolerance.Cancelled`.
+
+    Returns
+    -------
+    tuple of Remedy
+        Fields that can meet the target first, the smallest change first; then the ones
+        that cannot.
+    """
+    if target not in ("f_high_min", "f_low_max", "gain") or getattr(targets, target) is None:
+        raise ValueError(f"the design has no {TARGET_LABELS[target]} target")
+    found = []
+    all_knobs = knobs(doc)
+    for i, knob in enumerate(all_knobs):
+        if cancel is not None and cancel():
+            raise Cancelled()
+        found.append(_remedy(doc, knob, target, targets, series))
+        if progress is not None:
+            progress(i + 1, len(all_knobs))
+    return tuple(sorted(found, key=lambda r: (r.exact_value is None, r.change, r.knob.label)))
+
+
+def _remedy(doc, knob: Knob, target: str, targets: Targets, series: str) -> Remedy:
+    fig = _Figure(doc, knob, target, targets)
+    x0 = abs(knob.nominal)
+    what = TARGET_LABELS[target]
+    t_exact = _root(fig, estimate=False)
+    lo, hi = _fmt(x0 / 10 ** SEARCH_DECADES, knob.unit), _fmt(x0 * 10 ** SEARCH_DECADES, knob.unit)
+    if t_exact is None:
+        return Remedy(target, knob, None, None, None, None, None,
+                      f"no single value of {knob.label} from {lo} to {hi} meets the {what} target")
+    exact = x0 * math.exp(t_exact)
+    t_est = t_exact if target == "gain" else _root(fig, estimate=True)
+    estimate = None if t_est is None else x0 * math.exp(t_est)
+    sign = math.copysign(1.0, knob.nominal)
+
+    def passes(v):
+        return fig.passes(abs(v))
+
+    standard, used = None, None
+    if knob.standard:
+        used = series
+        if target == "gain":
+            near = eseries.nearest(exact, series)
+            standard = near if passes(near) else None
+        else:
+            # Which side of the root meets the target: the side g grows into for f_H, falls into for f_L.
+            up = fig.ok(fig.g(exact * 1.001, False))
+            standard = eseries.nearest_meeting(exact, series, passes, +1 if up else -1)
+        apply_value = standard
+    else:
+        apply_value = _rounded_toward(exact, passes)
+    apply_text = None if apply_value is None else format_value(sign * apply_value, "", digits=3)
+    est_text = "the estimate has no answer in that range" if estimate is None else \
+        f"the estimate would say {_fmt(estimate, knob.unit)}"
+    text = f"{knob.label} = {_fmt(exact, knob.unit, 4)} meets it ({est_text})"
+    if knob.standard:
+        text += (f"; {series}: {_fmt(standard, knob.unit)}" if standard is not None
+                 else f"; no {series} value near it meets it")
+    return Remedy(target, knob, exact, estimate, standard, used, apply_text, text)
