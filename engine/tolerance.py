@@ -28,9 +28,10 @@ from typing import Callable, Mapping
 
 import numpy as np
 
-from .analysis import midband_states
+from .analysis import analyze, midband_states
 from .elements import Capacitor, Inductor
 from .errors import CircuitError
+from .netlist import design_to_circuit
 from .partvalues import PartValue, coefficients_for, parametric_system, part_values
 from .values import format_value
 
@@ -499,3 +500,51 @@ def _worst_case(evaluate: _Evaluator) -> tuple:
                          if rows[pick, i] != 1)
         out.append(WorstCase(name, extreme, float(v[pick]), settings))
     return tuple(out)
+
+
+def _percentiles(values: np.ndarray) -> dict:
+    good = values[np.isfinite(values)]
+    if good.size == 0:
+        return {"missing": int(values.size)}
+    p = np.percentile(good, [0.135, 50, 99.865])
+    return {"min": float(good.min()), "p0.135": float(p[0]), "median": float(p[1]),
+            "p99.865": float(p[2]), "max": float(good.max()), "mean": float(good.mean()),
+            "std": float(good.std()), "missing": int(values.size - good.size)}
+
+
+def spread_to_dict(spread: Spread) -> dict:
+    """The JSON-ready form of a :class:`Spread` (frequencies in Hz, gains in the gain unit).
+
+    Percentiles 0.135 and 99.865 are the ±3σ points of a normal distribution, the span
+    designers usually quote; the spread itself need not be normal.
+    """
+    fh0, fl0, am0 = spread.nominal
+    return {
+        "samples": spread.samples, "seed": spread.seed, "seconds": round(spread.seconds, 3),
+        "nominal": {"f_high_hz": fh0, "f_low_hz": fl0, "midband_gain": am0},
+        "f_high_hz": _percentiles(spread.f_high) if fh0 else None,
+        "f_low_hz": _percentiles(spread.f_low) if fl0 else None,
+        "gain_magnitude": _percentiles(np.abs(spread.gain)),
+        "yield": dict(spread.yields),
+        "worst_case": [{"figure": w.figure, "extreme": w.extreme, "value": w.value,
+                        "settings": {label: dev for label, dev in w.settings}} for w in spread.worst_cases],
+        "tolerances": [{"part": t.value.part, "value": t.value.label, "element": t.value.element,
+                        "nominal": t.value.nominal, "unit": t.value.unit, "tolerance": t.tolerance,
+                        "source": t.source} for t in spread.tolerances],
+    }
+
+
+def spread_of_design(doc, samples: int = 10_000, seed: int = 1, **kw) -> Spread:
+    """:func:`monte_carlo` of a design document with its targets and default tolerances."""
+    # engine.targets imports this module (for Cancelled), so it is imported at call time.
+    from .targets import parse_targets
+
+    circuit = design_to_circuit(doc)
+    analysis = analyze(circuit, bands=dict(doc.band_pins))
+    return monte_carlo(circuit, analysis, samples=samples, seed=seed, targets=parse_targets(doc.targets),
+                       gain_unit=analysis.gain_unit, **kw)
+
+
+def spread_summary(doc, samples: int = 10_000, seed: int = 1) -> dict:
+    """The tolerance spread of a design as a JSON-ready dict (see :func:`spread_to_dict`)."""
+    return spread_to_dict(spread_of_design(doc, samples, seed))
