@@ -155,7 +155,8 @@ def _vsource(p: _Pen):
 
 def _isource(p: _Pen):
     body = _source_ring(p)
-    p.arrow((0, -10), (0, 10))
+    # The source pushes current out of its top pin ("into" the net there).
+    p.arrow((0, 10), (0, -10))
     return body
 
 
