@@ -17,7 +17,8 @@ from typing import Mapping
 
 import numpy as np
 
-from .bands import BANDS, HIGH, IN_BAND_DB, LOW, NEUTRAL, NEUTRAL_DB, band_tests, fixed_elements
+from .bands import (BANDS, HIGH, IN_BAND_DB, LOW, NEUTRAL, NEUTRAL_DB, band_tests, fixed_elements,
+                    parallel_capacitance, parallel_groups)
 from .corners import brackets, corner, first_span, midband_guess, points_per_decade, second_order_corner, wide_sweep
 from .elements import Capacitor, Inductor, ISource, VSource
 from .errors import CircuitError
@@ -81,7 +82,8 @@ class ElementResult:
         band at its mid-band state. ``inf`` for an inductor that sees an open circuit. None
         when neutral.
     time_constant : float or None
-        s: C·R for a capacitor, L/R for an inductor. None when neutral.
+        s: C·R for a capacitor, L/R for an inductor. None when neutral. Low-band
+        capacitors in parallel form one port: each reports the port's R and τ = ΣC·R.
     share : float
         Fraction of its band: τ/b1 in the high band, (1/τ)/ω_L in the low band; 0 when neutral.
     reason : str
@@ -165,6 +167,8 @@ class Analysis:
         Hz, the exact sweep the corners were found on (read-only).
     sweep_response : numpy.ndarray
         Complex H there (gain unit, read-only).
+    sources : tuple of str
+        The independent sources, zeroed in every test picture.
     """
 
     title: str
@@ -189,7 +193,7 @@ class Analysis:
     sweep_frequencies: np.ndarray = field(repr=False)
     sweep_response: np.ndarray = field(repr=False)
     _warnings: tuple[str, ...] = field(repr=False)
-    _sources: tuple[str, ...] = field(repr=False)
+    sources: tuple[str, ...] = field(repr=False)
     _system: object = field(repr=False, compare=False)
     _zeros: np.ndarray | None = field(repr=False, compare=False)
 
@@ -225,11 +229,16 @@ class Analysis:
         shorted, opened = [], []
         for other in self.elements.values():
             if other.name != name:
-                (shorted if _midband_state(other, other.band) == SHORT else opened).append(other.name)
-        return TestPicture(name, el.nodes, tuple(shorted), tuple(opened), self._sources)
+                (shorted if midband_state(other, other.band) == SHORT else opened).append(other.name)
+        return TestPicture(name, el.nodes, tuple(shorted), tuple(opened), self.sources)
 
 
-def _midband_state(el, band) -> str:
+def midband_state(el, band) -> str:
+    """``"short"`` or ``"open"``: an element's state in the resistive mid-band network.
+
+    Low band: a capacitor is shorted, an inductor open; high band and neutral: a capacitor
+    is open, an inductor shorted. ``el`` is an element or an :class:`ElementResult`.
+    """
     is_cap = isinstance(el, (Capacitor, CapacitorResult))
     if band == LOW:
         return SHORT if is_cap else OPEN
@@ -252,7 +261,7 @@ def midband_states(reactive, bands) -> dict[str, str]:
 
     states = {}
     for el in sorted(reactive, key=lambda e: isinstance(e, Capacitor)):
-        state = _midband_state(el, bands[el.name])
+        state = midband_state(el, bands[el.name])
         if state == SHORT:
             ra, rb = root(el.a), root(el.b)
             if ra == rb and isinstance(el, Capacitor):
@@ -360,7 +369,8 @@ def analyze(c, bands=None, *, per_decade: int | None = None, full_matrix_limit: 
         lu_mid = factorize(mid.G, "with the low-band elements at their mid-band states", low_names)
         gain = float((mid.c @ lu_mid.solve(mid.b)).real)
         if gain == 0:
-            raise CircuitError(f"The output {'−'.join(c.output_nodes)} does not respond to the input "
+            out = c.output_nodes[0] if c.output_nodes[1] == "0" else " − ".join(c.output_nodes)
+            raise CircuitError(f"The output {out} does not respond to the input "
                                f"{c.input_name} in the mid band: check the output probe and the signal path.",
                                nodes=c.output_nodes)
         low_bracket, high_bracket = brackets(freqs, H, f_m, abs(gain) / math.sqrt(2))
@@ -377,8 +387,16 @@ def analyze(c, bands=None, *, per_decade: int | None = None, full_matrix_limit: 
     high = [el for el in reactive if chosen[el.name] == HIGH]
     low = [el for el in reactive if chosen[el.name] == LOW]
     oc = open_circuit(lu_mid, port_columns(mid, high), port_weights(high), full=len(high) <= full_matrix_limit)
+    # Parallel low-band capacitors are one port: shorting one would short the others.
+    low_ports, low_port_of = [], {}
+    for group in [*parallel_groups(low).values(), *([el] for el in low if isinstance(el, Inductor))]:
+        low_port_of.update({el.name: len(low_ports) for el in group})
+        low_ports.append(group)
     lu_dc = factorize(system.G, "at d.c.")
-    sc = short_circuit(lu_dc, port_columns(system, low), port_weights(low), [el.name for el in low])
+    sc = short_circuit(lu_dc, port_columns(system, [g[0] for g in low_ports]),
+                       np.array([sum(port_weights(g)) for g in low_ports]),
+                       ["+".join(el.name for el in g) for g in low_ports])
+    total_c = parallel_capacitance(low)
 
     b1 = oc.b1
     f_high_est = 1 / (2 * math.pi * b1) if b1 > 0 else None
@@ -388,7 +406,7 @@ def analyze(c, bands=None, *, per_decade: int | None = None, full_matrix_limit: 
 
     unit = "V/A" if isinstance(c.elements[c.input_name], ISource) else "V/V"
     unit_db = "dBΩ" if unit == "V/A" else "dB"
-    position = {el.name: j for j, el in enumerate(high)} | {el.name: j for j, el in enumerate(low)}
+    position = {el.name: j for j, el in enumerate(high)}
     caps, inds = {}, {}
     for el in reactive:
         band = chosen[el.name]
@@ -402,10 +420,13 @@ def analyze(c, bands=None, *, per_decade: int | None = None, full_matrix_limit: 
             resistance = z if isinstance(el, Capacitor) else (1 / -z if z != 0 else math.inf)
             share = tau / b1 if b1 else 0.0
         elif band == LOW:
+            j = low_port_of[el.name]
             tau = float(sc.time_constants[j])
             y = float(sc.inverse_diagonal[j])
             resistance = 1 / y if isinstance(el, Capacitor) else -y
-            share = (1 / tau) / omega_low if omega_low else 0.0
+            # Parallel partners share their port's 1/τ in proportion to capacitance.
+            part = el.value / total_c[el.name] if isinstance(el, Capacitor) else 1.0
+            share = part * (1 / tau) / omega_low if omega_low else 0.0
         reason = _reason(el, test, unit_db)
         if el.name in pins:
             reason = f"pinned to the {band} band (the test says: {reason})"
@@ -434,7 +455,7 @@ def analyze(c, bands=None, *, per_decade: int | None = None, full_matrix_limit: 
         f_high_exact=f_high, f_low_exact=f_low,
         f_high_ratio=_ratio(f_high_est, f_high), f_low_ratio=_ratio(f_low_est, f_low),
         dominant_high=_dominant(every, HIGH), dominant_low=_dominant(every, LOW),
-        sweep_frequencies=freqs, sweep_response=H, _warnings=tuple(notes), _sources=sources,
+        sweep_frequencies=freqs, sweep_response=H, _warnings=tuple(notes), sources=sources,
         _system=system, _zeros=known_zeros)
 
 

@@ -93,6 +93,21 @@ def fixed_elements(circuit) -> dict[str, str]:
     return out
 
 
+def parallel_groups(reactive) -> dict[frozenset, list]:
+    """Capacitors by the pair of nodes they join; a group of two or more is in parallel."""
+    groups: dict[frozenset, list] = {}
+    for el in reactive:
+        if isinstance(el, Capacitor):
+            groups.setdefault(frozenset(el.nodes), []).append(el)
+    return groups
+
+
+def parallel_capacitance(reactive) -> dict[str, float]:
+    """Capacitor name -> total capacitance (F) of it and the capacitors in parallel with it."""
+    return {el.name: sum(m.value for m in group)
+            for group in parallel_groups(reactive).values() for el in group}
+
+
 def verdict(gain_shorted: float, gain_opened: float, low_state_is_open: bool) -> str:
     """The band the two gains point to.
 
@@ -138,7 +153,11 @@ def band_tests(system, reactive, f_test: float, fixed) -> dict[str, BandTest]:
     p = U.T @ x
     q = U.T @ y
     z = port_diagonal(lu, U)
-    t = np.array([1j * w * el.value if isinstance(el, Capacitor) else -1j * w * el.value for el in reactive])
+    # Capacitors in parallel share one port vector; each is tested with its partners, or
+    # each alone would look neutral while together they are a coupling or bypass.
+    together = parallel_capacitance(reactive)
+    t = np.array([1j * w * together[el.name] if isinstance(el, Capacitor) else -1j * w * el.value
+                  for el in reactive])
     out = {}
     for k, el in enumerate(reactive):
         if el.name in fixed:

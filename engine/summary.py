@@ -1,0 +1,155 @@
+"""An :class:`~engine.analysis.Analysis` as JSON-ready data, as a readable table, as a CSV sweep."""
+
+from __future__ import annotations
+
+import csv
+import math
+
+import numpy as np
+
+from .analysis import midband_state
+from .mna import SHORT
+from .values import format_value
+
+_ELEMENT_UNITS = {"capacitance": "F", "inductance": "H", "resistance": "Ω", "time_constant": "s",
+                  "share": "1", "gain_shorted": None, "gain_opened": None}
+
+
+def _number(x):
+    """A float for JSON: None for None, inf and nan (JSON has no infinity)."""
+    if x is None:
+        return None
+    x = float(x)
+    return x if math.isfinite(x) else None
+
+
+def _complex_list(values):
+    return None if values is None else [[_number(v.real), _number(v.imag)] for v in np.asarray(values, complex)]
+
+
+def _element(r) -> dict:
+    out = {"name": r.name, "nodes": list(r.nodes), "band": r.band, "pinned": r.pinned,
+           "acts_in_band": r.acts_in_band, "reason": r.reason}
+    for key in _ELEMENT_UNITS:
+        if hasattr(r, key):
+            out[key] = _number(getattr(r, key))
+    return out
+
+
+def analysis_to_dict(a) -> dict:
+    """Every field of ``a`` as plain JSON-ready data.
+
+    Keys are the attribute names; ``units`` maps each key to its unit (the gain unit is
+    ``V/V`` or ``V/A``). Complex values are ``[re, im]`` pairs; a value that is infinite or
+    absent is ``null`` (an inductor that sees an open circuit has ``resistance: null`` and
+    ``time_constant: 0``). ``midband_states`` lists the elements shorted and opened in the
+    mid-band network: every test picture is that network with its own element replaced by
+    the test source, and the sources in ``zeroed`` zeroed.
+    """
+    gain = a.gain_unit
+    states = {"shorted": [], "opened": []}
+    for r in a.elements.values():
+        states["shorted" if midband_state(r, r.band) == SHORT else "opened"].append(r.name)
+    return {
+        "title": a.title,
+        "gain_unit": gain,
+        "midband_gain": _number(a.midband_gain),
+        "midband_gain_db": _number(20 * math.log10(abs(a.midband_gain))),
+        "midband_frequency": _number(a.midband_frequency),
+        "b1": _number(a.b1),
+        "b2": _number(a.b2),
+        "high_time_constants": _complex_list(a.high_time_constants),
+        "f_high_estimate": _number(a.f_high_estimate),
+        "f_high_estimate_2nd": _number(a.f_high_estimate_2nd),
+        "f_high_exact": _number(a.f_high_exact),
+        "f_high_ratio": _number(a.f_high_ratio),
+        "omega_low_estimate": _number(a.omega_low_estimate),
+        "f_low_estimate": _number(a.f_low_estimate),
+        "f_low_exact": _number(a.f_low_exact),
+        "f_low_ratio": _number(a.f_low_ratio),
+        "dominant_high": a.dominant_high,
+        "dominant_low": a.dominant_low,
+        "capacitors": [_element(r) for r in a.capacitors.values()],
+        "inductors": [_element(r) for r in a.inductors.values()],
+        "midband_states": states,
+        "zeroed": list(a.sources),
+        "warnings": a.warnings,
+        "poles": _complex_list(a.poles),
+        "zeros": _complex_list(a.zeros),
+        "units": {
+            "midband_gain": gain, "midband_gain_db": "dB", "midband_frequency": "Hz", "b1": "s", "b2": "s²",
+            "high_time_constants": "s", "f_high_estimate": "Hz", "f_high_estimate_2nd": "Hz",
+            "f_high_exact": "Hz", "f_low_estimate": "Hz", "f_low_exact": "Hz", "omega_low_estimate": "rad/s",
+            "f_high_ratio": "1", "f_low_ratio": "1", "poles": "rad/s", "zeros": "rad/s",
+            **{key: unit or gain for key, unit in _ELEMENT_UNITS.items()},
+        },
+    }
+
+
+def _fmt(x, unit):
+    return "—" if x is None else format_value(x, unit)
+
+
+def _error(estimate, exact):
+    if estimate is None or exact is None:
+        return ""
+    return f"(error {100 * (estimate / exact - 1):+.1f} %)".replace("-", "−")
+
+
+def format_table(a, title: str | None = None) -> str:
+    """The analysis as a readable text table.
+
+    Elements with band, resistance, time constant and share of their band; the mid-band
+    gain in the gain unit and in dB; each corner estimated beside its exact value with the
+    estimate's error; the warnings.
+
+    Parameters
+    ----------
+    a : engine.analysis.Analysis
+    title : str, optional
+        Heading; the circuit's title by default.
+    """
+    unit, db = a.gain_unit, "dBΩ" if a.gain_unit == "V/A" else "dB"
+    lines = [title or a.title, ""]
+    gain = f"{a.midband_gain:.4g}".replace("-", "−")
+    lines.append(f"Mid-band gain  {gain}  ({20 * math.log10(abs(a.midband_gain)):.1f} {db}),"
+                 f" band test at {format_value(a.midband_frequency, 'Hz')}")
+    lines.append("")
+    rows = [("Element", "Band", "R", "τ", "Share")]
+    for r in a.elements.values():
+        band = r.band + (" (pinned)" if r.pinned else "") + (" *" if r.acts_in_band else "")
+        share = "" if r.band == "neutral" else f"{100 * r.share:.1f} %"
+        rows.append((r.name, band, _fmt(r.resistance, "Ω"), _fmt(r.time_constant, "s"), share))
+    widths = [max(len(row[i]) for row in rows) for i in range(len(rows[0]))]
+    for k, row in enumerate(rows):
+        lines.append("  ".join(cell.ljust(w) for cell, w in zip(row, widths)).rstrip())
+        if k == 0:
+            lines.append("  ".join("─" * w for w in widths))
+    if any(r.acts_in_band for r in a.elements.values()):
+        lines.append("* acts inside the band")
+    lines.append("")
+    corners = [("Upper corner", a.f_high_estimate, a.f_high_exact), ("Lower corner", a.f_low_estimate, a.f_low_exact)]
+    for label, est, exact in corners:
+        exact_text = _fmt(exact, "Hz") if exact is not None else "none (the gain never falls 3 dB)"
+        lines.append(f"{label}  estimated {_fmt(est, 'Hz')}, exact {exact_text}  {_error(est, exact)}".rstrip())
+    if a.f_high_estimate_2nd is not None:
+        lines.append(f"Upper corner, second order  {_fmt(a.f_high_estimate_2nd, 'Hz')}  "
+                     f"{_error(a.f_high_estimate_2nd, a.f_high_exact)}".rstrip())
+    b2 = "" if a.b2 is None else f", b2 = {a.b2:.4g} s²"
+    lines.append(f"b1 = {_fmt(a.b1, 's')}{b2}")
+    if a.warnings:
+        lines += ["", "Warnings"] + [f"  • {w}" for w in a.warnings]
+    return "\n".join(lines) + "\n"
+
+
+def write_sweep_csv(a, path) -> None:
+    """Write the exact sweep to ``path``: frequency (Hz), |H| (gain unit), |H| (dB), phase (degrees)."""
+    f, H = a.sweep_frequencies, a.sweep_response
+    with open(path, "w", newline="", encoding="utf-8") as out:
+        w = csv.writer(out)
+        w.writerow(["frequency_hz", f"magnitude_{a.gain_unit.replace('/', '_per_')}", "magnitude_db", "phase_deg"])
+        mag = np.abs(H)
+        with np.errstate(divide="ignore"):
+            db = 20 * np.log10(mag)
+        for row in zip(f, mag, db, np.degrees(np.unwrap(np.angle(H)))):
+            w.writerow([f"{v:.9g}" for v in row])
