@@ -1,0 +1,79 @@
+"""The design report holds every figure the app shows for the same design.
+
+Source of the figures: engine.plotdata (what the bars, the Bode plot and the verdict strip
+draw), engine.targets (the target verdicts), engine.sensitivity and engine.tolerance.
+"""
+
+from __future__ import annotations
+
+import html
+import re
+from pathlib import Path
+
+import pytest
+
+from engine import analyze
+from engine.designfile import load_design
+from engine.netlist import design_to_circuit
+from engine.plotdata import bar_data, bode_data, verdict_data
+from engine.report import CAUTION, REFERENCES, Pictures, build_report, write_report
+from engine.sensitivity import sensitivities
+from engine.targets import check_targets, parse_targets
+from engine.tolerance import spread_of_design
+
+SAMPLES = Path(__file__).resolve().parents[2] / "sample_designs"
+
+
+@pytest.fixture(scope="module")
+def design():
+    doc = load_design(SAMPLES / "two_stage_miller.json")
+    doc.set_target("f_high_min", "300k")
+    doc.set_target("f_low_max", "50")
+    spread = spread_of_design(doc, 2000, 7)
+    return doc, spread, build_report(doc, spread=spread)
+
+
+def _has(report, text):
+    return html.escape(text) in report
+
+
+def test_every_figure_the_app_shows(design):
+    doc, spread, report = design
+    c = design_to_circuit(doc)
+    a = analyze(c, bands=dict(doc.band_pins))
+    v = verdict_data(a)
+    for text in (v.gain_text, v.high_text, v.low_text, v.dominant_text, *v.warnings):
+        assert _has(report, text), text
+    for group in bar_data(a).groups:
+        assert _has(report, group.total_text)
+        for row in group.rows:
+            assert _has(report, row.value_text) and _has(report, row.share_text), row.name
+    for m in bode_data(a).markers:
+        assert _has(report, m.text), m.text
+    for check in check_targets(parse_targets(doc.targets), a):
+        assert _has(report, check.text)
+    for row in sensitivities(c, a).rows:
+        assert f"{html.escape(row.value.label)}</td><td class=\"n\">{row.high_exact:+.3f}" in report
+    for key, y in spread.yields.items():
+        assert f"{100 * y:.1f} %" in report
+
+
+def test_self_contained_with_method_and_caution(design):
+    _, _, report = design
+    assert not re.search(r'(src|href)="(https?:|//|file:)', report)
+    assert report.count(html.escape(CAUTION)) == 2
+    for ref in ("Thornton", "Cochrun", "Ho, Ruehli"):
+        assert ref in report
+    assert len(REFERENCES) >= 3
+    assert report.count("<svg") == 2  # Bode plot and bars drawn inline without Qt
+
+
+def test_app_pictures_are_embedded(tmp_path):
+    doc = load_design(SAMPLES / "ce_hydrophone_preamp.json")
+    png = b"\x89PNG\r\n\x1a\nfake"
+    path = tmp_path / "r.html"
+    write_report(doc, path, pictures=Pictures(schematic=png, bode=png), samples=200)
+    text = path.read_text(encoding="utf-8")
+    assert text.count("data:image/png;base64,") == 2
+    assert text.count("<svg") == 1  # the bars, which no picture was given for
+    assert "The design sets no targets." in text
