@@ -525,6 +525,7 @@ def spread_to_dict(spread: Spread) -> dict:
         "f_high_hz": _percentiles(spread.f_high) if fh0 else None,
         "f_low_hz": _percentiles(spread.f_low) if fl0 else None,
         "gain_magnitude": _percentiles(np.abs(spread.gain)),
+        "gain_unit": next(h.unit for h in spread.histograms if h.figure == "gain"),
         "yield": dict(spread.yields),
         "worst_case": [{"figure": w.figure, "extreme": w.extreme, "value": w.value,
                         "settings": {label: dev for label, dev in w.settings}} for w in spread.worst_cases],
