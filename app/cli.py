@@ -1,7 +1,9 @@
 """The ``bandsketch`` command: open the window, or analyse a design without Qt.
 
 ``bandsketch [DESIGN] [--screenshot FILE.png] [--size WxH] [--select NAME]`` opens the window;
-``bandsketch analyze DESIGN [--json] [--csv FILE]`` prints the analysis. Qt is imported
+``bandsketch analyze DESIGN [--json] [--csv FILE]`` prints the analysis;
+``bandsketch report DESIGN -o FILE.html`` writes the design report;
+``bandsketch spread DESIGN --samples N --seed S [--json]`` runs the tolerance spread. Qt is imported
 only for the window, so the analysis runs where no Qt is installed or wanted.
 """
 
@@ -11,7 +13,7 @@ import argparse
 import json
 import sys
 
-SUBCOMMANDS = ("analyze",)
+SUBCOMMANDS = ("analyze", "report", "spread")
 
 
 def _size(text: str) -> tuple[int, int]:
@@ -62,6 +64,68 @@ def _analyze(args) -> int:
     return 0
 
 
+def _report_parser() -> argparse.ArgumentParser:
+    p = argparse.ArgumentParser(prog="bandsketch report",
+                                description="Write the design report: one self-contained HTML file.")
+    p.add_argument("design", help="design file (.json)")
+    p.add_argument("-o", "--output", required=True, metavar="FILE.html", help="where to write the report")
+    p.add_argument("--samples", type=_samples, default=10_000, help="Monte Carlo samples (default 10000)")
+    p.add_argument("--seed", type=int, default=1, help="Monte Carlo seed (default 1)")
+    p.add_argument("--series", choices=("E12", "E24", "E48", "E96"), default="E24",
+                   help="IEC 60063 series for standard values (default E24)")
+    return p
+
+
+def _spread_parser() -> argparse.ArgumentParser:
+    p = argparse.ArgumentParser(prog="bandsketch spread",
+                                description="Tolerance spread of the corners and the gain, with the yield.")
+    p.add_argument("design", help="design file (.json)")
+    p.add_argument("--samples", type=_samples, default=10_000, help="Monte Carlo samples (default 10000)")
+    p.add_argument("--seed", type=int, default=1, help="seed; the same seed gives the same numbers (default 1)")
+    p.add_argument("--json", action="store_true", help="print JSON instead of a summary")
+    return p
+
+
+def _samples(text: str) -> int:
+    try:
+        n = int(text)
+    except ValueError:
+        raise argparse.ArgumentTypeError(f"{text!r} is not a whole number of samples") from None
+    if not 1 <= n <= 10_000_000:
+        raise argparse.ArgumentTypeError(f"{n} samples: give 1 to 10000000")
+    return n
+
+
+def _report(args) -> int:
+    from engine.designfile import load_design
+    from engine.report import write_report
+
+    write_report(load_design(args.design), args.output, samples=args.samples, seed=args.seed, series=args.series)
+    print(f"bandsketch: wrote {args.output}")
+    return 0
+
+
+def _spread(args) -> int:
+    from engine.designfile import load_design
+    from engine.tolerance import spread_summary
+
+    summary = spread_summary(load_design(args.design), args.samples, args.seed)
+    if args.json:
+        print(json.dumps(summary, indent=1, ensure_ascii=False))
+        return 0
+    from engine.values import format_value
+
+    print(f"{summary['samples']} samples, seed {summary['seed']}, {summary['seconds']:.2f} s")
+    for key, title, unit in (("f_high_hz", "f_H", "Hz"), ("f_low_hz", "f_L", "Hz"), ("gain_magnitude", "|A_m|", summary["gain_unit"])):
+        st = summary[key]
+        if st and "median" in st:
+            print(f"  {title:6s} median {format_value(st['median'], unit):>10s}   "
+                  f"0.135 %..99.865 %: {format_value(st['p0.135'], unit)} .. {format_value(st['p99.865'], unit)}")
+    for key, value in summary["yield"].items():
+        print(f"  yield {key:10s} {100 * value:5.1f} %")
+    return 0
+
+
 def main(argv: list[str] | None = None) -> int:
     """Entry point of the ``bandsketch`` console script; returns the exit status."""
     from engine.errors import CircuitError, DesignFileError
@@ -70,6 +134,10 @@ def main(argv: list[str] | None = None) -> int:
     try:
         if argv and argv[0] == "analyze":
             return _analyze(_analyze_parser().parse_args(argv[1:]))
+        if argv and argv[0] == "report":
+            return _report(_report_parser().parse_args(argv[1:]))
+        if argv and argv[0] == "spread":
+            return _spread(_spread_parser().parse_args(argv[1:]))
         args = _gui_parser().parse_args(argv)
         from app.gui import run_gui
 
