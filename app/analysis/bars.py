@@ -1,0 +1,250 @@
+"""Time-constant bars: one bar per element, grouped by band, longest share first.
+
+The widget draws a :class:`engine.plotdata.BarData` and nothing else. Row geometry is laid
+out when the data or the size changes, never in ``paintEvent``. Clicks, hovers and the pin
+menu are reported by signal; the panel turns a pin into an undoable edit.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+from PySide6.QtCore import QEvent, QPointF, QRectF, QSize, Qt, Signal
+from PySide6.QtGui import QAction, QActionGroup, QColor, QFont, QFontMetricsF, QPainter, QPainterPath, QPen
+from PySide6.QtWidgets import QMenu, QSizePolicy, QToolTip, QWidget
+
+from engine.plotdata import BarData, BarRow
+
+from .style import ViewColours, view_colours
+
+ROW_H = 22
+HEAD_H = 38
+"""A group heading: its title, and beneath it the sum and the estimate it gives."""
+GAP = 8
+PAD = 8
+PIN_W = 14
+MIN_BAR_W = 60
+
+PIN_CHOICES = (("high", "Pin to the high band"), ("low", "Pin to the low band"),
+               ("", "Automatic band (by the gain test)"))
+"""Pin menu entries: the band passed on (``""`` unpins) and the menu text."""
+
+
+@dataclass(frozen=True)
+class _Heading:
+    rect: QRectF
+    title: str
+    total: str
+    band: str
+
+
+@dataclass(frozen=True)
+class _Bar:
+    row: BarRow
+    rect: QRectF
+    name_at: QPointF
+    bar: QRectF
+    text_at: QPointF
+
+
+class TimeConstantBars(QWidget):
+    """Bars of each element's share of b1 (high band) or ω_L (low band).
+
+    Signals
+    -------
+    element_clicked(str)
+        An element's bar was clicked.
+    pin_requested(str, str)
+        The user chose a band for an element: ``"high"``, ``"low"`` or ``""`` (automatic).
+    """
+
+    element_clicked = Signal(str)
+    pin_requested = Signal(str, str)
+
+    def __init__(self, parent=None):
+        super().__init__(parent)
+        self.setMouseTracking(True)
+        self.setSizePolicy(QSizePolicy.Policy.Expanding, QSizePolicy.Policy.Minimum)
+        self._data: BarData | None = None
+        self._selected: str | None = None
+        self._stale = False
+        self._colours: ViewColours = view_colours()
+        self._headings: list[_Heading] = []
+        self._bars: list[_Bar] = []
+        self._height = HEAD_H
+
+    # -- what is shown --------------------------------------------------------
+    def show_bars(self, data: BarData | None, *, stale: bool = False) -> None:
+        """Draw ``data`` (None: nothing analysed yet); ``stale`` greys a result no longer current."""
+        self._data, self._stale = data, stale
+        self._layout()
+
+    def set_stale(self, stale: bool) -> None:
+        """Grey the bars (the circuit as drawn cannot be analysed) or show them in colour."""
+        self._stale = stale
+        self.update()
+
+    def set_selected(self, name: str | None) -> None:
+        """Outline the bar of element ``name`` (None: no outline)."""
+        self._selected = name
+        self.update()
+
+    def set_colours(self, colours: ViewColours) -> None:
+        """Redraw in ``colours`` (the theme changed)."""
+        self._colours = colours
+        self.update()
+
+    def data(self) -> BarData | None:
+        """The bars shown."""
+        return self._data
+
+    def bar_rect(self, name: str) -> QRectF | None:
+        """Where element ``name``'s row is, in widget coordinates (for tests and tooltips)."""
+        return next((b.rect for b in self._bars if b.row.name == name), None)
+
+    # -- layout ---------------------------------------------------------------
+    def _fonts(self):
+        bold = QFont(self.font())
+        bold.setBold(True)
+        return self.font(), bold
+
+    def _layout(self) -> None:
+        self._headings, self._bars = [], []
+        y = PAD
+        if self._data is not None:
+            plain, bold = self._fonts()
+            fm, fb = QFontMetricsF(plain), QFontMetricsF(bold)
+            rows = [r for g in self._data.groups for r in g.rows]
+            name_w = max((fb.horizontalAdvance(r.name) for r in rows), default=0) + 10
+            text_w = max((fm.horizontalAdvance(_row_text(r)) for r in rows), default=0) + 10
+            width = max(self.width(), PAD * 2 + PIN_W + name_w + MIN_BAR_W + text_w)
+            bar_x = PAD + PIN_W + name_w
+            bar_w = max(MIN_BAR_W, width - PAD - text_w - bar_x)
+            for g in self._data.groups:
+                self._headings.append(_Heading(QRectF(PAD, y, width - 2 * PAD, HEAD_H), g.title,
+                                               g.total_text, g.band))
+                y += HEAD_H
+                for r in g.rows:
+                    rect = QRectF(PAD / 2, y, width - PAD, ROW_H)
+                    bar = QRectF(bar_x, y + 4, max(1.0, bar_w * r.share) if r.share > 0 else 0.0, ROW_H - 8)
+                    base = y + ROW_H / 2 + fm.ascent() / 2 - 1
+                    self._bars.append(_Bar(r, rect, QPointF(PAD + PIN_W, base), bar,
+                                           QPointF(bar_x + bar_w + 8, base)))
+                    y += ROW_H
+                y += GAP
+        self._height = int(y + PAD)
+        self.updateGeometry()
+        self.update()
+
+    def sizeHint(self) -> QSize:
+        return QSize(360, self._height)
+
+    def minimumSizeHint(self) -> QSize:
+        return QSize(240, self._height)
+
+    def resizeEvent(self, event):
+        super().resizeEvent(event)
+        self._layout()
+
+    def changeEvent(self, event):
+        if event.type() == QEvent.Type.FontChange:
+            self._layout()
+        super().changeEvent(event)
+
+    # -- drawing --------------------------------------------------------------
+    def paintEvent(self, event):
+        c = self._colours
+        p = QPainter(self)
+        p.setRenderHint(QPainter.RenderHint.Antialiasing)
+        plain, bold = self._fonts()
+        if self._data is None or not self._bars:
+            p.setPen(c.muted)
+            p.drawText(self.rect().adjusted(PAD, PAD, -PAD, -PAD), Qt.AlignmentFlag.AlignTop,
+                       "No capacitors or inductors to rank yet." if self._data else "")
+            return
+        for h in self._headings:
+            top, bottom = h.rect.adjusted(0, 0, 0, -h.rect.height() / 2), h.rect.adjusted(0, h.rect.height() / 2, 0, 0)
+            p.setFont(bold)
+            p.setPen(c.stale if self._stale else c.band(h.band))
+            p.drawText(top, Qt.AlignmentFlag.AlignBottom | Qt.AlignmentFlag.AlignLeft, h.title)
+            p.setFont(plain)
+            p.setPen(c.stale if self._stale else c.muted)
+            p.drawText(bottom, Qt.AlignmentFlag.AlignVCenter | Qt.AlignmentFlag.AlignLeft, h.total)
+        for b in self._bars:
+            r = b.row
+            colour = QColor(c.stale if self._stale else c.band(r.band))
+            if r.name == self._selected:
+                p.setPen(QPen(c.selection, 2))
+                p.setBrush(Qt.BrushStyle.NoBrush)
+                p.drawRoundedRect(b.rect, 3, 3)
+            if r.pinned:
+                self._draw_pin(p, QPointF(PAD + 5, b.rect.center().y()), colour)
+            p.setFont(bold if r.dominant else plain)
+            p.setPen(c.stale if self._stale else c.ink)
+            p.drawText(b.name_at, r.name)
+            if not b.bar.isEmpty():
+                fill = QColor(colour)
+                # The dominant bar is solid; the rest are lighter, so the limit reads first.
+                fill.setAlphaF(1.0 if r.dominant else 0.45)
+                p.setPen(Qt.PenStyle.NoPen)
+                p.setBrush(fill)
+                p.drawRect(b.bar)
+            p.setFont(plain)
+            p.setPen(c.stale if self._stale else c.muted)
+            p.drawText(b.text_at, _row_text(r))
+
+    @staticmethod
+    def _draw_pin(p: QPainter, at: QPointF, colour: QColor) -> None:
+        """A drawing pin: a round head on a short needle."""
+        path = QPainterPath()
+        path.addEllipse(QPointF(at.x(), at.y() - 3), 3.2, 3.2)
+        p.setPen(QPen(colour, 1.6))
+        p.setBrush(colour)
+        p.drawPath(path)
+        p.drawLine(QPointF(at.x(), at.y()), QPointF(at.x(), at.y() + 5))
+
+    # -- interaction ----------------------------------------------------------
+    def _row_at(self, pos) -> BarRow | None:
+        return next((b.row for b in self._bars if b.rect.contains(QPointF(pos))), None)
+
+    def mousePressEvent(self, event):
+        row = self._row_at(event.position())
+        if row is not None and event.button() == Qt.MouseButton.LeftButton:
+            self.element_clicked.emit(row.name)
+            event.accept()
+            return
+        super().mousePressEvent(event)
+
+    def event(self, event):
+        if event.type() == QEvent.Type.ToolTip:
+            row = self._row_at(event.pos())
+            if row is None:
+                QToolTip.hideText()
+                event.ignore()
+            else:
+                QToolTip.showText(event.globalPos(), row.tooltip, self)
+            return True
+        return super().event(event)
+
+    def pin_menu(self, name: str, parent=None) -> QMenu:
+        """The band menu for element ``name``: high, low or automatic, the current one checked."""
+        row = self._data.row(name) if self._data else None
+        current = row.band if row is not None and row.pinned else ""
+        menu = QMenu(parent or self)
+        group = QActionGroup(menu)
+        for band, text in PIN_CHOICES:
+            action = QAction(text, menu, checkable=True, checked=band == current)
+            action.triggered.connect(lambda _=False, b=band: self.pin_requested.emit(name, b))
+            group.addAction(action)
+            menu.addAction(action)
+        return menu
+
+    def contextMenuEvent(self, event):
+        row = self._row_at(event.pos())
+        if row is None:
+            return
+        self.pin_menu(row.name).exec(event.globalPos())
+
+
+def _row_text(r: BarRow) -> str:
+    return f"{r.value_text} · {r.share_text}" if r.share_text else r.value_text

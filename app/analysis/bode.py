@@ -1,0 +1,249 @@
+"""The exact response as a Bode plot, with the time-constant estimates drawn over it.
+
+Every item is made once and updated with ``setData``; the plot draws a
+:class:`engine.plotdata.BodeData` and computes nothing. The frequency axis labels are set
+explicitly (``1 kHz``, ``10 MHz``) because automatic SI prefixes on a log axis read oddly.
+"""
+
+from __future__ import annotations
+
+import math
+
+import pyqtgraph as pg
+import pyqtgraph.exporters  # noqa: F401  (registers pg.exporters)
+from PySide6.QtCore import QPointF, Qt, Signal
+from PySide6.QtGui import QColor
+from PySide6.QtWidgets import QVBoxLayout, QWidget
+
+from engine.plotdata import BodeData
+from engine.values import format_value
+
+from .style import ViewColours, view_colours
+
+MARKER_SLOTS = (("high", True), ("high", False), ("low", True), ("low", False))
+"""One marker item set per corner and kind; a slot with no corner is hidden."""
+
+
+class FrequencyAxis(pg.AxisItem):
+    """A log frequency axis labelled ``10 Hz``, ``1 kHz``, ``100 MHz``."""
+
+    def logTickStrings(self, values, scale, spacing):
+        return [format_value(10 ** v * scale, "Hz", digits=2) for v in values]
+
+
+class BodePlot(QWidget):
+    """Magnitude (dB) and phase (degrees) against log frequency, one above the other.
+
+    Signals
+    -------
+    hovered(str)
+        The readout at the cursor (empty when the cursor leaves the curves).
+    """
+
+    hovered = Signal(str)
+
+    def __init__(self, parent=None):
+        super().__init__(parent)
+        self._data: BodeData | None = None
+        self._stale = False
+        self._zoomed = False
+        self._colours: ViewColours = view_colours()
+        layout = QVBoxLayout(self)
+        layout.setContentsMargins(0, 0, 0, 0)
+        self.canvas = pg.GraphicsLayoutWidget()
+        layout.addWidget(self.canvas)
+        self.magnitude = self.canvas.addPlot(row=0, col=0, axisItems={"bottom": FrequencyAxis("bottom")})
+        self.phase = self.canvas.addPlot(row=1, col=0, axisItems={"bottom": FrequencyAxis("bottom")})
+        self.canvas.ci.layout.setRowStretchFactor(0, 3)
+        self.canvas.ci.layout.setRowStretchFactor(1, 2)
+        self.phase.setXLink(self.magnitude)
+        for plot, label in ((self.magnitude, "Gain (dB)"), (self.phase, "Phase (°)")):
+            plot.setLogMode(x=True, y=False)
+            plot.showGrid(x=True, y=True, alpha=0.25)
+            plot.setLabel("left", label)
+            plot.getAxis("bottom").enableAutoSIPrefix(False)
+            plot.getAxis("left").enableAutoSIPrefix(False)
+            plot.setMenuEnabled(False)
+            plot.hideButtons()
+            plot.getViewBox().sigRangeChangedManually.connect(self._on_manual_range)
+        self.phase.setLabel("bottom", "Frequency")
+        # The legend sits low in the middle, where the mid band leaves the plot empty.
+        self.legend = self.magnitude.addLegend()
+        self.legend.anchor(itemPos=(0.5, 1), parentPos=(0.5, 1), offset=(0, -8))
+        self.curves = {key: (self.magnitude.plot(name=name), self.phase.plot())
+                       for key, name in (("exact", "exact response"),
+                                         ("high", "estimate above: A_m / (1 + jω b1)"),
+                                         ("low", "estimate below: A_m · s / (s + ω_L)"))}
+        self.half_power = pg.InfiniteLine(angle=0, movable=False)
+        self.magnitude.addItem(self.half_power, ignoreBounds=True)
+        self.markers = {}
+        for slot in MARKER_SLOTS:
+            lines = (pg.InfiniteLine(angle=90, movable=False), pg.InfiniteLine(angle=90, movable=False))
+            self.magnitude.addItem(lines[0], ignoreBounds=True)
+            self.phase.addItem(lines[1], ignoreBounds=True)
+            dot = pg.ScatterPlotItem(size=9)
+            self.magnitude.addItem(dot)
+            label = pg.TextItem(anchor=(0, 1))
+            self.magnitude.addItem(label, ignoreBounds=True)
+            self.markers[slot] = (lines, dot, label)
+        self.cursor = tuple(pg.InfiniteLine(angle=90, movable=False) for _ in range(2))
+        self.magnitude.addItem(self.cursor[0], ignoreBounds=True)
+        self.phase.addItem(self.cursor[1], ignoreBounds=True)
+        self.canvas.scene().sigMouseMoved.connect(self._on_mouse_moved)
+        self._restyle()
+        self.show_response(None)
+
+    # -- what is shown --------------------------------------------------------
+    def show_response(self, data: BodeData | None, *, stale: bool = False) -> None:
+        """Draw ``data`` (None: clear); ``stale`` greys a result no longer current."""
+        self._data, self._stale = data, stale
+        exact_m, exact_p = self.curves["exact"]
+        if data is None:
+            for m, p in self.curves.values():
+                m.setData([], [])
+                p.setData([], [])
+            for slot in MARKER_SLOTS:
+                self._show_marker(slot, None)
+            self.half_power.hide()
+            self._set_cursor(None)
+            return
+        exact_m.setData(data.exact.freq_hz, data.exact.magnitude_db)
+        exact_p.setData(data.exact.freq_hz, data.exact.phase_deg)
+        for key, curve in (("high", data.high_estimate), ("low", data.low_estimate)):
+            m, p = self.curves[key]
+            m.setData(curve.freq_hz if curve else [], curve.magnitude_db if curve else [])
+            p.setData(curve.freq_hz if curve else [], curve.phase_deg if curve else [])
+        by_slot = {(mk.corner, mk.estimated): mk for mk in data.markers}
+        for slot in MARKER_SLOTS:
+            self._show_marker(slot, by_slot.get(slot))
+        level = data.midband_db - 3.0103
+        self.half_power.setValue(level)
+        self.half_power.show()
+        if not self._zoomed:
+            self.fit()
+        self._restyle()
+
+    def fit(self) -> None:
+        """Show the whole sweep and the magnitude from the mid band down to the view depth."""
+        self._zoomed = False
+        if self._data is None:
+            return
+        lo, hi = self._data.freq_range
+        self.magnitude.setXRange(math.log10(lo), math.log10(hi), padding=0)
+        self.magnitude.setYRange(*self._data.magnitude_view_db, padding=0)
+        self.phase.enableAutoRange(axis="y")
+
+    def is_zoomed(self) -> bool:
+        """Whether the user zoomed or panned since the last :meth:`fit`."""
+        return self._zoomed
+
+    def _on_manual_range(self, *_) -> None:
+        # A zoom or pan the user made is kept while edits update the curves.
+        self._zoomed = True
+
+    def _show_marker(self, slot, marker) -> None:
+        lines, dot, label = self.markers[slot]
+        if marker is None:
+            for item in (*lines, dot, label):
+                item.hide()
+            return
+        x = math.log10(marker.freq_hz)
+        for line in lines:
+            line.setValue(x)
+            line.show()
+        dot.setData([marker.freq_hz], [marker.level_db])
+        dot.show()
+        # Labels point into the mid band, where there is room; the estimate sits above the
+        # −3 dB line and the exact value below it, so a corner's two labels never overlap.
+        left = slot[0] == "high"
+        label.setAnchor((1.0 if left else 0.0, 1.0 if marker.estimated else 0.0))
+        label.setText((marker.text + " ") if left else (" " + marker.text))
+        label.setPos(x, marker.level_db)
+        label.show()
+
+    def set_stale(self, stale: bool) -> None:
+        """Grey every curve (the circuit as drawn cannot be analysed) or show them in colour."""
+        self._stale = stale
+        self._restyle()
+
+    def set_colours(self, colours: ViewColours) -> None:
+        """Redraw in ``colours`` (the theme changed)."""
+        self._colours = colours
+        self._restyle()
+
+    def data(self) -> BodeData | None:
+        """The response shown."""
+        return self._data
+
+    def _restyle(self) -> None:
+        c = self._colours
+        grey = self._stale
+        self.canvas.setBackground(c.paper)
+        for plot in (self.magnitude, self.phase):
+            for side in ("left", "bottom"):
+                axis = plot.getAxis(side)
+                axis.setPen(c.muted)
+                axis.setTextPen(c.ink)
+        pens = {"exact": pg.mkPen(c.stale if grey else c.ink, width=2.2),
+                "high": pg.mkPen(c.stale if grey else c.high, width=2, style=Qt.PenStyle.DashLine),
+                "low": pg.mkPen(c.stale if grey else c.low, width=2, style=Qt.PenStyle.DashLine)}
+        for key, (m, p) in self.curves.items():
+            m.setPen(pens[key])
+            p.setPen(pens[key])
+        self.half_power.setPen(pg.mkPen(c.muted, width=1, style=Qt.PenStyle.DotLine))
+        for (corner, estimated), (lines, dot, label) in self.markers.items():
+            colour = c.stale if grey else (c.band(corner) if estimated else c.ink)
+            style = Qt.PenStyle.DashLine if estimated else Qt.PenStyle.SolidLine
+            for line in lines:
+                line.setPen(pg.mkPen(colour, width=1, style=style))
+            if estimated:
+                dot.setSymbol("o")
+                dot.setBrush(pg.mkBrush(c.paper))
+            else:
+                dot.setSymbol("d")
+                dot.setBrush(pg.mkBrush(colour))
+            dot.setPen(pg.mkPen(colour, width=2))
+            label.setColor(colour)
+            fill = QColor(c.paper)
+            fill.setAlphaF(0.85)
+            label.fill = pg.mkBrush(fill)
+        for line in self.cursor:
+            line.setPen(pg.mkPen(c.selection, width=1))
+        self.legend.setLabelTextColor(c.ink)
+
+    # -- hover ----------------------------------------------------------------
+    def _set_cursor(self, x) -> None:
+        for line in self.cursor:
+            if x is None:
+                line.hide()
+            else:
+                line.setValue(x)
+                line.show()
+        text = self._data.readout(10 ** x) if (x is not None and self._data is not None) else ""
+        self.hovered.emit(text)
+
+    def _on_mouse_moved(self, pos: QPointF) -> None:
+        for plot in (self.magnitude, self.phase):
+            if plot.sceneBoundingRect().contains(pos):
+                x = plot.getViewBox().mapSceneToView(pos).x()
+                self._set_cursor(x if self._data is not None else None)
+                return
+        self._set_cursor(None)
+
+    # -- export ---------------------------------------------------------------
+    def export_image(self, path: str) -> None:
+        """Save both plots as PNG or SVG, chosen by the file's suffix.
+
+        Raises
+        ------
+        ValueError
+            The suffix is neither ``.png`` nor ``.svg``.
+        """
+        suffix = path.lower().rsplit(".", 1)[-1]
+        if suffix == "png":
+            exporter = pg.exporters.ImageExporter(self.canvas.ci)
+        elif suffix == "svg":
+            exporter = pg.exporters.SVGExporter(self.canvas.ci)
+        else:
+            raise ValueError(f"{path}: save the plot as .png or .svg")
+        exporter.export(path)

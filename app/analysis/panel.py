@@ -1,0 +1,280 @@
+"""The analysis beside the canvas: verdict, time-constant bars and Bode plot, kept live.
+
+:class:`AnalysisPanel` asks the runner for a fresh analysis on every finished edit, shows
+the newest outcome in every view, greys the last good result when the circuit as drawn
+cannot be analysed, and joins selection on the canvas and in the bars to the test picture
+drawn on the sheet. A band pin, from the bars or the canvas, is an undoable edit.
+"""
+
+from __future__ import annotations
+
+import shiboken6
+from PySide6.QtCore import QEvent, QObject, Qt
+from PySide6.QtWidgets import (QFileDialog, QHBoxLayout, QLabel, QMenu, QScrollArea, QSplitter,
+                               QToolButton, QVBoxLayout, QWidget)
+
+from engine.plotdata import part_of, write_curves_csv
+
+from .. import edits
+from ..canvas.items import PartItem
+from .bars import TimeConstantBars
+from .bode import BodePlot
+from .runner import AnalysisRunner, Outcome
+from .style import view_colours
+from .test_picture import PictureOverlay, picture_geometry
+from .verdict import ProblemBanner, VerdictStrip
+
+
+class AnalysisPanel(QWidget):
+    """Verdict, bars and Bode plot of a window's design, and the test picture on its sheet.
+
+    Parameters
+    ----------
+    window : app.main_window.MainWindow
+        Gives the document, the editor (undo stack), the scene and the view.
+    """
+
+    def __init__(self, window):
+        super().__init__()
+        self.window = window
+        self.doc = window.doc
+        self.scene = window.scene
+        self.editor = window.editor
+        self.outcome: Outcome | None = None
+        self.good: Outcome | None = None
+        self.focus: str | None = None
+        self._chosen: str | None = None
+
+        self.runner = AnalysisRunner(self)
+        self.banner = ProblemBanner()
+        self.verdict = VerdictStrip()
+        self.bars = TimeConstantBars()
+        self.bode = BodePlot()
+        self.overlay = PictureOverlay()
+        self.scene.addItem(self.overlay)
+
+        bars_scroll = QScrollArea()
+        bars_scroll.setWidget(self.bars)
+        bars_scroll.setWidgetResizable(True)
+        bars_scroll.setFrameShape(QScrollArea.Shape.NoFrame)
+
+        right = QWidget()
+        right_layout = QVBoxLayout(right)
+        right_layout.setContentsMargins(0, 0, 0, 0)
+        right_layout.setSpacing(2)
+        tools = QHBoxLayout()
+        self.hover_readout = QLabel()
+        tools.addWidget(self.hover_readout, 1)
+        fit = QToolButton(text="Fit")
+        fit.setToolTip("Show the whole sweep again after zooming or panning")
+        fit.clicked.connect(self.bode.fit)
+        tools.addWidget(fit)
+        export = QToolButton(text="Export")
+        export.setToolTip("Save the plot as a picture, or the swept curves as CSV")
+        export.setPopupMode(QToolButton.ToolButtonPopupMode.InstantPopup)
+        menu = QMenu(export)
+        menu.addAction("Plot as PNG…", lambda: self._export("PNG image (*.png)", ".png"))
+        menu.addAction("Plot as SVG…", lambda: self._export("SVG drawing (*.svg)", ".svg"))
+        menu.addAction("Curves as CSV…", lambda: self._export("CSV table (*.csv)", ".csv"))
+        export.setMenu(menu)
+        tools.addWidget(export)
+        right_layout.addLayout(tools)
+        right_layout.addWidget(self.bode, 1)
+
+        self.split = QSplitter(Qt.Orientation.Horizontal)
+        self.split.addWidget(bars_scroll)
+        self.split.addWidget(right)
+        self.split.setStretchFactor(0, 2)
+        self.split.setStretchFactor(1, 3)
+        self.split.setSizes([380, 560])
+        layout = QVBoxLayout(self)
+        layout.setContentsMargins(0, 0, 0, 0)
+        layout.setSpacing(4)
+        layout.addWidget(self.banner)
+        layout.addWidget(self.verdict)
+        layout.addWidget(self.split, 1)
+
+        self.runner.finished.connect(self._show)
+        self.doc.edited.connect(self.refresh)
+        self.scene.selectionChanged.connect(self._follow_selection)
+        self.bars.element_clicked.connect(self.select_element)
+        self.bars.pin_requested.connect(self.pin_band)
+        self.bode.hovered.connect(self.hover_readout.setText)
+        self.banner.show_requested.connect(self._select_problem_parts)
+        self._context = _CanvasMenus(self)
+        window.view.viewport().installEventFilter(self._context)
+        self.refresh()
+
+    # -- analysis -------------------------------------------------------------------------
+    def refresh(self) -> None:
+        """Analyse the design as it is now (the runner decides on which thread)."""
+        self.runner.request(self.doc)
+
+    def _show(self, outcome: Outcome) -> None:
+        self.outcome = outcome
+        if outcome.ok:
+            self.good = outcome
+            self.banner.show_problem(None)
+            self.bars.show_bars(outcome.bars)
+            self.bode.show_response(outcome.bode)
+            self.verdict.show_verdict(outcome.verdict)
+            self._mark_canvas(outcome)
+        elif outcome.problem is None:
+            # An empty sheet: nothing to say and nothing to keep.
+            self.good = None
+            self.banner.show_problem(None)
+            self.bars.show_bars(None)
+            self.bode.show_response(None)
+            self.verdict.show_verdict(None)
+        else:
+            self.banner.show_problem(outcome.problem, can_show=bool(outcome.problem_parts),
+                                     greyed=self.good is not None)
+            for view in (self.bars, self.bode, self.verdict):
+                view.set_stale(True)
+        self._follow_selection()
+
+    def _mark_canvas(self, outcome: Outcome) -> None:
+        """Colour each sheet capacitor or inductor by its band; put its numbers in its tooltip."""
+        tips: dict = {}
+        for group in outcome.bars.groups:
+            for row in group.rows:
+                tips.setdefault(row.part, []).append(row.tooltip)
+        for name in self.doc.parts:
+            result = outcome.analysis.elements.get(name)
+            self.scene.set_part_accent(name, result.band if result and result.band != "neutral" else None)
+            item = self.scene.part_item(name)
+            # A problem's own tooltip wins: it says what to fix.
+            if name in tips and item.problem is None:
+                item.setToolTip("\n\n".join(tips[name]))
+
+    # -- selection and the test picture --------------------------------------------------
+    def elements_of(self, part: str) -> list:
+        """The analysed elements a sheet part holds (itself, or a block's internal ones)."""
+        if self.good is None:
+            return []
+        return [name for name in self.good.analysis.elements if part_of(name) == part]
+
+    def select_element(self, name: str) -> None:
+        """Select element ``name`` on the canvas and in the bars, and draw its test picture."""
+        self._chosen = name
+        self.scene.select([part_of(name)])
+        self._follow_selection()
+
+    def _follow_selection(self) -> None:
+        # The scene announces its shrinking selection while it is being torn down, when
+        # neither it nor its items can be asked anything any more.
+        if not (shiboken6.isValid(self.scene) and shiboken6.isValid(self.bars)):
+            return
+        names = [item.name for item in self.scene.selectedItems() if isinstance(item, PartItem)]
+        focus = None
+        if len(names) == 1 and self.outcome is not None and self.outcome.ok:
+            inside = self.elements_of(names[0])
+            if self._chosen in inside:
+                focus = self._chosen
+            elif names[0] in inside:
+                focus = names[0]
+            elif inside:
+                # A block clicked on the canvas shows its element with the largest share.
+                rows = [self.good.bars.row(n) for n in inside]
+                focus = max((r for r in rows if r is not None), key=lambda r: r.share).name
+        if focus is None:
+            self._chosen = None
+        self.focus = focus
+        self.bars.set_selected(focus)
+        outcome = self.outcome
+        geometry = picture_geometry(outcome.doc, outcome.netlist, outcome.analysis, focus) \
+            if focus is not None else None
+        self.overlay.show_picture(geometry, self.scene.content_rect())
+
+    def _select_problem_parts(self) -> None:
+        if self.outcome is not None:
+            self.scene.select([p for p in self.outcome.problem_parts if p in self.doc.parts])
+
+    # -- pins -----------------------------------------------------------------------------
+    def pin_band(self, name: str, band: str) -> None:
+        """Pin element ``name`` to ``"low"`` or ``"high"``, or unpin it with ``""``; undoable."""
+        patch = edits.pin_band(self.doc, name, band or None)
+        text = f"Pin {name} to the {band} band" if band else f"Let the gain test choose {name}'s band"
+        self.editor.patch(patch, text)
+
+    def pin_menu_for_part(self, part: str) -> QMenu | None:
+        """The band menu for a sheet part: its own, or one submenu per element inside a block."""
+        inside = self.elements_of(part)
+        if not inside:
+            return None
+        if inside == [part]:
+            return self.bars.pin_menu(part, self)
+        menu = QMenu(self)
+        for name in inside:
+            sub = self.bars.pin_menu(name, menu)
+            sub.setTitle(name)
+            menu.addMenu(sub)
+        return menu
+
+    # -- export ---------------------------------------------------------------------------
+    def _export(self, kind: str, suffix: str) -> None:
+        if self.good is None:
+            return
+        path, _ = QFileDialog.getSaveFileName(self, "Export", f"response{suffix}", kind)
+        if path:
+            self.export(path)
+
+    def export(self, path: str) -> None:
+        """Save the plot (``.png``, ``.svg``) or the plotted curves (``.csv``) to ``path``."""
+        if path.lower().endswith(".csv"):
+            write_curves_csv(self.good.bode, path)
+        else:
+            self.bode.export_image(path)
+
+    # -- looks ----------------------------------------------------------------------------
+    def changeEvent(self, event):
+        if event.type() in (QEvent.Type.PaletteChange, QEvent.Type.ApplicationPaletteChange):
+            self.restyle()
+        super().changeEvent(event)
+
+    def restyle(self) -> None:
+        """Take the colours of the current palette (light or dark)."""
+        colours = view_colours()
+        for view in (self.bars, self.bode, self.verdict, self.banner, self.overlay):
+            view.set_colours(colours)
+
+
+class _CanvasMenus(QObject):
+    """Offers the band menu when a capacitor, inductor or block is right-clicked on the canvas."""
+
+    def __init__(self, panel: AnalysisPanel):
+        super().__init__(panel)
+        self.panel = panel
+
+    def eventFilter(self, watched, event):
+        if event.type() != QEvent.Type.ContextMenu:
+            return False
+        view = self.panel.window.view
+        pos = view.mapToScene(event.pos())
+        part = next((item.name for item in self.panel.scene.items(pos) if isinstance(item, PartItem)), None)
+        menu = self.panel.pin_menu_for_part(part) if part else None
+        if menu is None:
+            return False
+        menu.exec(event.globalPos())
+        return True
+
+
+ANALYSIS_SHARE = 0.48
+"""Of the height the canvas and the analysis share, what the analysis gets at first."""
+
+
+def install_analysis_views(window) -> AnalysisPanel:
+    """Put the analysis panel into ``window.analysis_area`` in place of its placeholder,
+    and give it nearly half the height: a Bode plot and its bars need room to be read."""
+    layout = window.analysis_area.layout()
+    placeholder = getattr(window, "analysis_placeholder", None)
+    if placeholder is not None:
+        layout.removeWidget(placeholder)
+        placeholder.deleteLater()
+        window.analysis_placeholder = None
+    layout.setContentsMargins(4, 4, 4, 4)
+    panel = AnalysisPanel(window)
+    layout.addWidget(panel)
+    total = sum(window.splitter.sizes()) or window.height()
+    window.splitter.setSizes([round(total * (1 - ANALYSIS_SHARE)), round(total * ANALYSIS_SHARE)])
+    return panel

@@ -1,0 +1,206 @@
+"""Re-analysing the design after every finished edit, off the UI thread when it is slow.
+
+:func:`analyse_design` is the whole job, free of Qt: design → circuit → analysis → what the
+views draw, or the problem that stops it. :class:`AnalysisRunner` runs it on the UI thread
+while runs stay quick (no thread hand-over to wait for), and on a worker thread once a run
+has taken longer than :data:`THREAD_AFTER_S`. Each request gets a generation number; only
+the newest request's outcome is delivered, and while one run is under way only the newest
+of the requests that arrive meanwhile is kept, so a burst of edits costs at most two runs.
+"""
+
+from __future__ import annotations
+
+import time
+from dataclasses import dataclass
+
+from PySide6.QtCore import QObject, QThreadPool, Signal
+
+from engine.analysis import analyze
+from engine.document import Document
+from engine.errors import CircuitError
+from engine.netlist import Netlist, build_netlist, connectivity_problems, design_to_circuit
+from engine.plotdata import BarData, BodeData, VerdictData, bar_data, bode_data, verdict_data
+
+THREAD_AFTER_S = 0.030
+"""A run slower than this (seconds) moves the next ones off the UI thread."""
+
+
+@dataclass(frozen=True)
+class Outcome:
+    """The result of analysing one state of the design.
+
+    Attributes
+    ----------
+    generation : int
+        Which request this answers (higher is newer).
+    doc : Document
+        The snapshot of the design that was analysed.
+    netlist : Netlist or None
+        Its nets (None for an empty design).
+    analysis : engine.analysis.Analysis or None
+        The analysis, or None if the design is empty or cannot be analysed.
+    bode, bars, verdict : BodeData, BarData, VerdictData or None
+        What the views draw.
+    problem : str or None
+        Why the design cannot be analysed, naming the part or node.
+    problem_parts : tuple of str
+        The parts at fault.
+    problem_points : tuple of (int, int)
+        Sheet points at fault (scene units).
+    seconds : float
+        How long the run took, s.
+    """
+
+    generation: int
+    doc: Document
+    netlist: Netlist | None = None
+    analysis: object = None
+    bode: BodeData | None = None
+    bars: BarData | None = None
+    verdict: VerdictData | None = None
+    problem: str | None = None
+    problem_parts: tuple = ()
+    problem_points: tuple = ()
+    seconds: float = 0.0
+
+    @property
+    def ok(self) -> bool:
+        """Whether there is an analysis to show."""
+        return self.analysis is not None
+
+
+def snapshot(doc: Document) -> Document:
+    """A copy of ``doc`` that later edits do not touch (parts and wires are immutable values)."""
+    copy = Document(doc.title)
+    copy.replace_all(doc)
+    return copy
+
+
+def _problem_outcome(generation, doc, nets, message, parts=(), points=(), started=0.0) -> Outcome:
+    return Outcome(generation, doc, nets, problem=message, problem_parts=tuple(parts),
+                   problem_points=tuple(points), seconds=time.perf_counter() - started)
+
+
+def analyse_design(doc: Document, generation: int = 0) -> Outcome:
+    """Analyse a design snapshot and prepare what the views draw; never raises.
+
+    Parameters
+    ----------
+    doc : Document
+        A snapshot (see :func:`snapshot`): it is read from another thread.
+    generation : int
+        Carried into the outcome.
+    """
+    started = time.perf_counter()
+    if doc.is_empty():
+        return Outcome(generation, doc, seconds=time.perf_counter() - started)
+    nets = build_netlist(doc)
+    try:
+        circuit = design_to_circuit(doc)
+    except CircuitError:
+        problems = connectivity_problems(doc)
+        first = problems[0]
+        more = f" (and {len(problems) - 1} more problem{'s' if len(problems) > 2 else ''})" \
+            if len(problems) > 1 else ""
+        return _problem_outcome(generation, doc, nets, first.message + more, first.parts,
+                                first.points, started)
+    try:
+        analysis = analyze(circuit, bands=dict(doc.band_pins))
+    except CircuitError as exc:
+        points = tuple(pt for node in exc.nodes for pt in nets.net_points.get(node, ()))
+        parts = tuple(dict.fromkeys(p.split(".", 1)[0] for p in exc.parts))
+        return _problem_outcome(generation, doc, nets, exc.message, parts, points, started)
+    except Exception as exc:  # noqa: BLE001
+        # A breakdown the checks did not foresee (a numerical failure deep in a solver) must
+        # still reach the user as a sentence, and must not leave the worker thread silent.
+        return _problem_outcome(generation, doc, nets,
+                                f"The analysis could not be completed ({type(exc).__name__}: {exc}); "
+                                "check the values of the parts you changed last.", started=started)
+    return Outcome(generation, doc, nets, analysis, bode_data(analysis), bar_data(analysis),
+                   verdict_data(analysis), seconds=time.perf_counter() - started)
+
+
+class _Relay(QObject):
+    """Carries a worker's outcome back to the UI thread (it lives there, so delivery is queued)."""
+
+    done = Signal(object)
+
+
+class AnalysisRunner(QObject):
+    """Analyses the newest state of a design and announces its outcome.
+
+    Signals
+    -------
+    finished(Outcome)
+        The outcome of the newest request; older ones are dropped unannounced.
+    """
+
+    finished = Signal(object)
+
+    def __init__(self, parent=None, thread_after_s: float = THREAD_AFTER_S):
+        super().__init__(parent)
+        self.thread_after_s = thread_after_s
+        self.pool = QThreadPool(self)
+        self.pool.setMaxThreadCount(1)
+        self._relay = _Relay(self)
+        self._relay.done.connect(self._on_done)
+        self._generation = 0
+        self._running = False
+        self._pending: tuple | None = None
+        self.last_seconds = 0.0
+        self.threaded_runs = 0
+
+    @property
+    def generation(self) -> int:
+        """The number of the newest request."""
+        return self._generation
+
+    def is_busy(self) -> bool:
+        """Whether a run is under way on the worker thread."""
+        return self._running
+
+    def request(self, doc: Document) -> None:
+        """Analyse ``doc`` as it is now; a newer request supersedes this one."""
+        self._generation += 1
+        job = (self._generation, snapshot(doc))
+        if self._running:
+            self._pending = job
+        else:
+            self._start(job)
+
+    def _start(self, job) -> None:
+        generation, doc = job
+        if self.last_seconds <= self.thread_after_s:
+            self._on_done(analyse_design(doc, generation))
+            return
+        self._running = True
+        self.threaded_runs += 1
+        relay = self._relay
+        self.pool.start(lambda: relay.done.emit(analyse_design(doc, generation)))
+
+    def _on_done(self, outcome: Outcome) -> None:
+        self._running = False
+        self.last_seconds = outcome.seconds
+        if outcome.generation == self._generation:
+            self.finished.emit(outcome)
+        if self._pending is not None:
+            job, self._pending = self._pending, None
+            self._start(job)
+
+    def wait(self, timeout_ms: int = 10000) -> bool:
+        """Block until no run is under way (for tests, screenshots and shutdown).
+
+        Returns
+        -------
+        bool
+            True if every run finished within ``timeout_ms``.
+        """
+        from PySide6.QtCore import QCoreApplication, QDeadlineTimer
+
+        deadline = QDeadlineTimer(timeout_ms)
+        while self._running or self._pending is not None:
+            if deadline.hasExpired():
+                return False
+            self.pool.waitForDone(20)
+            QCoreApplication.processEvents()
+        return True

@@ -1,0 +1,42 @@
+"""Colours of the analysis views, taken from the canvas theme so both read as one picture.
+
+The band colours are the canvas's (from the Okabe–Ito set, distinguishable under the common
+forms of colour blindness); the exact response is drawn in the ink colour, so the estimates
+stand out against it by hue and by their dashes, never by hue alone.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+from PySide6.QtGui import QColor
+
+from app.theme import Theme, system_theme
+
+@dataclass(frozen=True)
+class ViewColours:
+    """Every colour the bars, the Bode plot, the verdict and the test picture use."""
+
+    dark: bool
+    paper: QColor
+    ink: QColor
+    muted: QColor
+    grid: QColor
+    high: QColor
+    low: QColor
+    neutral: QColor
+    selection: QColor
+    problem: QColor
+    stale: QColor
+
+    def band(self, band: str) -> QColor:
+        """The colour of ``"high"``, ``"low"`` or ``"neutral"``."""
+        return {"high": self.high, "low": self.low}.get(band, self.neutral)
+
+
+def view_colours(theme: Theme | None = None) -> ViewColours:
+    """The analysis views' colours for ``theme`` (default: the one matching the app palette)."""
+    t = theme or system_theme()
+    return ViewColours(dark=t.dark, paper=t.paper, ink=t.ink, muted=t.value, grid=t.grid,
+                       high=t.band_high, low=t.band_low, neutral=t.ghost, selection=t.selection,
+                       problem=t.problem, stale=t.ghost)

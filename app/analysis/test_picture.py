@@ -1,0 +1,358 @@
+"""An element's test picture drawn over the sheet: how the resistance it sees is found.
+
+The engine says which elements are shorted, opened and zeroed and which two nodes the test
+source joins (:meth:`engine.analysis.Analysis.test_picture`). :func:`picture_geometry`
+places that on the sheet (plain tuples, no Qt), and :class:`PictureOverlay` draws it: the
+element under test replaced by a test-source glyph with its label, open elements faded with
+a gap cut through them, shorted elements and zeroed voltage sources bridged by a bold wire.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+from PySide6.QtCore import QPointF, QRectF, Qt
+from PySide6.QtGui import QColor, QFont, QFontMetricsF, QPainterPath, QPen
+from PySide6.QtWidgets import QGraphicsItem
+
+from engine.plotdata import element_label, part_of
+
+from .style import ViewColours, view_colours
+
+Z_PICTURE = 4.5
+"""Above parts, wires and junctions (1–3) and problem marks (4); below previews (5)."""
+FADE_HALF_WIDTH = 16
+GAP = 10
+GLYPH_R = 13
+GLYPH_OFFSET = 56
+"""How far (scene units) a block-internal element's glyph sits outside its block."""
+
+GRID_STEP = 20
+"""Sheet grid (scene units): wires are sampled this often to keep the label off them."""
+
+INTERNAL_NODE_PIN = {("bjt", "bi"): "base", ("opamp", "x"): "out", ("opamp", "y"): "out"}
+"""A block's internal node -> the pin it is drawn at (b′ sits behind r_b at the base)."""
+
+
+@dataclass(frozen=True)
+class PictureGeometry:
+    """Where the parts of a test picture go on the sheet (scene units).
+
+    Attributes
+    ----------
+    element : str
+        The element under test.
+    band : str
+        Its band (``"high"`` or ``"low"``).
+    faded : tuple of ((x, y), (x, y))
+        Two-pin parts drawn faded: the pins of each.
+    gaps : tuple of ((x, y), (x, y))
+        Opened parts (and zeroed current sources): a gap is cut at their middle.
+    shorts : tuple of ((x, y), (x, y))
+        Shorted parts (and zeroed voltage sources): a bold wire pin to pin.
+    test_nodes : ((x, y), (x, y))
+        The sheet points the test source joins.
+    glyph : (x, y)
+        Where the test-source glyph is drawn.
+    lines : tuple of str
+        The label: the element, its numbers, what the rest of the circuit is doing.
+    obstacles : tuple of (x, y)
+        Sheet points the label should not cover: pins, and wires every grid step.
+    """
+
+    element: str
+    band: str
+    faded: tuple
+    gaps: tuple
+    shorts: tuple
+    test_nodes: tuple
+    glyph: tuple
+    lines: tuple
+    obstacles: tuple
+
+
+def _obstacles(doc) -> tuple:
+    # Pins, part origins (the middle of most symbols) and the name/value spot beside them.
+    points = [pos for part in doc.parts.values() for pos in (*part.pins().values(), (part.x, part.y),
+                                                                (part.x + GRID_STEP, part.y))]
+    for wire in doc.wires.values():
+        for (x0, y0), (x1, y1) in zip(wire.points, wire.points[1:]):
+            steps = max(1, int(max(abs(x1 - x0), abs(y1 - y0)) // GRID_STEP))
+            points += [(x0 + (x1 - x0) * k / steps, y0 + (y1 - y0) * k / steps) for k in range(steps + 1)]
+    return tuple(points)
+
+
+def _two_pins(part) -> tuple:
+    pins = list(part.pins().values())
+    return pins[0], pins[1]
+
+
+def _mid(a, b) -> tuple:
+    return ((a[0] + b[0]) / 2, (a[1] + b[1]) / 2)
+
+
+def _node_point(doc, nets, block, node) -> tuple:
+    """Where node ``node`` of block-internal element is drawn: a pin of the block if it is on
+    one, the pin an internal node sits behind, else the nearest sheet point of that net."""
+    part = doc.parts[block]
+    pins = part.pins()
+    for pin, pos in pins.items():
+        if nets.pin_net.get((block, pin)) == node:
+            return pos
+    if node.startswith(f"{block}."):
+        pin = INTERNAL_NODE_PIN.get((part.kind, node.split(".", 1)[1]))
+        if pin in pins:
+            return pins[pin]
+    centre = (part.x, part.y)
+    points = nets.net_points.get(node, ()) or tuple(pins.values())
+    return min(points, key=lambda p: math.dist(p, centre))
+
+
+def _outward(block_part, a, b) -> tuple:
+    """A glyph spot beside the segment a–b, on the side away from the block's origin."""
+    m = _mid(a, b)
+    dx, dy = b[0] - a[0], b[1] - a[1]
+    length = math.hypot(dx, dy) or 1.0
+    nx, ny = -dy / length, dx / length
+    away = (m[0] - block_part.x, m[1] - block_part.y)
+    if nx * away[0] + ny * away[1] < 0:
+        nx, ny = -nx, -ny
+    if (dx, dy) == (0, 0):
+        nx, ny = 1.0, 0.0
+    return (m[0] + nx * GLYPH_OFFSET, m[1] + ny * GLYPH_OFFSET)
+
+
+def _state_lines(picture, doc) -> list:
+    """What the rest of the circuit is doing, one line per state, sheet parts by name."""
+    sheet_open = [n for n in picture.opened if n in doc.parts]
+    sheet_short = [n for n in picture.shorted if n in doc.parts]
+    inner = [n for n in (*picture.opened, *picture.shorted) if n not in doc.parts]
+    lines = []
+    if sheet_open:
+        lines.append(f"open (gap): {', '.join(sheet_open)}")
+    if sheet_short:
+        lines.append(f"shorted (bold wire): {', '.join(sheet_short)}")
+    zeroed = [n for n in picture.zeroed if n in doc.parts]
+    if zeroed:
+        lines.append(f"source zeroed: {', '.join(zeroed)}")
+    if inner:
+        lines.append(f"inside blocks: {len(inner)} more at their mid-band state")
+    return lines
+
+
+def picture_geometry(doc, nets, analysis, element: str) -> PictureGeometry | None:
+    """Place ``element``'s test picture on the sheet of ``doc``.
+
+    Parameters
+    ----------
+    doc : engine.document.Document
+        The design that was analysed.
+    nets : engine.netlist.Netlist
+        Its nets.
+    analysis : engine.analysis.Analysis
+    element : str
+        A capacitor or inductor of the analysis (``Cin``, ``Q1.cmu``).
+
+    Returns
+    -------
+    PictureGeometry or None
+        None for a neutral element (it sees no resistance that matters) or one not on the sheet.
+    """
+    if element not in analysis.elements or part_of(element) not in doc.parts:
+        return None
+    picture = analysis.test_picture(element)
+    if picture is None:
+        return None
+    result = analysis.elements[element]
+    faded, gaps, shorts = [], [], []
+    for name in picture.opened:
+        if name in doc.parts:
+            pins = _two_pins(doc.parts[name])
+            faded.append(pins)
+            gaps.append(pins)
+    for name in picture.shorted:
+        if name in doc.parts:
+            pins = _two_pins(doc.parts[name])
+            faded.append(pins)
+            shorts.append(pins)
+    for name in picture.zeroed:
+        part = doc.parts.get(name)
+        if part is None:
+            continue
+        pins = _two_pins(part)
+        faded.append(pins)
+        # A zeroed voltage source is a short, a zeroed current source an open.
+        (shorts if part.kind == "vsource" else gaps).append(pins)
+    if element in doc.parts:
+        ends = _two_pins(doc.parts[element])
+        faded.append(ends)
+        glyph = _mid(*ends)
+    else:
+        block = part_of(element)
+        ends = tuple(_node_point(doc, nets, block, node) for node in picture.nodes)
+        glyph = _outward(doc.parts[block], *ends)
+    lines = (f"{element}: a test source in its place", element_label(result),
+             *_state_lines(picture, doc))
+    return PictureGeometry(element, result.band, tuple(faded), tuple(gaps), tuple(shorts),
+                           ends, glyph, tuple(line for line in lines if line), _obstacles(doc))
+
+
+def _pt(p) -> QPointF:
+    return QPointF(float(p[0]), float(p[1]))
+
+
+class PictureOverlay(QGraphicsItem):
+    """The drawn test picture; one item, laid out when a picture is set, hidden when there is none."""
+
+    def __init__(self, colours: ViewColours | None = None):
+        super().__init__()
+        self.setZValue(Z_PICTURE)
+        self.setAcceptedMouseButtons(Qt.MouseButton.NoButton)
+        self._colours = colours or view_colours()
+        self.geometry: PictureGeometry | None = None
+        self._bounds = QRectF()
+        self._fade = QPainterPath()
+        self._gaps: list = []
+        self._shorts: list = []
+        self._leads = QPainterPath()
+        self._glyph = QRectF()
+        self._label = QRectF()
+        self._label_lines: list = []
+        self.setVisible(False)
+
+    def set_colours(self, colours: ViewColours) -> None:
+        """Redraw in ``colours`` (the theme changed)."""
+        self._colours = colours
+        self.update()
+
+    def show_picture(self, geometry: PictureGeometry | None, room: QRectF | None = None) -> None:
+        """Draw ``geometry`` (None hides the picture), its label kept inside ``room`` (the
+        drawing's bounds, scene units) where it fits, so it is in view with the circuit."""
+        self.prepareGeometryChange()
+        self.geometry = geometry
+        self.setVisible(geometry is not None)
+        if geometry is None:
+            self._bounds = QRectF()
+            return
+        self._fade = QPainterPath()
+        for a, b in geometry.faded:
+            self._fade.addRect(_span_rect(a, b, FADE_HALF_WIDTH))
+        self._gaps = [_gap_rect(a, b) for a, b in geometry.gaps]
+        self._shorts = [(_pt(a), _pt(b)) for a, b in geometry.shorts]
+        g = _pt(geometry.glyph)
+        self._glyph = QRectF(g.x() - GLYPH_R, g.y() - GLYPH_R, 2 * GLYPH_R, 2 * GLYPH_R)
+        self._leads = QPainterPath()
+        for end in geometry.test_nodes:
+            self._leads.moveTo(_pt(end))
+            self._leads.lineTo(g)
+        fonts = _label_fonts(len(geometry.lines))
+        metrics = [QFontMetricsF(f) for f in fonts]
+        width = max(m.horizontalAdvance(t) for m, t in zip(metrics, geometry.lines)) + 16
+        height = sum(m.height() for m in metrics[:len(geometry.lines)]) + 10
+        self._label = _place_label(g, width, height, room, geometry.obstacles)
+        self._label_lines = []
+        y = self._label.top() + 5
+        for text, font, m in zip(geometry.lines, fonts, metrics):
+            self._label_lines.append((QPointF(self._label.left() + 8, y + m.ascent()), text, font))
+            y += m.height()
+        bounds = self._fade.boundingRect().united(self._label).united(self._glyph).united(self._leads.boundingRect())
+        self._bounds = bounds.adjusted(-6, -6, 6, 6)
+
+    def boundingRect(self) -> QRectF:
+        return self._bounds
+
+    def paint(self, painter, option, widget=None):
+        if self.geometry is None:
+            return
+        c = self._colours
+        accent = c.band(self.geometry.band)
+        painter.setRenderHint(painter.RenderHint.Antialiasing)
+        veil = QColor(c.paper)
+        veil.setAlphaF(0.72)
+        painter.setPen(Qt.PenStyle.NoPen)
+        painter.setBrush(veil)
+        painter.drawPath(self._fade)
+        painter.setBrush(c.paper)
+        for rect in self._gaps:
+            painter.drawRect(rect)
+        painter.setPen(QPen(c.muted, 1.5, Qt.PenStyle.DashLine))
+        painter.setBrush(Qt.BrushStyle.NoBrush)
+        for rect in self._gaps:
+            painter.drawRect(rect)
+        painter.setPen(QPen(c.ink, 5, Qt.PenStyle.SolidLine, Qt.PenCapStyle.RoundCap))
+        for a, b in self._shorts:
+            painter.drawLine(a, b)
+        painter.setPen(QPen(accent, 2.5, Qt.PenStyle.DashLine))
+        painter.drawPath(self._leads)
+        painter.setPen(QPen(accent, 2.5))
+        painter.setBrush(c.paper)
+        painter.drawEllipse(self._glyph)
+        # A current arrow inside the ring: the test source drives a current and reads the
+        # voltage it makes, which is the resistance the element sees.
+        ctr = self._glyph.center()
+        painter.drawLine(QPointF(ctr.x(), ctr.y() + 7), QPointF(ctr.x(), ctr.y() - 6))
+        head = QPainterPath(QPointF(ctr.x(), ctr.y() - 8))
+        head.lineTo(ctr.x() - 4, ctr.y() - 2)
+        head.lineTo(ctr.x() + 4, ctr.y() - 2)
+        head.closeSubpath()
+        painter.setBrush(accent)
+        painter.drawPath(head)
+        box = QColor(c.paper)
+        box.setAlphaF(0.94)
+        painter.setBrush(box)
+        painter.setPen(QPen(accent, 2))
+        painter.drawRoundedRect(self._label, 5, 5)
+        for i, (at, text, font) in enumerate(self._label_lines):
+            painter.setFont(font)
+            painter.setPen(accent if i == 0 else (c.ink if i == 1 else c.muted))
+            painter.drawText(at, text)
+
+
+def _label_fonts(n: int) -> list:
+    """Fonts of the label's lines: the name, the numbers (largest), then the notes."""
+    head, body, note = QFont(), QFont(), QFont()
+    head.setBold(True)
+    body.setBold(True)
+    body.setPointSizeF(body.pointSizeF() * 1.15)
+    note.setPointSizeF(note.pointSizeF() * 0.9)
+    return [head, body] + [note] * max(0, n - 2)
+
+
+def _place_label(glyph: QPointF, width: float, height: float, room: QRectF | None, obstacles) -> QRectF:
+    """Beside the glyph where the label covers the fewest pins and wires and stays in ``room``
+    (the drawing's bounds, so it is in view when the drawing is); right of it on a tie."""
+    near = GLYPH_R + 10
+    x, y = glyph.x(), glyph.y()
+    spots = [QRectF(x + near, y - height / 2, width, height), QRectF(x - near - width, y - height / 2, width, height),
+             QRectF(x + near, y - near - height, width, height), QRectF(x + near, y + near, width, height),
+             QRectF(x - near - width, y - near - height, width, height), QRectF(x - near - width, y + near, width, height)]
+    points = [QPointF(float(px), float(py)) for px, py in obstacles]
+    grown = room.adjusted(-30, -30, 30, 30) if room is not None and not room.isEmpty() else None
+
+    def cost(rect: QRectF) -> float:
+        covered = sum(rect.contains(p) for p in points)
+        outside = 0.0 if grown is None else (rect.width() * rect.height() - rect.intersected(grown).width()
+                                             * rect.intersected(grown).height()) / 400.0
+        return covered + outside
+
+    return min(spots, key=cost)
+
+
+def _span_rect(a, b, half: float) -> QRectF:
+    """The rectangle around the segment a–b, ``half`` wide on each side."""
+    x0, x1 = sorted((a[0], b[0]))
+    y0, y1 = sorted((a[1], b[1]))
+    if x0 == x1:
+        return QRectF(x0 - half, y0, 2 * half, y1 - y0)
+    if y0 == y1:
+        return QRectF(x0, y0 - half, x1 - x0, 2 * half)
+    return QRectF(x0, y0, x1 - x0, y1 - y0)
+
+
+def _gap_rect(a, b) -> QRectF:
+    """A short cut across the middle of the segment a–b, as wide as the faded symbol."""
+    m = _mid(a, b)
+    if a[0] == b[0]:
+        return QRectF(m[0] - FADE_HALF_WIDTH, m[1] - GAP / 2, 2 * FADE_HALF_WIDTH, GAP)
+    return QRectF(m[0] - GAP / 2, m[1] - FADE_HALF_WIDTH, GAP, 2 * FADE_HALF_WIDTH)
