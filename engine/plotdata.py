@@ -35,7 +35,8 @@ tens of gigahertz would otherwise squeeze the corners into a corner of the plot.
 VIEW_DEPTH_DB = 60.0
 """How far below the mid-band gain the magnitude axis reaches at most, dB."""
 
-BAND_TITLES = {"high": "High band", "low": "Low band", "neutral": "No effect on the gain"}
+BAND_TITLES = {"high": "High band: τ, share of b1", "low": "Low band: 1/2πτ, share of ω_L",
+               "neutral": "No effect on the gain"}
 
 
 @dataclass(frozen=True)
@@ -155,11 +156,11 @@ class BarRow:
     value : float
         High band: the time constant τ, s. Low band: 1/(2πτ), Hz. Neutral: 0.
     value_text : str
-        ``value`` formatted with its unit.
+        ``value`` formatted with its unit (``"150 ns"``, ``"53.1 Hz"``); ``"—"`` if neutral.
     share : float
         Share of b1 (high band) or of ω_L (low band), 0–1; 0 for neutral elements.
     share_text : str
-        E.g. ``"84 % of b1"``.
+        E.g. ``"84 %"`` (of the sum named in the group's title); empty if neutral.
     pinned : bool
         The user pinned this element's band.
     dominant : bool
@@ -189,9 +190,9 @@ class BandGroup:
     band : str
         ``"high"``, ``"low"`` or ``"neutral"``.
     title : str
-        Heading, e.g. ``"High band"``.
+        Heading, e.g. ``"High band: τ, share of b1"``.
     total_text : str
-        The sum and the estimate it gives, e.g. ``"b1 = Σ τ = 178 ns → f_H ≈ 894 kHz"``.
+        The sum and the estimate it gives, e.g. ``"b1 = 178 ns → f_H ≈ 894 kHz"``.
     rows : tuple of BarRow
     """
 
@@ -464,22 +465,22 @@ def _group(band: str, results: list, analysis) -> BandGroup:
     rows = []
     for r in results:
         if band == "high":
-            value, text = r.time_constant, f"τ = {format_value(r.time_constant, 's')}"
+            value, text = r.time_constant, format_value(r.time_constant, "s")
         elif band == "low":
             value = 1 / (2 * math.pi * r.time_constant)
-            text = f"1/2πτ = {format_value(value, 'Hz')}"
+            text = format_value(value, "Hz")
         else:
             value, text = 0.0, "—"
-        share_text = "" if band == "neutral" else f"{_percent(r.share)} of {_band_sum_name(band)}"
+        share_text = "" if band == "neutral" else _percent(r.share)
         rows.append(BarRow(r.name, part_of(r.name), band, float(value), text,
                            0.0 if band == "neutral" else float(r.share), share_text,
                            bool(r.pinned), r.name == top, element_tooltip(r)))
     if band == "high":
-        total = f"b1 = Σ τ = {format_value(analysis.b1, 's')}"
+        total = f"b1 = {format_value(analysis.b1, 's')}"
         if _positive(analysis.f_high_estimate):
             total += f" → f_H ≈ {format_value(analysis.f_high_estimate, 'Hz')}"
     elif band == "low":
-        total = "ω_L = Σ 1/τ"
+        total = f"ω_L = {format_value(analysis.omega_low_estimate or 0.0, 'rad/s')}"
         if _positive(analysis.f_low_estimate):
             total += f" → f_L ≈ {format_value(analysis.f_low_estimate, 'Hz')}"
     else:
@@ -529,7 +530,7 @@ def verdict_data(analysis) -> VerdictData:
         top = next((r for r in g.rows if r.dominant), None)
         if top is not None:
             corner = "f_H" if g.band == "high" else "f_L"
-            limits.append(f"{top.name} sets {corner} ({top.share_text})")
+            limits.append(f"{top.name} sets {corner} ({top.share_text} of {_band_sum_name(g.band)})")
     dominant = "; ".join(limits) if limits else "no element sets a corner"
     return VerdictData(_gain_text(float(analysis.midband_gain), analysis.gain_unit),
                        _corner_text("f_H", analysis.f_high_estimate, analysis.f_high_exact),

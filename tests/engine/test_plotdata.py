@@ -125,14 +125,15 @@ def test_bars_sorted_by_share_with_dominant_and_pinned_marked():
     assert high.rows[0].dominant and not high.rows[1].dominant
     assert low.rows[0].dominant and low.rows[0].pinned
     assert high.rows[0].value == pytest.approx(74.9e3 * 2e-12)
-    assert high.rows[0].value_text == "τ = 150 ns" and high.rows[0].share_text == "84 % of b1"
+    assert high.rows[0].value_text == "150 ns" and high.rows[0].share_text == "84 %"
     # A low-band bar reads 1/τ as a frequency: 1/(2π·30 Ω·100 µF) = 53.1 Hz.
     assert low.rows[0].value == pytest.approx(1 / (2 * math.pi * 3e-3))
-    assert low.rows[0].value_text == "1/2πτ = 53.1 Hz" and low.rows[0].share_text == "70 % of ω_L"
+    assert low.rows[0].value_text == "53.1 Hz" and low.rows[0].share_text == "70 %"
     assert neutral.rows[0].share == 0 and not neutral.rows[0].dominant
     tiny = bar_data(_two_corner(elements={"Cx": _element("Cx", "high", 1.0, 1e-15, 0.004)}))
-    assert tiny.groups[0].rows[0].share_text == "<1 % of b1"
-    assert high.total_text == "b1 = Σ τ = 159 ns → f_H ≈ 1 MHz"
+    assert tiny.groups[0].rows[0].share_text == "<1 %"
+    assert high.total_text == "b1 = 159 ns → f_H ≈ 1 MHz"
+    assert low.total_text == "ω_L = 126 rad/s → f_L ≈ 20 Hz"
     assert bars.row("Cin").band == "low" and bars.row("nothing") is None
 
 
