@@ -1,0 +1,468 @@
+"""The design advisor: targets, sensitivities, the value that meets a target, tolerance spread, report.
+
+Every number shown comes from an engine result (:mod:`engine.targets`,
+:mod:`engine.sensitivity`, :mod:`engine.tolerance`); the widgets only lay them out. Long
+searches run on a worker thread over a snapshot of the design, so the sheet stays live;
+every change to the design goes through the window's :class:`app.commands.Editor`.
+"""
+
+from __future__ import annotations
+
+import math
+import threading
+
+import numpy as np
+import pyqtgraph as pg
+from PySide6.QtCore import QObject, QThreadPool, Qt, Signal
+from PySide6.QtGui import QUndoCommand
+from PySide6.QtWidgets import (QComboBox, QFormLayout, QGridLayout, QHBoxLayout, QHeaderView, QLabel,
+                               QLineEdit, QProgressBar, QPushButton, QSpinBox, QTableWidget,
+                               QTableWidgetItem, QTabWidget, QVBoxLayout, QWidget)
+
+from engine import analyze
+from engine.document import Document
+from engine.errors import CircuitError
+from engine.netlist import design_to_circuit
+from engine.sensitivity import FIGURE_TITLES, sensitivities
+from engine.targets import TARGET_LABELS, check_targets, parse_targets, values_that_meet
+from engine.tolerance import Cancelled, spread_of_design
+from engine.values import format_value
+
+from .. import edits
+
+SERIES = ("E12", "E24", "E48", "E96")
+_TARGET_FIELDS = (("f_high_min", "Minimum f_H", "e.g. 1M"), ("f_low_max", "Maximum f_L", "e.g. 20"),
+                  ("gain", "Mid-band gain", "e.g. 100 or 40 dB"), ("gain_tolerance", "Gain tolerance", "e.g. 10 % or 1 dB"))
+
+
+def snapshot(doc: Document) -> Document:
+    """A copy of ``doc`` for a worker thread; later edits do not touch it."""
+    copy = Document(doc.title)
+    copy.replace_all(doc)
+    copy.description = doc.description
+    return copy
+
+
+class TargetCommand(QUndoCommand):
+    """Setting one design target's text (the document's patches do not cover targets)."""
+
+    def __init__(self, doc: Document, key: str, text: str):
+        super().__init__(f"Set {TARGET_LABELS[key]} target")
+        self.doc, self.key = doc, key
+        self.before, self.after = doc.targets.get(key, ""), text
+
+    def redo(self):
+        self.doc.set_target(self.key, self.after)
+
+    def undo(self):
+        self.doc.set_target(self.key, self.before)
+
+
+class _Relay(QObject):
+    """Carries a worker's result back to the UI thread (queued, since it lives there)."""
+
+    done = Signal(str, object)
+    progress = Signal(str, int, int)
+
+
+class _Jobs(QObject):
+    """One worker thread; each job kind reports ``done(kind, result)`` or an error text."""
+
+    def __init__(self, parent=None):
+        super().__init__(parent)
+        self.pool = QThreadPool(self)
+        self.pool.setMaxThreadCount(1)
+        self.relay = _Relay(self)
+        self.cancel = threading.Event()
+
+    def start(self, kind: str, work) -> None:
+        self.cancel.clear()
+        relay, cancel = self.relay, self.cancel
+
+        def run():
+            try:
+                result = work(lambda d, t: relay.progress.emit(kind, d, t), cancel.is_set)
+            except Cancelled:
+                result = "cancelled"
+            except (CircuitError, ValueError) as exc:
+                result = getattr(exc, "message", str(exc))
+            relay.done.emit(kind, result)
+
+        self.pool.start(run)
+
+    def wait(self, timeout_ms: int = 60000) -> bool:
+        """Block until the worker is idle (tests, screenshots, shutdown)."""
+        from PySide6.QtCore import QCoreApplication, QDeadlineTimer
+
+        deadline = QDeadlineTimer(timeout_ms)
+        while self.pool.activeThreadCount():
+            if deadline.hasExpired():
+                return False
+            self.pool.waitForDone(20)
+        QCoreApplication.processEvents()
+        return True
+
+
+def _item(text: str, tip: str = "", numeric: bool = False) -> QTableWidgetItem:
+    it = QTableWidgetItem(text)
+    it.setFlags(Qt.ItemFlag.ItemIsEnabled | Qt.ItemFlag.ItemIsSelectable)
+    if tip:
+        it.setToolTip(tip)
+    if numeric:
+        it.setTextAlignment(Qt.AlignmentFlag.AlignRight | Qt.AlignmentFlag.AlignVCenter)
+    return it
+
+
+class AdvisorPanel(QWidget):
+    """Targets, sensitivities, the value that meets a target, tolerance spread and report export.
+
+    Parameters
+    ----------
+    doc : Document
+        The design.
+    editor : app.commands.Editor
+        The one way edits reach the document.
+
+    Signals
+    -------
+    part_hovered(str)
+        A sensitivity row naming a part is under the mouse ("" when none is).
+    """
+
+    part_hovered = Signal(str)
+
+    def __init__(self, doc: Document, editor, parent=None):
+        super().__init__(parent)
+        self.doc, self.editor = doc, editor
+        self.jobs = _Jobs(self)
+        self.jobs.relay.done.connect(self._job_done)
+        self.jobs.relay.progress.connect(self._job_progress)
+        self.spread = None
+        self.remedies = ()
+        self.tabs = QTabWidget()
+        self.tabs.addTab(self._targets_tab(), "Targets")
+        self.tabs.addTab(self._sensitivity_tab(), "Sensitivities")
+        self.tabs.addTab(self._meet_tab(), "Value that meets it")
+        self.tabs.addTab(self._spread_tab(), "Tolerance spread")
+        # The window sets this to a callable giving engine.report.Pictures of the sheet and plots.
+        self.pictures = None
+        layout = QVBoxLayout(self)
+        layout.setContentsMargins(0, 0, 0, 0)
+        layout.addWidget(self.tabs)
+        doc.edited.connect(self.refresh)
+        doc.changed.connect(self._doc_changed)
+        self.refresh()
+
+    # -- targets --------------------------------------------------------------------------
+    def _targets_tab(self) -> QWidget:
+        w = QWidget()
+        form = QFormLayout(w)
+        self.target_edits = {}
+        for key, label, hint in _TARGET_FIELDS:
+            edit = QLineEdit()
+            edit.setPlaceholderText(hint)
+            edit.editingFinished.connect(lambda k=key: self._target_edited(k))
+            form.addRow(label, edit)
+            self.target_edits[key] = edit
+        self.target_problem = QLabel()
+        self.target_problem.setWordWrap(True)
+        self.verdict_label = QLabel()
+        self.verdict_label.setWordWrap(True)
+        self.verdict_label.setTextFormat(Qt.TextFormat.RichText)
+        form.addRow(self.target_problem)
+        form.addRow(self.verdict_label)
+        return w
+
+    def _target_edited(self, key: str) -> None:
+        text = self.target_edits[key].text().strip()
+        if text != self.doc.targets.get(key, ""):
+            self.set_target(key, text)
+
+    def set_target(self, key: str, text: str) -> None:
+        """Set a target as one undoable step."""
+        self.editor.push(TargetCommand(self.doc, key, text))
+
+    def _doc_changed(self, change) -> None:
+        if change.what in ("meta", "reset"):
+            for key, edit in self.target_edits.items():
+                if not edit.hasFocus():
+                    edit.setText(self.doc.targets.get(key, ""))
+
+    # -- sensitivities --------------------------------------------------------------------
+    def _sensitivity_tab(self) -> QWidget:
+        w = QWidget()
+        v = QVBoxLayout(w)
+        self.sens_table = QTableWidget(0, 6)
+        self.sens_table.setHorizontalHeaderLabels(
+            ["Part value"] + [f"{FIGURE_TITLES[f]}" for f in ("high_exact", "high_estimate", "low_exact",
+                                                           "low_estimate", "gain")])
+        self.sens_table.horizontalHeader().setSectionResizeMode(QHeaderView.ResizeMode.Stretch)
+        self.sens_table.setMouseTracking(True)
+        self.sens_table.cellEntered.connect(self._sens_hover)
+        self.sens_table.viewport().installEventFilter(self)
+        v.addWidget(QLabel("d ln(figure) / d ln(value): +1 means the figure rises in proportion. "
+                           "Ranked by the exact upper corner; hover a row to find the part on the sheet."))
+        v.addWidget(self.sens_table)
+        return w
+
+    def eventFilter(self, obj, event):
+        from PySide6.QtCore import QEvent
+
+        if obj is self.sens_table.viewport() and event.type() == QEvent.Type.Leave:
+            self.part_hovered.emit("")
+        return False
+
+    def _sens_hover(self, row: int, _col: int) -> None:
+        item = self.sens_table.item(row, 0)
+        self.part_hovered.emit(item.data(Qt.ItemDataRole.UserRole) if item else "")
+
+    def refresh(self) -> None:
+        """Re-read the targets and recompute the verdict and the sensitivities (fast, in line)."""
+        for key, edit in self.target_edits.items():
+            if not edit.hasFocus():
+                edit.setText(self.doc.targets.get(key, ""))
+        try:
+            targets = parse_targets(self.doc.targets)
+            self.target_problem.setText("")
+        except CircuitError as exc:
+            self.target_problem.setText(exc.message)
+            targets = None
+        try:
+            circuit = design_to_circuit(self.doc)
+            analysis = analyze(circuit, bands=dict(self.doc.band_pins))
+        except CircuitError as exc:
+            self.verdict_label.setText(f"No analysis yet: {exc.message}")
+            self.sens_table.setRowCount(0)
+            return
+        self._show_verdict(targets, analysis)
+        self._show_sensitivities(sensitivities(circuit, analysis))
+
+    def _show_verdict(self, targets, analysis) -> None:
+        if targets is None or targets.is_empty():
+            self.verdict_label.setText("No targets set.")
+            self.checks = ()
+            return
+        self.checks = check_targets(targets, analysis, analysis.gain_unit)
+        lines = []
+        for c in self.checks:
+            colour = "#1a7f37" if c.passed else "#b3261e"
+            word = "PASS" if c.passed else "FAIL"
+            lines.append(f'<b style="color:{colour}">{word}</b> {c.text}')
+        self.verdict_label.setText("<br>".join(lines))
+        self.meet_target.clear()
+        for c in self.checks:
+            if not c.passed:
+                self.meet_target.addItem(c.target_text, c.key)
+        self.meet_button.setEnabled(self.meet_target.count() > 0)
+
+    def _show_sensitivities(self, sens) -> None:
+        rows = sorted(sens.rows, key=lambda r: (-abs(r.high_exact or 0.0), -abs(r.low_exact or 0.0)))
+        self.sens_table.setRowCount(len(rows))
+        for i, r in enumerate(rows):
+            label = _item(r.value.label, f"{r.value.element} = {format_value(r.value.nominal, r.value.unit)}")
+            label.setData(Qt.ItemDataRole.UserRole, r.value.part)
+            self.sens_table.setItem(i, 0, label)
+            for j, v in enumerate((r.high_exact, r.high_estimate, r.low_exact, r.low_estimate, r.gain), 1):
+                self.sens_table.setItem(i, j, _item("—" if v is None else f"{v:+.3f}", numeric=True))
+
+    # -- the value that meets it ----------------------------------------------------------
+    def _meet_tab(self) -> QWidget:
+        w = QWidget()
+        v = QVBoxLayout(w)
+        bar = QHBoxLayout()
+        self.meet_target = QComboBox()
+        self.meet_series = QComboBox()
+        self.meet_series.addItems(SERIES)
+        self.meet_series.setCurrentText("E24")
+        self.meet_button = QPushButton("Find values")
+        self.meet_button.clicked.connect(self.find_values)
+        self.apply_button = QPushButton("Apply selected")
+        self.apply_button.setEnabled(False)
+        self.apply_button.clicked.connect(self.apply_selected)
+        bar.addWidget(QLabel("Failing target"))
+        bar.addWidget(self.meet_target, 1)
+        bar.addWidget(QLabel("Series"))
+        bar.addWidget(self.meet_series)
+        bar.addWidget(self.meet_button)
+        bar.addWidget(self.apply_button)
+        v.addLayout(bar)
+        self.meet_progress = QProgressBar()
+        self.meet_progress.setVisible(False)
+        v.addWidget(self.meet_progress)
+        self.meet_table = QTableWidget(0, 5)
+        self.meet_table.setHorizontalHeaderLabels(["Field", "Now", "Exact answer", "Estimate's answer", "Write"])
+        self.meet_table.horizontalHeader().setSectionResizeMode(QHeaderView.ResizeMode.Stretch)
+        self.meet_table.setSelectionBehavior(QTableWidget.SelectionBehavior.SelectRows)
+        self.meet_table.setSelectionMode(QTableWidget.SelectionMode.SingleSelection)
+        self.meet_table.itemSelectionChanged.connect(self._meet_selected)
+        self.meet_table.cellDoubleClicked.connect(lambda row, _c: self.apply_remedy(row))
+        v.addWidget(self.meet_table)
+        return w
+
+    def find_values(self) -> None:
+        """Search, on the worker thread, for the value of each field that meets the chosen target."""
+        key = self.meet_target.currentData()
+        if key is None:
+            return
+        doc, series = snapshot(self.doc), self.meet_series.currentText()
+        targets = parse_targets(doc.targets)
+        self.meet_button.setEnabled(False)
+        self.meet_progress.setVisible(True)
+        self.meet_progress.setValue(0)
+        self.jobs.start("meet", lambda progress, cancel: values_that_meet(
+            doc, key, targets, series, progress=progress, cancel=cancel))
+
+    def _show_remedies(self, remedies) -> None:
+        self.remedies = remedies
+        self.meet_table.setRowCount(len(remedies))
+        for i, r in enumerate(remedies):
+            k = r.knob
+            self.meet_table.setItem(i, 0, _item(k.label, r.text))
+            self.meet_table.setItem(i, 1, _item(format_value(k.nominal, k.unit), numeric=True))
+            exact = "no single value can" if r.exact_value is None else format_value(r.exact_value, k.unit, 4)
+            self.meet_table.setItem(i, 2, _item(exact, r.text, numeric=True))
+            est = "—" if r.estimate_value is None else format_value(r.estimate_value, k.unit, 4)
+            self.meet_table.setItem(i, 3, _item(est, numeric=True))
+            write = r.apply_text or "—"
+            if r.series and r.standard_value is not None:
+                write = f"{r.apply_text} ({r.series})"
+            self.meet_table.setItem(i, 4, _item(write, numeric=True))
+
+    def _meet_selected(self) -> None:
+        rows = self.meet_table.selectionModel().selectedRows()
+        self.apply_button.setEnabled(bool(rows) and bool(self.remedies[rows[0].row()].apply_text))
+
+    def apply_selected(self) -> None:
+        rows = self.meet_table.selectionModel().selectedRows()
+        if rows:
+            self.apply_remedy(rows[0].row())
+
+    def apply_remedy(self, row: int) -> None:
+        """Write a suggested value into its field as one undoable edit."""
+        r = self.remedies[row]
+        if not r.apply_text or r.knob.part not in self.doc.parts:
+            return
+        self.editor.patch(edits.edit_field(self.doc, r.knob.part, r.knob.key, r.apply_text),
+                          f"Set {r.knob.label} to {r.apply_text}")
+
+    # -- tolerance spread -----------------------------------------------------------------
+    def _spread_tab(self) -> QWidget:
+        w = QWidget()
+        v = QVBoxLayout(w)
+        bar = QHBoxLayout()
+        self.samples = QSpinBox()
+        self.samples.setRange(100, 1_000_000)
+        self.samples.setSingleStep(1000)
+        self.samples.setValue(10_000)
+        self.seed = QSpinBox()
+        self.seed.setRange(0, 2**31 - 1)
+        self.seed.setValue(1)
+        self.spread_button = QPushButton("Run")
+        self.spread_button.clicked.connect(self.run_spread)
+        self.cancel_button = QPushButton("Cancel")
+        self.cancel_button.setEnabled(False)
+        self.cancel_button.clicked.connect(self.jobs.cancel.set)
+        self.spread_progress = QProgressBar()
+        for widget in (QLabel("Samples"), self.samples, QLabel("Seed"), self.seed, self.spread_button,
+                       self.cancel_button):
+            bar.addWidget(widget)
+        bar.addWidget(self.spread_progress, 1)
+        self.report_button = QPushButton("Export report…")
+        self.report_button.clicked.connect(self._ask_report)
+        bar.addWidget(self.report_button)
+        v.addLayout(bar)
+        self.spread_label = QLabel("Part tolerances default by kind (resistors ±5 %, capacitors ±10 %, "
+                                   "transistor values ±10–30 %); the report lists each with its source.")
+        self.spread_label.setWordWrap(True)
+        v.addWidget(self.spread_label)
+        grid = QGridLayout()
+        self.plots = {}
+        for col, (fig, title) in enumerate((("f_high", "f_H (Hz)"), ("f_low", "f_L (Hz)"), ("gain", "|A_m|"))):
+            plot = pg.PlotWidget()
+            plot.setBackground("w")
+            plot.setTitle(title, color="#1d2430")
+            plot.getAxis("left").setLabel("samples")
+            plot.setMenuEnabled(False)
+            grid.addWidget(plot, 0, col)
+            self.plots[fig] = plot
+        v.addLayout(grid, 1)
+        return w
+
+    def run_spread(self) -> None:
+        """Start the Monte Carlo on the worker thread."""
+        doc, samples, seed = snapshot(self.doc), self.samples.value(), self.seed.value()
+        self.spread_button.setEnabled(False)
+        self.cancel_button.setEnabled(True)
+        self.spread_progress.setValue(0)
+        self.jobs.start("spread", lambda progress, cancel: spread_of_design(
+            doc, samples, seed, progress=progress, cancel=cancel))
+
+    def _show_spread(self, spread) -> None:
+        self.spread = spread
+        for fig, plot in self.plots.items():
+            plot.clear()
+            hist = next((h for h in spread.histograms if h.figure == fig), None)
+            if hist is None or hist.edges.size == 0:
+                plot.setTitle(f"{fig.replace('f_high', 'f_H').replace('f_low', 'f_L')}: none", color="#1d2430")
+                continue
+            centres = (hist.edges[:-1] + hist.edges[1:]) / 2
+            width = float(np.diff(hist.edges).mean())
+            plot.addItem(pg.BarGraphItem(x=centres, height=hist.counts, width=width * 0.95, brush="#7aa6e0"))
+            for value, text in hist.target_lines:
+                plot.addItem(pg.InfiniteLine(value, angle=90, pen=pg.mkPen("#b3261e", width=2), label=text,
+                                             labelOpts={"color": "#b3261e", "position": 0.9}))
+            if hist.nominal:
+                plot.addItem(pg.InfiniteLine(hist.nominal, angle=90, pen=pg.mkPen("#1d2430", style=Qt.PenStyle.DashLine)))
+        parts = [f"{spread.samples:,} samples, seed {spread.seed}, {spread.seconds:.2f} s."]
+        names = {"f_high_min": "f_H target", "f_low_max": "f_L target", "gain": "gain window", "all": "all targets"}
+        parts += [f"Yield, {names[k]}: {100 * v:.1f} %" for k, v in spread.yields.items()]
+        worst = [w for w in spread.worst_cases if w.extreme == ("min" if w.figure == "f_high" else "max")
+                 and w.figure != "gain" and math.isfinite(w.value)]
+        parts += [f"Worst-case {w.figure.replace('f_high', 'f_H').replace('f_low', 'f_L')}: "
+                  f"{format_value(w.value, 'Hz')}" for w in worst]
+        self.spread_label.setText("  ·  ".join(parts))
+
+    # -- report ---------------------------------------------------------------------------
+    def _ask_report(self) -> None:
+        from PySide6.QtWidgets import QFileDialog
+
+        path, _ = QFileDialog.getSaveFileName(self, "Export design report", f"{self.doc.title}.html",
+                                              "HTML report (*.html);;PDF report (*.pdf)")
+        if path:
+            self.export_report(path)
+
+    def export_report(self, path: str) -> str:
+        """Write the report (HTML or PDF by the file's ending); returns what happened, in words."""
+        from .export import export_report
+
+        try:
+            export_report(snapshot(self.doc), path, self.pictures() if self.pictures else None, self.spread,
+                          self.meet_series.currentText())
+        except (CircuitError, OSError) as exc:
+            message = f"The report was not written: {getattr(exc, 'message', None) or exc}"
+        else:
+            message = f"Report written to {path}"
+        self.spread_label.setText(message)
+        return message
+
+    # -- worker results -------------------------------------------------------------------
+    def _job_progress(self, kind: str, done: int, total: int) -> None:
+        bar = self.spread_progress if kind == "spread" else self.meet_progress
+        bar.setMaximum(total)
+        bar.setValue(done)
+
+    def _job_done(self, kind: str, result) -> None:
+        if kind == "spread":
+            self.spread_button.setEnabled(True)
+            self.cancel_button.setEnabled(False)
+            if isinstance(result, str):
+                self.spread_label.setText("Spread cancelled." if result == "cancelled" else result)
+            else:
+                self._show_spread(result)
+        elif kind == "meet":
+            self.meet_button.setEnabled(True)
+            self.meet_progress.setVisible(False)
+            if isinstance(result, str):
+                self.target_problem.setText(result)
+            else:
+                self._show_remedies(result)
