@@ -206,7 +206,7 @@ class TargetCheck:
     text: str
 
 
-def _fmt(value: float, unit: str, digits: int = 3) -> str:
+def value_text(value: float, unit: str, digits: int = 3) -> str:
     """A value with its unit; a per-volt value keeps its prefix apart from the unit."""
     if unit == "1/V":
         return f"{format_value(value, '', digits)} /V"
@@ -541,7 +541,7 @@ def _remedy(doc, knob: Knob, target: str, targets: Targets, series: str) -> Reme
     x0 = abs(knob.nominal)
     what = TARGET_LABELS[target]
     t_exact = _root(fig, estimate=False)
-    lo, hi = _fmt(x0 / 10 ** SEARCH_DECADES, knob.unit), _fmt(x0 * 10 ** SEARCH_DECADES, knob.unit)
+    lo, hi = value_text(x0 / 10 ** SEARCH_DECADES, knob.unit), value_text(x0 * 10 ** SEARCH_DECADES, knob.unit)
     if t_exact is None:
         return Remedy(target, knob, None, None, None, None, None,
                       f"no single value of {knob.label} from {lo} to {hi} meets the {what} target")
@@ -568,9 +568,9 @@ def _remedy(doc, knob: Knob, target: str, targets: Targets, series: str) -> Reme
         apply_value = _rounded_toward(exact, passes)
     apply_text = None if apply_value is None else format_value(sign * apply_value, "", digits=3)
     est_text = "the estimate has no answer in that range" if estimate is None else \
-        f"the estimate would say {_fmt(estimate, knob.unit)}"
-    text = f"{knob.label} = {_fmt(exact, knob.unit, 4)} meets it ({est_text})"
+        f"the estimate would say {value_text(estimate, knob.unit)}"
+    text = f"{knob.label} = {value_text(exact, knob.unit, 4)} meets it ({est_text})"
     if knob.standard:
-        text += (f"; {series}: {_fmt(standard, knob.unit)}" if standard is not None
+        text += (f"; {series}: {value_text(standard, knob.unit)}" if standard is not None
                  else f"; no {series} value near it meets it")
     return Remedy(target, knob, exact, estimate, standard, used, apply_text, text)

@@ -24,7 +24,7 @@ from engine.document import Document
 from engine.errors import CircuitError
 from engine.netlist import design_to_circuit
 from engine.sensitivity import FIGURE_TITLES, sensitivities
-from engine.targets import TARGET_LABELS, check_targets, parse_targets, values_that_meet
+from engine.targets import TARGET_LABELS, check_targets, parse_targets, value_text, values_that_meet
 from engine.tolerance import Cancelled, spread_of_design
 from engine.values import format_value
 
@@ -318,10 +318,10 @@ class AdvisorPanel(QWidget):
         for i, r in enumerate(remedies):
             k = r.knob
             self.meet_table.setItem(i, 0, _item(k.label, r.text))
-            self.meet_table.setItem(i, 1, _item(format_value(k.nominal, k.unit), numeric=True))
-            exact = "no single value can" if r.exact_value is None else format_value(r.exact_value, k.unit, 4)
+            self.meet_table.setItem(i, 1, _item(value_text(k.nominal, k.unit), numeric=True))
+            exact = "no single value can" if r.exact_value is None else value_text(r.exact_value, k.unit, 4)
             self.meet_table.setItem(i, 2, _item(exact, r.text, numeric=True))
-            est = "—" if r.estimate_value is None else format_value(r.estimate_value, k.unit, 4)
+            est = "—" if r.estimate_value is None else value_text(r.estimate_value, k.unit, 4)
             self.meet_table.setItem(i, 3, _item(est, numeric=True))
             write = r.apply_text or "—"
             if r.series and r.standard_value is not None:
