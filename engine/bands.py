@@ -76,14 +76,12 @@ def fixed_elements(circuit) -> dict[str, str]:
     held = nx.Graph()
     held.add_edges_from((el.nodes[0], el.nodes[1]) for el in els if isinstance(el, (VSource, VCVS, CCVS)))
     joined = {node: i for i, part in enumerate(nx.connected_components(held)) for node in part}
-    carries = nx.MultiGraph()
-    carries.add_nodes_from(circuit.nodes())
-    for el in els:
-        if not isinstance(el, (ISource, VCCS, CCCS)):
-            carries.add_edge(el.nodes[0], el.nodes[1], name=el.name)
-    simple = nx.Graph(carries)
-    bridges = {frozenset(e) for e in nx.bridges(simple)
-               if carries.number_of_edges(*e) == 1}
+    bridges = set()
+    if any(isinstance(el, Inductor) for el in els):
+        carries = nx.MultiGraph()
+        carries.add_nodes_from(circuit.nodes())
+        carries.add_edges_from((el.nodes[0], el.nodes[1]) for el in els if not isinstance(el, (ISource, VCCS, CCCS)))
+        bridges = {frozenset(e) for e in nx.bridges(nx.Graph(carries)) if carries.number_of_edges(*e) == 1}
     out = {}
     for el in els:
         if isinstance(el, Capacitor) and el.a in joined and joined.get(el.b) == joined[el.a]:

@@ -29,12 +29,10 @@ def first_span(circuit) -> tuple[float, float]:
     """
     els = circuit.elements.values()
     rs = [el.value for el in els if isinstance(el, Resistor)] or [1.0]
-    taus = []
-    for el in els:
-        if isinstance(el, Capacitor):
-            taus += [el.value * min(rs), el.value * max(rs)]
-        elif isinstance(el, Inductor):
-            taus += [el.value / max(rs), el.value / min(rs)]
+    r_lo, r_hi = min(rs), max(rs)
+    cs = [el.value for el in els if isinstance(el, Capacitor)]
+    ls = [el.value for el in els if isinstance(el, Inductor)]
+    taus = ([min(cs) * r_lo, max(cs) * r_hi] if cs else []) + ([min(ls) / r_hi, max(ls) / r_lo] if ls else [])
     if not taus:
         return 1.0, 1e4
     lo, hi = 1 / (2 * math.pi * max(taus)), 1 / (2 * math.pi * min(taus))
