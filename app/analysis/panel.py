@@ -44,6 +44,7 @@ class AnalysisPanel(QWidget):
         self.good: Outcome | None = None
         self.focus: str | None = None
         self._chosen: str | None = None
+        self._selecting = False
 
         self.runner = AnalysisRunner(self)
         self.banner = ProblemBanner()
@@ -154,16 +155,33 @@ class AnalysisPanel(QWidget):
             return []
         return [name for name in self.good.analysis.elements if part_of(name) == part]
 
-    def select_element(self, name: str) -> None:
-        """Select element ``name`` on the canvas and in the bars, and draw its test picture."""
+    def select_element(self, name: str) -> str | None:
+        """Select element ``name`` on the canvas and in the bars, and draw its test picture.
+
+        Returns
+        -------
+        str or None
+            Why it cannot be shown (no analysis, no such element), or None when it is.
+        """
+        if self.good is None or not self.outcome.ok:
+            return "the design cannot be analysed as drawn, so there is no test picture to show"
+        if name not in self.good.analysis.elements:
+            known = ", ".join(self.good.analysis.elements) or "none"
+            return f"{name} is not a capacitor or inductor of this design (there are: {known})"
+        # The scene clears, then sets, its selection; only the end state is followed.
+        self._selecting = True
+        try:
+            self.scene.select([part_of(name)])
+        finally:
+            self._selecting = False
         self._chosen = name
-        self.scene.select([part_of(name)])
         self._follow_selection()
+        return None
 
     def _follow_selection(self) -> None:
         # The scene announces its shrinking selection while it is being torn down, when
         # neither it nor its items can be asked anything any more.
-        if not (shiboken6.isValid(self.scene) and shiboken6.isValid(self.bars)):
+        if self._selecting or not (shiboken6.isValid(self.scene) and shiboken6.isValid(self.bars)):
             return
         names = [item.name for item in self.scene.selectedItems() if isinstance(item, PartItem)]
         focus = None

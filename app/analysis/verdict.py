@@ -32,7 +32,8 @@ class VerdictStrip(QFrame):
         self.warnings = QLabel()
         for label in (self.gain, self.high, self.low, self.dominant, self.warnings):
             label.setTextInteractionFlags(Qt.TextInteractionFlag.TextSelectableByMouse)
-        self.warnings.setWordWrap(True)
+            # Wrapping lets a narrow window keep its size instead of growing to the longest line.
+            label.setWordWrap(True)
         layout.addWidget(self.dominant, 0, 0, 1, 3)
         layout.addWidget(self.gain, 1, 0)
         layout.addWidget(self.high, 1, 1)
