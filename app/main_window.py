@@ -16,6 +16,7 @@ from engine.errors import DesignFileError
 from engine.parts import GRID
 
 from . import dialogs, edits, preferences
+from .analysis.panel import install_analysis_views
 from .canvas.controller import CanvasController, Mode
 from .canvas.inplace import InplaceEditor, main_field
 from .canvas.scene import SchematicScene
@@ -108,6 +109,7 @@ class MainWindow(QMainWindow):
         self._update_problem_count()
         self._mode_changed(self.controller.mode)
         self.inplace: InplaceEditor | None = None
+        self.analysis_panel = install_analysis_views(self)
 
     # -- building -------------------------------------------------------------------------
     def _dock(self, title: str, widget: QWidget, area) -> QDockWidget:
