@@ -34,7 +34,8 @@ def run_gui(design_path: str | None = None, screenshot: str | None = None,
     size : (int, int), optional
         Window size in pixels.
     select : str, optional
-        Reserved for showing one element's detail; not used yet.
+        With ``screenshot``: the capacitor or inductor (``Cin``, ``Q1.cmu``) whose test
+        picture is drawn on the canvas.
 
     Returns
     -------
@@ -66,6 +67,11 @@ def run_gui(design_path: str | None = None, screenshot: str | None = None,
         window.show()
         if doc is not None:
             window.set_document(doc, design_path)
+        if select:
+            window.analysis_panel.runner.wait()
+            problem = window.analysis_panel.select_element(select)
+            if problem:
+                print(f"bandsketch: --select {select}: {problem}", file=sys.stderr)
         loop = QEventLoop()
         QTimer.singleShot(SETTLE_MS // 2, window.view.zoom_to_fit)
         QTimer.singleShot(SETTLE_MS, loop.quit)
