@@ -23,7 +23,7 @@ from .corners import brackets, corner, first_span, midband_guess, points_per_dec
 from .elements import Capacitor, Inductor, ISource, VSource
 from .errors import CircuitError
 from .mna import OPEN, SHORT, build_system
-from .response import DENSE_LIMIT, frequency_response, poles, zeros
+from .response import frequency_response, poles, zeros
 from .timeconstants import FULL_MATRIX_LIMIT, factorize, open_circuit, port_columns, port_weights, short_circuit
 from .validate import validate
 from .values import format_value
@@ -36,6 +36,9 @@ RHP_ZERO_FACTOR = 10.0
 """A right-half-plane zero below this multiple of f_H is worth a warning."""
 PEAKING_DB = 0.1
 """Exact gain this far above |A_m| (dB) counts as peaking."""
+ZERO_CHECK_LIMIT = 250
+"""Up to this many unknowns the exact zeros are found during the analysis (for the
+right-half-plane warning); beyond it they cost too much and are left to ``Analysis.zeros``."""
 
 
 @dataclass(frozen=True)
@@ -286,8 +289,9 @@ def _reason(el, test, unit_db) -> str:
     elif test.band == HIGH:
         text = f"{high_verb} {el.name} drops the gain from {_db(low_gain)} {unit_db} to {_db(high_gain)} {unit_db}: high band"
     else:
-        text = (f"shorting or opening {el.name} changes the gain by less than {NEUTRAL_DB} dB "
-                f"({_db(test.gain_as_is)} {unit_db}): neutral")
+        text = (f"neither shorting nor opening {el.name} lowers the gain by {NEUTRAL_DB} dB or more "
+                f"(as it is {_db(test.gain_as_is)} {unit_db}, shorted {_db(test.gain_shorted)} {unit_db}, "
+                f"opened {_db(test.gain_opened)} {unit_db}): neutral")
     if test.acts_in_band:
         text += (f"; both states lower the gain more than {IN_BAND_DB:g} dB below {_db(test.gain_as_is)} "
                  f"{unit_db}, so it acts inside the band")
@@ -320,6 +324,21 @@ def _next_midband(low_bracket, high_bracket, current, f):
     return min(max(nxt, f[0]), f[-1])
 
 
+def _low_band(system, low):
+    """Short-circuit constants of the low band, from one LU of the d.c. network.
+
+    Parallel capacitors are one port of their total capacitance: shorting one would short
+    the others. Returns the :class:`~engine.timeconstants.ShortCircuit` and name -> port.
+    """
+    ports, port_of = [], {}
+    for group in [*parallel_groups(low).values(), *([el] for el in low if isinstance(el, Inductor))]:
+        port_of.update({el.name: len(ports) for el in group})
+        ports.append(group)
+    sc = short_circuit(factorize(system.G, "at d.c."), port_columns(system, [g[0] for g in ports]),
+                       np.array([sum(port_weights(g)) for g in ports]), ["+".join(el.name for el in g) for g in ports])
+    return sc, port_of
+
+
 def _ratio(a, b):
     return a / b if a is not None and b else None
 
@@ -349,6 +368,15 @@ def analyze(c, bands=None, *, per_decade: int | None = None, full_matrix_limit: 
     ------
     CircuitError
         When the circuit cannot be analysed; the message names the parts and nodes.
+
+    Notes
+    -----
+    Cost for N capacitors and n unknowns: the wide sweep is one solve per point (batched
+    dense up to 250 unknowns, a sparse LU per point beyond); each band-test round is one
+    complex LU and N solves; the time constants are one real LU and N solves each band;
+    b2 and the exact high-band time constants add N² memory and an N³ eigenproblem, done
+    up to ``full_matrix_limit``; the right-half-plane-zero check is an n³ eigenproblem, done
+    up to 250 unknowns. Poles and zeros are otherwise computed only when asked for.
     """
     validate(c)
     reactive = [el for el in c.elements.values() if isinstance(el, (Capacitor, Inductor))]
@@ -387,15 +415,7 @@ def analyze(c, bands=None, *, per_decade: int | None = None, full_matrix_limit: 
     high = [el for el in reactive if chosen[el.name] == HIGH]
     low = [el for el in reactive if chosen[el.name] == LOW]
     oc = open_circuit(lu_mid, port_columns(mid, high), port_weights(high), full=len(high) <= full_matrix_limit)
-    # Parallel low-band capacitors are one port: shorting one would short the others.
-    low_ports, low_port_of = [], {}
-    for group in [*parallel_groups(low).values(), *([el] for el in low if isinstance(el, Inductor))]:
-        low_port_of.update({el.name: len(low_ports) for el in group})
-        low_ports.append(group)
-    lu_dc = factorize(system.G, "at d.c.")
-    sc = short_circuit(lu_dc, port_columns(system, [g[0] for g in low_ports]),
-                       np.array([sum(port_weights(g)) for g in low_ports]),
-                       ["+".join(el.name for el in g) for g in low_ports])
+    sc, low_port_of = _low_band(system, low)
     total_c = parallel_capacitance(low)
 
     b1 = oc.b1
@@ -439,7 +459,7 @@ def analyze(c, bands=None, *, per_decade: int | None = None, full_matrix_limit: 
             inds[el.name] = InductorResult(**common, inductance=el.value)
 
     every = {**caps, **inds}
-    known_zeros = zeros(system) if system.size <= DENSE_LIMIT else None
+    known_zeros = zeros(system) if system.size <= ZERO_CHECK_LIMIT else None
     notes += _warnings(every, tests, gain, b1, oc, f_high_est, f_high_2nd, f_high, f_low, freqs, H,
                        known_zeros, len(high) > full_matrix_limit, full_matrix_limit)
     freqs.flags.writeable = False

@@ -106,21 +106,29 @@ def parallel_capacitance(reactive) -> dict[str, float]:
             for group in parallel_groups(reactive).values() for el in group}
 
 
-def verdict(gain_shorted: float, gain_opened: float, low_state_is_open: bool) -> str:
-    """The band the two gains point to.
+def verdict(gain_shorted: float, gain_opened: float, gain_as_is: float, low_state_is_open: bool) -> str:
+    """The band the test points to: which state lowers the gain below its value as it is.
 
     Parameters
     ----------
-    gain_shorted, gain_opened : float
-        |H| in the two states.
+    gain_shorted, gain_opened, gain_as_is : float
+        |H| in the two states and with the element as it is.
     low_state_is_open : bool
         True for a capacitor (open at low frequencies), False for an inductor (a short).
+
+    Notes
+    -----
+    When both states lower the gain the larger drop decides; when neither lowers it by
+    :data:`NEUTRAL_DB` (a state that raises the gain does not count) the element is neutral.
     """
     low_state, high_state = (gain_opened, gain_shorted) if low_state_is_open else (gain_shorted, gain_opened)
-    top = max(low_state, high_state)
-    if top == 0 or abs(_db(low_state / top) - _db(high_state / top)) < NEUTRAL_DB:
+    if gain_as_is == 0:
         return NEUTRAL
-    return LOW if low_state < high_state else HIGH
+    drop_low = -_db(low_state / gain_as_is)
+    drop_high = -_db(high_state / gain_as_is)
+    if drop_low < NEUTRAL_DB and drop_high < NEUTRAL_DB:
+        return NEUTRAL
+    return LOW if drop_low > drop_high else HIGH
 
 
 def band_tests(system, reactive, f_test: float, fixed) -> dict[str, BandTest]:
@@ -167,7 +175,7 @@ def band_tests(system, reactive, f_test: float, fixed) -> dict[str, BandTest]:
         removed, unbounded = (float(v) if v >= ROUNDOFF * top else 0.0 for v in (removed, unbounded))
         is_cap = isinstance(el, Capacitor)
         shorted, opened = (unbounded, removed) if is_cap else (removed, unbounded)
-        band = verdict(shorted, opened, is_cap)
+        band = verdict(shorted, opened, abs(H), is_cap)
         lower = _db(abs(H)) - IN_BAND_DB
         acts = abs(H) > 0 and _db(shorted) < lower and _db(opened) < lower
         out[el.name] = BandTest(el.name, shorted, opened, abs(H), band, bool(acts))

@@ -112,8 +112,8 @@ def format_table(a, title: str | None = None) -> str:
     unit, db = a.gain_unit, "dBΩ" if a.gain_unit == "V/A" else "dB"
     lines = [title or a.title, ""]
     gain = f"{a.midband_gain:.4g}".replace("-", "−")
-    lines.append(f"Mid-band gain  {gain}  ({20 * math.log10(abs(a.midband_gain)):.1f} {db}),"
-                 f" band test at {format_value(a.midband_frequency, 'Hz')}")
+    level = f"{20 * math.log10(abs(a.midband_gain)):.1f}".replace("-", "−")
+    lines.append(f"Mid-band gain  {gain} {unit}  ({level} {db}), band test at {format_value(a.midband_frequency, 'Hz')}")
     lines.append("")
     rows = [("Element", "Band", "R", "τ", "Share")]
     for r in a.elements.values():

@@ -142,3 +142,28 @@ def test_tank_elements_act_inside_the_band():
     assert a.midband_gain == pytest.approx(1.0, rel=1e-12)
     assert sum("acts inside the band" in w for w in a.warnings) == 2
     assert a.f_low_exact < a.midband_frequency < a.f_high_exact
+
+
+# A bypass whose opening raises the gain (the cascode base bias is tapped from the input
+# base, so with the bypass open some signal reaches the upper base in phase): neither
+# state lowers the gain, so it sets no corner and must not be read as a high-band
+# capacitor (method notes §2: only a state that lowers the gain decides; common practice).
+def test_a_state_that_raises_the_gain_does_not_decide():
+    c = Circuit("line receiver cascode (invented)")
+    c.vsource("Vsig", "sig", "0")
+    c.resistor("Rsig", "sig", "x", 600)
+    c.capacitor("Cin", "x", "b1", 1e-6)
+    c.resistor("RB1", "vb2", "0", 22e3)
+    c.resistor("RB2", "vb2", "b1", 15e3)
+    c.resistor("RB3", "b1", "0", 22e3)
+    c.capacitor("CB", "vb2", "0", 10e-6)
+    c.bjt("Q1", collector="m", base="b1", emitter="e1", gm=0.0387, rpi=3100, ro=60e3, rb=80, cpi=19e-12, cmu=1.5e-12)
+    c.bjt("Q2", collector="out", base="vb2", emitter="m", gm=0.0387, rpi=3100, ro=60e3, rb=80, cpi=19e-12,
+          cmu=1.5e-12)
+    c.resistor("RE", "e1", "0", 220)
+    c.resistor("RC", "out", "0", 3300)
+    c.output("out")
+    a = analyze(c)
+    cb = a.capacitors["CB"]
+    assert cb.gain_opened > cb.gain_shorted and cb.band == "neutral"
+    assert a.f_high_exact / 3 < a.f_high_estimate < a.f_high_exact * 3
