@@ -1,0 +1,111 @@
+"""Edit-to-updated-view time of the analysis views, on the samples and on a 300-part design.
+
+Run as a script (``python tests/benchmarks/bench_views.py``); pytest does not collect it.
+Each edit changes one capacitor's value through the window's editor (an undoable step,
+exactly as the properties panel does it) and the clock stops once the bars, the Bode plot
+and the verdict show the new analysis, whether it ran on the UI thread or a worker.
+Target: a median under 100 ms on the samples.
+"""
+
+from __future__ import annotations
+
+import os
+import statistics
+import sys
+import time
+from pathlib import Path
+
+os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
+ROOT = Path(__file__).resolve().parents[2]
+sys.path.insert(0, str(ROOT))
+
+from PySide6.QtCore import QCoreApplication  # noqa: E402
+from PySide6.QtWidgets import QApplication  # noqa: E402
+
+from app import edits  # noqa: E402
+from app.analysis.runner import analyse_design  # noqa: E402
+from app.main_window import MainWindow  # noqa: E402
+from engine.designfile import load_design  # noqa: E402
+from engine.document import Document, Part  # noqa: E402
+
+EDITS = 15
+STAGES = 50
+"""RC sections of the generated ladder: six parts each (R, C, three net labels, a ground),
+with the source, its ground and label and the probe 305 parts."""
+
+
+def ladder(stages: int = STAGES) -> Document:
+    """An RC ladder drawn with net labels: Vsig → R1 → n1 (C1 to ground) → R2 → ... → output."""
+    doc = Document("generated RC ladder (benchmark)")
+    doc.add_part(Part("vsource", "Vsig", 0, 40))
+    doc.add_part(Part("ground", "G0", 0, 80))
+    doc.add_part(Part("label", "L0", 0, 0, params={"net": "n0"}))
+    for i in range(1, stages + 1):
+        x = 60 * i
+        doc.add_part(Part("resistor", f"R{i}", x, 40, params={"value": "1k"}))
+        doc.add_part(Part("label", f"La{i}", x, 0, params={"net": f"n{i - 1}"}))
+        doc.add_part(Part("label", f"Lb{i}", x, 80, params={"net": f"n{i}"}))
+        doc.add_part(Part("capacitor", f"C{i}", x, 240, params={"value": "1n"}))
+        doc.add_part(Part("label", f"Lc{i}", x, 200, params={"net": f"n{i}"}))
+        doc.add_part(Part("ground", f"G{i}", x, 280))
+    doc.add_part(Part("output", "OUT", 60 * stages, 140))
+    doc.add_part(Part("label", "Lout", 60 * stages, 140, params={"net": f"n{stages}"}))
+    doc.set_meta(input_source="Vsig")
+    return doc
+
+
+def _capacitor(doc) -> str:
+    return next(p.name for p in doc.parts.values() if p.kind == "capacitor")
+
+
+def time_edits(window, doc, edits_n: int = EDITS) -> list:
+    """Milliseconds from each value edit to the views showing its analysis."""
+    window.set_document(doc, None)
+    panel = window.analysis_panel
+    panel.runner.wait(60000)
+    name = _capacitor(window.doc)
+    original = window.doc.parts[name].params["value"]
+    times = []
+    for k in range(edits_n):
+        text = original if k % 2 else f"{1.5 + 0.1 * k:g}{original[-1] if original[-1].isalpha() else ''}"
+        start = time.perf_counter()
+        window.editor.patch(edits.edit_field(window.doc, name, "value", text), f"Edit {name}")
+        while panel.outcome is None or panel.outcome.generation != panel.runner.generation:
+            QCoreApplication.processEvents()
+            panel.runner.pool.waitForDone(1)
+        QCoreApplication.processEvents()
+        times.append(1000 * (time.perf_counter() - start))
+    return times
+
+
+def main() -> int:
+    app = QApplication.instance() or QApplication(sys.argv[:1])
+    window = MainWindow(keep_recovery=False)
+    window.resize(1400, 900)
+    window.show()
+    rows = []
+    for path in sorted((ROOT / "sample_designs").glob("*.json")):
+        rows.append((path.stem, load_design(path)))
+    rows.append((f"generated ladder, {len(ladder().parts)} parts", ladder()))
+    print(f"{'design':40s} {'parts':>5s} {'median ms':>10s} {'max ms':>8s} {'analyse ms':>11s} {'thread':>7s}")
+    sample_medians = []
+    for label, doc in rows:
+        threaded_before = window.analysis_panel.runner.threaded_runs
+        times = time_edits(window, doc)
+        threaded = window.analysis_panel.runner.threaded_runs - threaded_before
+        alone = 1000 * analyse_design(doc).seconds
+        median = statistics.median(times)
+        if not label.startswith("generated"):
+            sample_medians.append(median)
+        print(f"{label:40s} {len(doc.parts):5d} {median:10.1f} {max(times):8.1f} {alone:11.1f} {threaded:4d}/{len(times)}")
+    overall = statistics.median(sample_medians)
+    print(f"\nmedian over the samples: {overall:.1f} ms (target < 100 ms): {'met' if overall < 100 else 'NOT met'}")
+    print("analyse ms: design -> circuit -> analyze -> plot data, alone; thread: edits run on the worker")
+    window.stack.setClean()
+    window.close()
+    del app
+    return 0
+
+
+if __name__ == "__main__":
+    sys.exit(main())
