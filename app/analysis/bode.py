@@ -68,13 +68,7 @@ class BodePlot(QWidget):
             plot.hideButtons()
             plot.getViewBox().sigRangeChangedManually.connect(self._on_manual_range)
         self.phase.setLabel("bottom", "Frequency")
-        # The legend sits low in the middle, where the mid band leaves the plot empty.
-        self.legend = self.magnitude.addLegend()
-        self.legend.anchor(itemPos=(0.5, 1), parentPos=(0.5, 1), offset=(0, -8))
-        self.curves = {key: (self.magnitude.plot(name=name), self.phase.plot())
-                       for key, name in (("exact", "exact response"),
-                                         ("high", "estimate above: A_m / (1 + jω b1)"),
-                                         ("low", "estimate below: A_m · s / (s + ω_L)"))}
+        self.curves = {key: (self.magnitude.plot(), self.phase.plot()) for key in ("exact", "high", "low")}
         self.half_power = pg.InfiniteLine(angle=0, movable=False)
         self.magnitude.addItem(self.half_power, ignoreBounds=True)
         self.markers = {}
@@ -176,6 +170,14 @@ class BodePlot(QWidget):
         """The response shown."""
         return self._data
 
+    def legend_html(self) -> str:
+        """The key to the curves, in their colours, for a label beside the plot (a legend
+        inside the plot would cover the corners it is there to show)."""
+        c = self._colours
+        return (f"<span style='color:{c.ink.name()}'>━ exact</span> &nbsp; "
+                f"<span style='color:{c.high.name()}'>╍ A_m/(1 + jω b1)</span> &nbsp; "
+                f"<span style='color:{c.low.name()}'>╍ A_m·s/(s + ω_L)</span>")
+
     def _restyle(self) -> None:
         c = self._colours
         grey = self._stale
@@ -210,7 +212,6 @@ class BodePlot(QWidget):
             label.fill = pg.mkBrush(fill)
         for line in self.cursor:
             line.setPen(pg.mkPen(c.selection, width=1))
-        self.legend.setLabelTextColor(c.ink)
 
     # -- hover ----------------------------------------------------------------
     def _set_cursor(self, x) -> None:

@@ -64,7 +64,10 @@ class AnalysisPanel(QWidget):
         right_layout.setContentsMargins(0, 0, 0, 0)
         right_layout.setSpacing(2)
         tools = QHBoxLayout()
+        self.legend = QLabel(self.bode.legend_html())
+        tools.addWidget(self.legend)
         self.hover_readout = QLabel()
+        self.hover_readout.setAlignment(Qt.AlignmentFlag.AlignRight | Qt.AlignmentFlag.AlignVCenter)
         tools.addWidget(self.hover_readout, 1)
         fit = QToolButton(text="Fit")
         fit.setToolTip("Show the whole sweep again after zooming or panning")
@@ -255,6 +258,7 @@ class AnalysisPanel(QWidget):
         colours = view_colours()
         for view in (self.bars, self.bode, self.verdict, self.banner, self.overlay):
             view.set_colours(colours)
+        self.legend.setText(self.bode.legend_html())
 
 
 class _CanvasMenus(QObject):
