@@ -96,6 +96,9 @@ class ElementResult:
         are (in the gain unit, V/V or V/A).
     acts_in_band : bool
         Both states lower the gain by more than 1 dB: it acts inside the band.
+    state : str
+        ``"short"`` or ``"open"``: its state in the resistive mid-band network (and in
+        every other element's test picture).
     """
 
     name: str
@@ -109,6 +112,7 @@ class ElementResult:
     gain_shorted: float
     gain_opened: float
     acts_in_band: bool
+    state: str
 
 
 @dataclass(frozen=True)
@@ -224,6 +228,11 @@ class Analysis:
         """Exact finite zeros from input to output (rad/s, complex; computed on first use)."""
         return zeros(self._system) if self._zeros is None else self._zeros
 
+    def midband_states(self) -> dict[str, str]:
+        """Name -> ``"short"`` or ``"open"``: the resistive mid-band network, for
+        :func:`engine.mna.build_system`."""
+        return {r.name: r.state for r in self.elements.values()}
+
     def test_picture(self, name: str) -> TestPicture | None:
         """How ``name``'s resistance is found; None for a neutral element (it has none)."""
         el = self.elements[name]
@@ -232,7 +241,7 @@ class Analysis:
         shorted, opened = [], []
         for other in self.elements.values():
             if other.name != name:
-                (shorted if midband_state(other, other.band) == SHORT else opened).append(other.name)
+                (shorted if other.state == SHORT else opened).append(other.name)
         return TestPicture(name, el.nodes, tuple(shorted), tuple(opened), self.sources)
 
 
@@ -251,8 +260,16 @@ def midband_state(el, band) -> str:
 def midband_states(reactive, bands) -> dict[str, str]:
     """States of the resistive mid-band network, as :func:`engine.mna.build_system` takes them.
 
-    A low-band capacitor whose short would close a loop of other shorts is left open
-    instead: its nodes are already joined, so the network is the same and stays solvable.
+    Parameters
+    ----------
+    reactive : sequence of Capacitor or Inductor
+    bands : Mapping[str, str]
+        Name -> band.
+
+    Notes
+    -----
+    A capacitor whose short would close a loop of other shorts is left open instead: its
+    nodes are already joined, so the network is the same and stays solvable.
     """
     parent: dict[str, str] = {}
 
@@ -284,12 +301,17 @@ def _reason(el, test, unit_db) -> str:
     low_gain, high_gain = (test.gain_opened, test.gain_shorted) if is_cap else (test.gain_shorted, test.gain_opened)
     if test.fixed:
         return f"{test.fixed}: neutral"
-    if test.band == LOW:
-        text = f"{low_verb} {el.name} drops the gain from {_db(high_gain)} {unit_db} to {_db(low_gain)} {unit_db}: low band"
-    elif test.band == HIGH:
-        text = f"{high_verb} {el.name} drops the gain from {_db(low_gain)} {unit_db} to {_db(high_gain)} {unit_db}: high band"
+    if test.band in (LOW, HIGH):
+        verb, before, after, mid_state = ((low_verb, high_gain, low_gain, "shorted" if is_cap else "open")
+                                          if test.band == LOW else
+                                          (high_verb, low_gain, high_gain, "open" if is_cap else "shorted"))
+        change = "drops" if after < before else "raises"
+        text = f"{verb} {el.name} {change} the gain from {_db(before)} {unit_db} to {_db(after)} {unit_db}"
+        if change == "raises":
+            text += f", but it is {mid_state} at mid band"
+        text += f": {test.band} band"
     else:
-        text = (f"neither shorting nor opening {el.name} lowers the gain by {NEUTRAL_DB} dB or more "
+        text = (f"neither shorting nor opening {el.name} moves the gain by {NEUTRAL_DB} dB or more "
                 f"(as it is {_db(test.gain_as_is)} {unit_db}, shorted {_db(test.gain_shorted)} {unit_db}, "
                 f"opened {_db(test.gain_opened)} {unit_db}): neutral")
     if test.acts_in_band:
@@ -324,17 +346,22 @@ def _next_midband(low_bracket, high_bracket, current, f):
     return min(max(nxt, f[0]), f[-1])
 
 
-def _low_band(system, low):
-    """Short-circuit constants of the low band, from one LU of the d.c. network.
+def _low_band(c, low, states):
+    """Short-circuit constants of the low band, from one LU.
 
-    Parallel capacitors are one port of their total capacitance: shorting one would short
-    the others. Returns the :class:`~engine.timeconstants.ShortCircuit` and name -> port.
+    The network has the low-band elements at zero value (capacitors open, inductors
+    0-V branches) and every other element at its mid-band state in ``states``. Parallel
+    capacitors are one port of their total capacitance: shorting one would short the
+    others. Returns the :class:`~engine.timeconstants.ShortCircuit` and name -> port.
     """
+    low_names = {el.name for el in low}
+    zero_value = {el.name: OPEN for el in low if isinstance(el, Capacitor)}
+    system = build_system(c, {**{k: v for k, v in states.items() if k not in low_names}, **zero_value})
     ports, port_of = [], {}
     for group in [*parallel_groups(low).values(), *([el] for el in low if isinstance(el, Inductor))]:
         port_of.update({el.name: len(ports) for el in group})
         ports.append(group)
-    sc = short_circuit(factorize(system.G, "at d.c."), port_columns(system, [g[0] for g in ports]),
+    sc = short_circuit(factorize(system.G, "with the low-band elements at zero value", sorted(low_names)), port_columns(system, [g[0] for g in ports]),
                        np.array([sum(port_weights(g)) for g in ports]), ["+".join(el.name for el in g) for g in ports])
     return sc, port_of
 
@@ -415,7 +442,7 @@ def analyze(c, bands=None, *, per_decade: int | None = None, full_matrix_limit: 
     high = [el for el in reactive if chosen[el.name] == HIGH]
     low = [el for el in reactive if chosen[el.name] == LOW]
     oc = open_circuit(lu_mid, port_columns(mid, high), port_weights(high), full=len(high) <= full_matrix_limit)
-    sc, low_port_of = _low_band(system, low)
+    sc, low_port_of = _low_band(c, low, states)
     total_c = parallel_capacitance(low)
 
     b1 = oc.b1
@@ -452,7 +479,7 @@ def analyze(c, bands=None, *, per_decade: int | None = None, full_matrix_limit: 
             reason = f"pinned to the {band} band (the test says: {reason})"
         common = dict(name=el.name, nodes=el.nodes, band=band, pinned=el.name in pins, resistance=resistance,
                       time_constant=tau, share=share, reason=reason, gain_shorted=test.gain_shorted,
-                      gain_opened=test.gain_opened, acts_in_band=test.acts_in_band)
+                      gain_opened=test.gain_opened, acts_in_band=test.acts_in_band, state=states[el.name])
         if isinstance(el, Capacitor):
             caps[el.name] = CapacitorResult(**common, capacitance=el.value)
         else:
@@ -502,9 +529,10 @@ def _warnings(results, tests, gain, b1, oc, f_high_est, f_high_2nd, f_high, f_lo
         low_gain, high_gain = (r.gain_opened, r.gain_shorted) if is_cap else (r.gain_shorted, r.gain_opened)
         if high_gain > 0 and low_gain / high_gain > 1 / math.sqrt(2):
             verb = "Opening" if is_cap else "Shorting"
-            notes.append(f"{verb} {r.name} costs only {20 * math.log10(high_gain / low_gain):.2f} dB: it makes a "
-                         "pole–zero pair, not a corner of its own, and its share of the lower-corner estimate "
-                         "overstates it.")
+            cost = (f"raises the gain by {20 * math.log10(low_gain / high_gain):.2f} dB" if low_gain >= high_gain
+                    else f"costs only {20 * math.log10(high_gain / low_gain):.2f} dB")
+            notes.append(f"{verb} {r.name} {cost}: it makes a pole–zero pair, not a corner of its own, and its "
+                         "share of the lower-corner estimate overstates it.")
     if b1 < 0:
         notes.append("The open-circuit time constants add up to a negative b1: the high band has feedback "
                      "that the first-order estimate cannot describe; trust the exact corner.")

@@ -107,7 +107,7 @@ def parallel_capacitance(reactive) -> dict[str, float]:
 
 
 def verdict(gain_shorted: float, gain_opened: float, gain_as_is: float, low_state_is_open: bool) -> str:
-    """The band the test points to: which state lowers the gain below its value as it is.
+    """The band the test points to.
 
     Parameters
     ----------
@@ -118,17 +118,21 @@ def verdict(gain_shorted: float, gain_opened: float, gain_as_is: float, low_stat
 
     Notes
     -----
-    When both states lower the gain the larger drop decides; when neither lowers it by
-    :data:`NEUTRAL_DB` (a state that raises the gain does not count) the element is neutral.
+    An element whose low-frequency state lowers the gain while its high-frequency state
+    leaves it as it is belongs to the low band, and the other way round for the high band;
+    put generally, the state nearer to the gain as it is says where the element sits in the
+    mid band. This also places a bypass whose opening *raises* the gain a little: it is a
+    short at mid band, so it is low-band (a pole–zero pair, not a corner). When both
+    states stay within :data:`NEUTRAL_DB` of the gain as it is, the element is neutral.
     """
     low_state, high_state = (gain_opened, gain_shorted) if low_state_is_open else (gain_shorted, gain_opened)
     if gain_as_is == 0:
         return NEUTRAL
-    drop_low = -_db(low_state / gain_as_is)
-    drop_high = -_db(high_state / gain_as_is)
-    if drop_low < NEUTRAL_DB and drop_high < NEUTRAL_DB:
+    off_low = abs(_db(low_state / gain_as_is))
+    off_high = abs(_db(high_state / gain_as_is))
+    if off_low < NEUTRAL_DB and off_high < NEUTRAL_DB:
         return NEUTRAL
-    return LOW if drop_low > drop_high else HIGH
+    return LOW if off_high < off_low else HIGH
 
 
 def band_tests(system, reactive, f_test: float, fixed) -> dict[str, BandTest]:

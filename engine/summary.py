@@ -7,7 +7,6 @@ import math
 
 import numpy as np
 
-from .analysis import midband_state
 from .mna import SHORT
 from .values import format_value
 
@@ -28,7 +27,7 @@ def _complex_list(values):
 
 
 def _element(r) -> dict:
-    out = {"name": r.name, "nodes": list(r.nodes), "band": r.band, "pinned": r.pinned,
+    out = {"name": r.name, "nodes": list(r.nodes), "band": r.band, "pinned": r.pinned, "state": r.state,
            "acts_in_band": r.acts_in_band, "reason": r.reason}
     for key in _ELEMENT_UNITS:
         if hasattr(r, key):
@@ -49,7 +48,7 @@ def analysis_to_dict(a) -> dict:
     gain = a.gain_unit
     states = {"shorted": [], "opened": []}
     for r in a.elements.values():
-        states["shorted" if midband_state(r, r.band) == SHORT else "opened"].append(r.name)
+        states["shorted" if r.state == SHORT else "opened"].append(r.name)
     return {
         "title": a.title,
         "gain_unit": gain,

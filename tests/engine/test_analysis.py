@@ -13,7 +13,6 @@ from hypothesis import strategies as st
 
 from bandstages import common_emitter
 from engine import Circuit, CircuitError, analyze
-from engine.analysis import midband_state
 from engine.mna import OPEN, build_system
 from engine.summary import analysis_to_dict, format_table, write_sweep_csv
 
@@ -44,8 +43,7 @@ def test_scripting_api_example_runs_as_written():
 def _reference_resistance(c, a, name):
     """Brute force: rebuild the network with every other element at its mid-band state (true
     0-V shorts), leave ``name`` out, and solve once with a 1 A test current at its terminals."""
-    states = {r.name: midband_state(r, r.band) for r in a.elements.values() if r.name != name}
-    states = {k: ("short" if v == "short" else OPEN) for k, v in states.items()}
+    states = {r.name: r.state for r in a.elements.values() if r.name != name}
     states[name] = OPEN
     sysm = build_system(c, states)
     el = c.elements[name]

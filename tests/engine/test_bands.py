@@ -145,9 +145,9 @@ def test_tank_elements_act_inside_the_band():
 
 
 # A bypass whose opening raises the gain (the cascode base bias is tapped from the input
-# base, so with the bypass open some signal reaches the upper base in phase): neither
-# state lowers the gain, so it sets no corner and must not be read as a high-band
-# capacitor (method notes §2: only a state that lowers the gain decides; common practice).
+# base, so with the bypass open some signal reaches the upper base in phase). It is still
+# a short at mid band: low band, a pole–zero pair, never a high-band capacitor (common
+# practice, no source).
 def test_a_state_that_raises_the_gain_does_not_decide():
     c = Circuit("line receiver cascode (invented)")
     c.vsource("Vsig", "sig", "0")
@@ -165,5 +165,7 @@ def test_a_state_that_raises_the_gain_does_not_decide():
     c.output("out")
     a = analyze(c)
     cb = a.capacitors["CB"]
-    assert cb.gain_opened > cb.gain_shorted and cb.band == "neutral"
-    assert a.f_high_exact / 3 < a.f_high_estimate < a.f_high_exact * 3
+    assert cb.gain_opened > cb.gain_shorted and cb.band == "low" and cb.state == "short"
+    assert "raises the gain" in cb.reason and "but it is shorted at mid band" in cb.reason
+    assert any(w.startswith("Opening CB raises the gain") for w in a.warnings)
+    assert a.f_high_exact / 10 < a.f_high_estimate < a.f_high_exact
