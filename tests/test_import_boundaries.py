@@ -59,7 +59,9 @@ def test_the_scan_would_catch_a_qt_import(tmp_path):
 
 def test_import_linter_contract():
     # The import-linter contract in pyproject.toml (forbidden: engine -> Qt, pyqtgraph, app).
-    exe = shutil.which("lint-imports")
+    # Beside the running interpreter first: a virtual environment need not be on PATH.
+    beside = Path(sys.executable).with_name("lint-imports")
+    exe = str(beside) if beside.exists() else shutil.which("lint-imports")
     if exe is None:
         pytest.skip("lint-imports (import-linter) is not installed; the ast scan above still runs")
     env = {**os.environ, "PYTHONPATH": str(ROOT) + os.pathsep + os.environ.get("PYTHONPATH", "")}
