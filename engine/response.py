@@ -9,7 +9,7 @@ import scipy.sparse.linalg as spla
 
 from .errors import CircuitError
 
-DENSE_LIMIT = 250
+DENSE_LIMIT = 60
 """Up to this many unknowns a batched dense solve beats a sparse LU per frequency."""
 _CHUNK_BYTES = 64 * 1024 * 1024
 _FINITE_RATIO = 1e-9
