@@ -11,48 +11,30 @@ from dataclasses import dataclass
 
 
 @dataclass(frozen=True)
-class Resistor:
+class _TwoTerminal:
+    """An element of one value between nodes ``a`` and ``b``."""
+
+    name: str
+    a: str
+    b: str
+    value: float
+    owner: str | None = None
+
+    @property
+    def nodes(self):
+        return (self.a, self.b)
+
+
+class Resistor(_TwoTerminal):
     """Resistance ``value`` (Ω) between nodes ``a`` and ``b``."""
 
-    name: str
-    a: str
-    b: str
-    value: float
-    owner: str | None = None
 
-    @property
-    def nodes(self):
-        return (self.a, self.b)
-
-
-@dataclass(frozen=True)
-class Capacitor:
+class Capacitor(_TwoTerminal):
     """Capacitance ``value`` (F) between nodes ``a`` and ``b``."""
 
-    name: str
-    a: str
-    b: str
-    value: float
-    owner: str | None = None
 
-    @property
-    def nodes(self):
-        return (self.a, self.b)
-
-
-@dataclass(frozen=True)
-class Inductor:
+class Inductor(_TwoTerminal):
     """Inductance ``value`` (H) between nodes ``a`` and ``b``; its current is a branch unknown."""
-
-    name: str
-    a: str
-    b: str
-    value: float
-    owner: str | None = None
-
-    @property
-    def nodes(self):
-        return (self.a, self.b)
 
 
 @dataclass(frozen=True)
