@@ -304,3 +304,10 @@ def test_any_text_gives_a_float_or_bad_value_error(text, unit, flags):
     else:
         assert isinstance(result, float)
         assert not math.isnan(result)
+
+
+def test_squared_units_take_an_exponent_not_a_prefix():
+    # An SI prefix applies to the unit before its power (BIPM SI brochure, 9th ed., 2019,
+    # section 3: "1 cm³ = (10⁻² m)³"), so b2 in s² must not read "47.7 fs²".
+    assert format_value(4.77e-14, "s²") == "4.77e-14 s²"
+    assert format_value(2.5e-9, "s") == "2.5 ns"
