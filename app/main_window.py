@@ -1,4 +1,4 @@
-"""The main window: sheet in the middle, Parts and Properties beside it, analysis below."""
+"""The main window: sheet in the middle, Parts and Properties beside it, analysis and advisor below."""
 
 from __future__ import annotations
 
@@ -7,15 +7,17 @@ from pathlib import Path
 
 from PySide6.QtCore import QEvent, QMimeData, Qt
 from PySide6.QtGui import QAction, QGuiApplication, QKeySequence, QUndoStack
-from PySide6.QtWidgets import (QDockWidget, QLabel, QMainWindow, QScrollArea, QSplitter, QVBoxLayout,
-                               QWidget)
+from PySide6.QtWidgets import QDockWidget, QLabel, QMainWindow, QScrollArea, QSplitter, QTabWidget, QWidget
 
 from engine.designfile import document_from_dict, document_to_dict, load_design, save_design
 from engine.document import Document
 from engine.errors import DesignFileError
 from engine.parts import GRID
+from engine.report import Pictures
 
 from . import dialogs, edits, preferences
+from .advisor.export import scene_png, widget_png
+from .advisor.panel import AdvisorPanel
 from .analysis.panel import install_analysis_views
 from .canvas.controller import CanvasController, Mode
 from .canvas.inplace import InplaceEditor, main_field
@@ -31,7 +33,8 @@ from .theme import system_theme
 APP_NAME = "Bandsketch"
 FRAGMENT_MIME = "application/x-bandsketch-fragment"
 PASTE_STEP = 2 * GRID
-ANALYSIS_PLACEHOLDER = "Analysis appears here once the circuit is complete"
+REPORT_MARGIN = 2 * GRID
+"""Paper left round the drawing in the report's picture of the sheet (scene units)."""
 
 
 class MainWindow(QMainWindow):
@@ -60,16 +63,13 @@ class MainWindow(QMainWindow):
         self.scene.setParent(self)
         self.controller = CanvasController(self.scene, self.editor)
         self.view = SchematicView(self.scene, self.controller)
-        self.analysis_area = QWidget()
-        self.analysis_area.setObjectName("analysis_area")
-        analysis_layout = QVBoxLayout(self.analysis_area)
-        self.analysis_placeholder = QLabel(ANALYSIS_PLACEHOLDER)
-        self.analysis_placeholder.setAlignment(Qt.AlignmentFlag.AlignCenter)
-        self.analysis_placeholder.setEnabled(False)
-        analysis_layout.addWidget(self.analysis_placeholder)
+        # Below the sheet: the bands and response, and the design advisor, one page each.
+        self.analysis_tabs = QTabWidget()
+        self.analysis_tabs.setObjectName("analysis_tabs")
+        self.analysis_tabs.setDocumentMode(True)
         self.splitter = QSplitter(Qt.Orientation.Vertical)
         self.splitter.addWidget(self.view)
-        self.splitter.addWidget(self.analysis_area)
+        self.splitter.addWidget(self.analysis_tabs)
         self.splitter.setStretchFactor(0, 3)
         self.splitter.setStretchFactor(1, 1)
         self.splitter.setSizes([640, 200])
@@ -110,6 +110,10 @@ class MainWindow(QMainWindow):
         self._mode_changed(self.controller.mode)
         self.inplace: InplaceEditor | None = None
         self.analysis_panel = install_analysis_views(self)
+        self.advisor = AdvisorPanel(self.doc, self.editor, self.analysis_panel.runner)
+        self.advisor.part_hovered.connect(self.scene.point_out)
+        self.advisor.pictures = self.report_pictures
+        self.analysis_tabs.addTab(self.advisor, "Design advisor")
 
     # -- building -------------------------------------------------------------------------
     def _dock(self, title: str, widget: QWidget, area) -> QDockWidget:
@@ -272,6 +276,12 @@ class MainWindow(QMainWindow):
         self.controller.restyle()
         self.palette_panel.restyle(self.theme, style)
         self.properties.theme = self.theme
+
+    def report_pictures(self) -> Pictures:
+        """The sheet, the Bode plot and the bars as they look now, for the design report."""
+        rect = self.scene.content_rect().adjusted(-REPORT_MARGIN, -REPORT_MARGIN, REPORT_MARGIN, REPORT_MARGIN)
+        return Pictures(schematic=scene_png(self.scene, rect), bode=widget_png(self.analysis_panel.bode),
+                        bars=widget_png(self.analysis_panel.bars))
 
     # -- editing actions -----------------------------------------------------------------------
     def _selection(self):

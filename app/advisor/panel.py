@@ -1,7 +1,9 @@
 """The design advisor: targets, sensitivities, the value that meets a target, tolerance spread, report.
 
 Every number shown comes from an engine result (:mod:`engine.targets`,
-:mod:`engine.sensitivity`, :mod:`engine.tolerance`); the widgets only lay them out. Long
+:mod:`engine.sensitivity`, :mod:`engine.tolerance`); the widgets only lay them out. The
+verdict and the sensitivities are worked from the analysis the window's runner delivers,
+so an edit is analysed once for every view. Long
 searches run on a worker thread over a snapshot of the design, so the sheet stays live;
 every change to the design goes through the window's :class:`app.commands.Editor`.
 """
@@ -19,10 +21,8 @@ from PySide6.QtWidgets import (QComboBox, QFormLayout, QGridLayout, QHBoxLayout,
                                QLineEdit, QProgressBar, QPushButton, QSpinBox, QTableWidget,
                                QTableWidgetItem, QTabWidget, QVBoxLayout, QWidget)
 
-from engine import analyze
 from engine.document import Document
 from engine.errors import CircuitError
-from engine.netlist import design_to_circuit
 from engine.sensitivity import FIGURE_TITLES, sensitivities
 from engine.targets import TARGET_LABELS, check_targets, parse_targets, value_text, values_that_meet
 from engine.tolerance import Cancelled, spread_of_design
@@ -122,6 +122,9 @@ class AdvisorPanel(QWidget):
         The design.
     editor : app.commands.Editor
         The one way edits reach the document.
+    runner : app.analysis.runner.AnalysisRunner
+        The window's analysis runner; the advisor shows what it delivers rather than
+        analysing the design a second time.
 
     Signals
     -------
@@ -131,7 +134,7 @@ class AdvisorPanel(QWidget):
 
     part_hovered = Signal(str)
 
-    def __init__(self, doc: Document, editor, parent=None):
+    def __init__(self, doc: Document, editor, runner, parent=None):
         super().__init__(parent)
         self.doc, self.editor = doc, editor
         self.jobs = _Jobs(self)
@@ -144,33 +147,47 @@ class AdvisorPanel(QWidget):
         self.tabs.addTab(self._sensitivity_tab(), "Sensitivities")
         self.tabs.addTab(self._meet_tab(), "Value that meets it")
         self.tabs.addTab(self._spread_tab(), "Tolerance spread")
+        # The report covers every page, so its button sits by the tabs rather than on one.
+        self.report_button = QPushButton("Export report…")
+        self.report_button.setToolTip("Write the design report, with the sheet and plots, as HTML or PDF")
+        self.report_button.clicked.connect(self._ask_report)
+        self.tabs.setCornerWidget(self.report_button)
         # The window sets this to a callable giving engine.report.Pictures of the sheet and plots.
         self.pictures = None
         layout = QVBoxLayout(self)
         layout.setContentsMargins(0, 0, 0, 0)
         layout.addWidget(self.tabs)
-        doc.edited.connect(self.refresh)
         doc.changed.connect(self._doc_changed)
-        self.refresh()
+        runner.finished.connect(self.show_outcome)
+        self._show_targets()
+        if runner.last is not None:
+            self.show_outcome(runner.last)
 
     # -- targets --------------------------------------------------------------------------
     def _targets_tab(self) -> QWidget:
+        # The fields keep a field's width on the left; the verdict reads beside them.
         w = QWidget()
-        form = QFormLayout(w)
+        row = QHBoxLayout(w)
+        form = QFormLayout()
+        form.setFieldGrowthPolicy(QFormLayout.FieldGrowthPolicy.FieldsStayAtSizeHint)
         self.target_edits = {}
         for key, label, hint in _TARGET_FIELDS:
             edit = QLineEdit()
             edit.setPlaceholderText(hint)
+            edit.setFixedWidth(edit.fontMetrics().horizontalAdvance("m") * 14)
             edit.editingFinished.connect(lambda k=key: self._target_edited(k))
             form.addRow(label, edit)
             self.target_edits[key] = edit
         self.target_problem = QLabel()
         self.target_problem.setWordWrap(True)
+        form.addRow(self.target_problem)
+        row.addLayout(form)
+        row.addSpacing(18)
         self.verdict_label = QLabel()
         self.verdict_label.setWordWrap(True)
         self.verdict_label.setTextFormat(Qt.TextFormat.RichText)
-        form.addRow(self.target_problem)
-        form.addRow(self.verdict_label)
+        self.verdict_label.setAlignment(Qt.AlignmentFlag.AlignLeft | Qt.AlignmentFlag.AlignTop)
+        row.addWidget(self.verdict_label, 1)
         return w
 
     def _target_edited(self, key: str) -> None:
@@ -184,9 +201,12 @@ class AdvisorPanel(QWidget):
 
     def _doc_changed(self, change) -> None:
         if change.what in ("meta", "reset"):
-            for key, edit in self.target_edits.items():
-                if not edit.hasFocus():
-                    edit.setText(self.doc.targets.get(key, ""))
+            self._show_targets()
+
+    def _show_targets(self) -> None:
+        for key, edit in self.target_edits.items():
+            if not edit.hasFocus():
+                edit.setText(self.doc.targets.get(key, ""))
 
     # -- sensitivities --------------------------------------------------------------------
     def _sensitivity_tab(self) -> QWidget:
@@ -200,8 +220,10 @@ class AdvisorPanel(QWidget):
         self.sens_table.setMouseTracking(True)
         self.sens_table.cellEntered.connect(self._sens_hover)
         self.sens_table.viewport().installEventFilter(self)
-        v.addWidget(QLabel("d ln(figure) / d ln(value): +1 means the figure rises in proportion. "
-                           "Ranked by the exact upper corner; hover a row to find the part on the sheet."))
+        note = QLabel("d ln(figure) / d ln(value): +1 means the figure rises in proportion. "
+                      "Ranked by the exact upper corner; hover a row to find the part on the sheet.")
+        note.setWordWrap(True)
+        v.addWidget(note)
         v.addWidget(self.sens_table)
         return w
 
@@ -216,43 +238,48 @@ class AdvisorPanel(QWidget):
         item = self.sens_table.item(row, 0)
         self.part_hovered.emit(item.data(Qt.ItemDataRole.UserRole) if item else "")
 
-    def refresh(self) -> None:
-        """Re-read the targets and recompute the verdict and the sensitivities (fast, in line)."""
-        for key, edit in self.target_edits.items():
-            if not edit.hasFocus():
-                edit.setText(self.doc.targets.get(key, ""))
+    def show_outcome(self, outcome) -> None:
+        """Show the verdict and sensitivities of the analysis the window's runner delivered.
+
+        Parameters
+        ----------
+        outcome : app.analysis.runner.Outcome
+            The newest analysis of the design; its snapshot supplies the targets checked.
+        """
         try:
-            targets = parse_targets(self.doc.targets)
+            targets = parse_targets(outcome.doc.targets)
             self.target_problem.setText("")
         except CircuitError as exc:
             self.target_problem.setText(exc.message)
             targets = None
-        try:
-            circuit = design_to_circuit(self.doc)
-            analysis = analyze(circuit, bands=dict(self.doc.band_pins))
-        except CircuitError as exc:
-            self.verdict_label.setText(f"No analysis yet: {exc.message}")
+        if not outcome.ok:
+            why = outcome.problem or "the sheet is empty; draw a stage and give it an output probe."
+            self.verdict_label.setText(f"No analysis yet: {why}")
             self.sens_table.setRowCount(0)
+            self._set_failing(())
             return
-        self._show_verdict(targets, analysis)
-        self._show_sensitivities(sensitivities(circuit, analysis))
+        self._show_verdict(targets, outcome.analysis)
+        self._show_sensitivities(sensitivities(outcome.circuit, outcome.analysis))
 
     def _show_verdict(self, targets, analysis) -> None:
         if targets is None or targets.is_empty():
             self.verdict_label.setText("No targets set.")
-            self.checks = ()
+            self._set_failing(())
             return
-        self.checks = check_targets(targets, analysis, analysis.gain_unit)
+        checks = check_targets(targets, analysis, analysis.gain_unit)
         lines = []
-        for c in self.checks:
+        for c in checks:
             colour = "#1a7f37" if c.passed else "#b3261e"
             word = "PASS" if c.passed else "FAIL"
             lines.append(f'<b style="color:{colour}">{word}</b> {c.text}')
         self.verdict_label.setText("<br>".join(lines))
+        self._set_failing([c for c in checks if not c.passed])
+
+    def _set_failing(self, checks) -> None:
+        """Offer the failing targets (none when there is no analysis) to the value search."""
         self.meet_target.clear()
-        for c in self.checks:
-            if not c.passed:
-                self.meet_target.addItem(c.target_text, c.key)
+        for c in checks:
+            self.meet_target.addItem(c.target_text, c.key)
         self.meet_button.setEnabled(self.meet_target.count() > 0)
 
     def _show_sensitivities(self, sens) -> None:
@@ -366,11 +393,9 @@ class AdvisorPanel(QWidget):
         for widget in (QLabel("Samples"), self.samples, QLabel("Seed"), self.seed, self.spread_button,
                        self.cancel_button):
             bar.addWidget(widget)
-        bar.addWidget(self.spread_progress, 1)
-        self.report_button = QPushButton("Export report…")
-        self.report_button.clicked.connect(self._ask_report)
-        bar.addWidget(self.report_button)
+        bar.addStretch(1)
         v.addLayout(bar)
+        v.addWidget(self.spread_progress)
         self.spread_label = QLabel("Part tolerances default by kind (resistors ±5 %, capacitors ±10 %, "
                                    "transistor values ±10–30 %); the report lists each with its source.")
         self.spread_label.setWordWrap(True)

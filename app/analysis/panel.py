@@ -286,17 +286,10 @@ ANALYSIS_SHARE = 0.48
 
 
 def install_analysis_views(window) -> AnalysisPanel:
-    """Put the analysis panel into ``window.analysis_area`` in place of its placeholder,
-    and give it nearly half the height: a Bode plot and its bars need room to be read."""
-    layout = window.analysis_area.layout()
-    placeholder = getattr(window, "analysis_placeholder", None)
-    if placeholder is not None:
-        layout.removeWidget(placeholder)
-        placeholder.deleteLater()
-        window.analysis_placeholder = None
-    layout.setContentsMargins(4, 4, 4, 4)
+    """Make the analysis panel the first page of ``window.analysis_tabs``, and give the
+    analysis nearly half the height: a Bode plot and its bars need room to be read."""
     panel = AnalysisPanel(window)
-    layout.addWidget(panel)
+    window.analysis_tabs.addTab(panel, "Bands and response")
     total = sum(window.splitter.sizes()) or window.height()
     window.splitter.setSizes([round(total * (1 - ANALYSIS_SHARE)), round(total * ANALYSIS_SHARE)])
     return panel

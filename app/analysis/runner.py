@@ -37,6 +37,8 @@ class Outcome:
         The snapshot of the design that was analysed.
     netlist : Netlist or None
         Its nets (None for an empty design).
+    circuit : engine.circuit.Circuit or None
+        The circuit that was analysed (None if the design is empty or not a circuit yet).
     analysis : engine.analysis.Analysis or None
         The analysis, or None if the design is empty or cannot be analysed.
     bode, bars, verdict : BodeData, BarData, VerdictData or None
@@ -54,6 +56,7 @@ class Outcome:
     generation: int
     doc: Document
     netlist: Netlist | None = None
+    circuit: object = None
     analysis: object = None
     bode: BodeData | None = None
     bars: BarData | None = None
@@ -116,7 +119,7 @@ def analyse_design(doc: Document, generation: int = 0) -> Outcome:
         return _problem_outcome(generation, doc, nets,
                                 f"The analysis could not be completed ({type(exc).__name__}: {exc}); "
                                 "check the values of the parts you changed last.", started=started)
-    return Outcome(generation, doc, nets, analysis, bode_data(analysis), bar_data(analysis),
+    return Outcome(generation, doc, nets, circuit, analysis, bode_data(analysis), bar_data(analysis),
                    verdict_data(analysis), seconds=time.perf_counter() - started)
 
 
@@ -133,6 +136,11 @@ class AnalysisRunner(QObject):
     -------
     finished(Outcome)
         The outcome of the newest request; older ones are dropped unannounced.
+
+    Attributes
+    ----------
+    last : Outcome or None
+        The outcome announced last, for a view that starts listening late.
     """
 
     finished = Signal(object)
@@ -148,6 +156,7 @@ class AnalysisRunner(QObject):
         self._running = False
         self._pending: tuple | None = None
         self.last_seconds = 0.0
+        self.last: Outcome | None = None
         self.threaded_runs = 0
 
     @property
@@ -182,6 +191,7 @@ class AnalysisRunner(QObject):
         self._running = False
         self.last_seconds = outcome.seconds
         if outcome.generation == self._generation:
+            self.last = outcome
             self.finished.emit(outcome)
         if self._pending is not None:
             job, self._pending = self._pending, None

@@ -48,6 +48,7 @@ class SchematicScene(QGraphicsScene):
         self._junctions: list[JunctionItem] = []
         self._problem_marks: list[ProblemItem] = []
         self._accents: dict[str, str | None] = {}
+        self._pointed = ""
         self.problems: list = []
         doc.changed.connect(self._on_change)
         doc.edited.connect(self.refresh_problems)
@@ -149,10 +150,18 @@ class SchematicScene(QGraphicsScene):
         self._accents[name] = role
         self._apply_accent(name)
 
+    def point_out(self, name: str) -> None:
+        """Accent part ``name`` in the selection colour while another view points at it
+        ("" for none); its band colour comes back when it is no longer pointed at."""
+        before, self._pointed = self._pointed, name
+        for n in (before, name):
+            self._apply_accent(n)
+
     def _apply_accent(self, name: str) -> None:
         if name in self._parts:
-            role = self._accents.get(name)
-            colour = {"low": self.theme.band_low, "high": self.theme.band_high}.get(role)
+            role = "pointed" if name == self._pointed else self._accents.get(name)
+            colour = {"low": self.theme.band_low, "high": self.theme.band_high,
+                      "pointed": self.theme.selection}.get(role)
             self._parts[name].set_accent(colour)
 
     def drawBackground(self, painter, rect: QRectF) -> None:

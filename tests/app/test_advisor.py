@@ -6,10 +6,7 @@ from __future__ import annotations
 from pathlib import Path
 
 import pytest
-from PySide6.QtGui import QUndoStack
 
-from app.advisor.panel import AdvisorPanel
-from app.commands import Editor
 from engine import analyze
 from engine.designfile import load_design
 from engine.netlist import design_to_circuit
@@ -19,13 +16,15 @@ SAMPLES = Path(__file__).resolve().parents[2] / "sample_designs"
 
 
 @pytest.fixture
-def panel(qtbot):
-    doc = load_design(SAMPLES / "two_stage_miller.json")
-    stack = QUndoStack()
-    editor = Editor(doc, stack)
-    p = AdvisorPanel(doc, editor)
-    qtbot.addWidget(p)
-    p._stack = stack
+def panel(window):
+    """The advisor as the window mounts it, on the two-stage sample; it shows what the
+    window's runner analysed (waited for, so each check sees the newest analysis)."""
+    path = SAMPLES / "two_stage_miller.json"
+    window.set_document(load_design(path), str(path))
+    p = window.advisor
+    runner = window.analysis_panel.runner
+    p.settle = runner.wait
+    p.settle()
     yield p
     p.jobs.cancel.set()
     p.jobs.wait()
@@ -38,11 +37,12 @@ def _figures(doc):
 
 def test_target_is_an_undo_step_and_the_verdict_follows(panel):
     panel.set_target("f_high_min", "300k")
+    panel.settle()
     assert panel.doc.targets["f_high_min"] == "300k"
     assert "FAIL" in panel.verdict_label.text()
     assert panel.meet_target.count() == 1
-    panel._stack.undo()
-    panel.doc.finish_edit()
+    panel.editor.undo()
+    panel.settle()
     assert "f_high_min" not in panel.doc.targets
     assert panel.verdict_label.text() == "No targets set."
 
@@ -56,10 +56,37 @@ def test_sensitivity_rows_name_their_part(panel, qtbot):
     assert seen == [first] and first in panel.doc.parts
 
 
+def test_hovering_a_row_points_the_part_out_on_the_sheet(panel, window):
+    # The scene's accent: the selection colour while pointed at, the band colour after.
+    scene = window.scene
+    banded = next(n for n, r in window.analysis_panel.good.analysis.elements.items()
+                  if r.band != "neutral" and n in panel.doc.parts)
+    band_colour = scene.part_item(banded)._accent
+    panel.part_hovered.emit(banded)
+    assert scene.part_item(banded)._accent == scene.theme.selection
+    panel.part_hovered.emit("RL")
+    assert scene.part_item(banded)._accent == band_colour
+    assert scene.part_item("RL")._accent == scene.theme.selection
+    panel.part_hovered.emit("")
+    assert scene.part_item("RL")._accent is None
+    assert scene.selected_names() == []
+
+
+def test_the_advisor_shows_the_runners_analysis(panel, window):
+    # One analysis per edit: the advisor's verdict is the one the views' runner produced.
+    runner = window.analysis_panel.runner
+    panel.set_target("f_high_min", "100k")
+    panel.settle()
+    assert runner.last.doc.targets == {"f_high_min": "100k"}
+    assert f"{runner.last.analysis.f_high_exact / 1e3:.0f} kHz" in panel.verdict_label.text()
+    assert "PASS" in panel.verdict_label.text()
+
+
 def test_done_when_find_apply_pass_undo(panel, qtbot):
     # The issue's acceptance path on the two-stage sample: a missed f_H target, the part that
     # matters most, its standard value applied in one click, the verdict turning to pass.
     panel.set_target("f_high_min", "300k")
+    panel.settle()
     targets = parse_targets(panel.doc.targets)
     assert not meets(targets, *_figures(panel.doc))["f_high_min"]
     panel.find_values()
@@ -69,9 +96,10 @@ def test_done_when_find_apply_pass_undo(panel, qtbot):
     before = panel.doc.parts[panel.remedies[row].knob.part]
     panel.meet_table.selectRow(row)
     panel.apply_selected()
+    panel.settle()
     assert meets(targets, *_figures(panel.doc))["f_high_min"]
     assert "PASS" in panel.verdict_label.text()
-    panel._stack.undo()
+    panel.editor.undo()
     assert panel.doc.parts[before.name] == before
 
 
@@ -93,6 +121,10 @@ def test_report_html_and_pdf(panel, tmp_path):
     html_path, pdf_path = tmp_path / "r.html", tmp_path / "r.pdf"
     panel.samples.setValue(500)
     assert panel.export_report(str(html_path)).startswith("Report written")
-    assert "design estimates" in html_path.read_text(encoding="utf-8")
+    html = html_path.read_text(encoding="utf-8")
+    assert "design estimates" in html
+    # The sheet, the Bode plot and the bars, as the window draws them.
+    for alt in ("schematic", "Bode plot", "time-constant bars"):
+        assert f'<img alt="{alt}" src="data:image/png;base64,' in html
     assert panel.export_report(str(pdf_path)).startswith("Report written")
     assert pdf_path.read_bytes().startswith(b"%PDF")
