@@ -22,23 +22,26 @@ class Patch:
     """Before/after values of what a gesture touches (None = absent).
 
     ``parts`` is keyed by part name, ``wires`` by wire id, ``meta`` by ``title``,
-    ``description`` or ``input_source``, ``bands`` by element name.
+    ``description`` or ``input_source``, ``bands`` by element name, ``targets`` by target
+    key (``f_high_min`` ...).
     """
 
     parts: dict = field(default_factory=dict)
     wires: dict = field(default_factory=dict)
     meta: dict = field(default_factory=dict)
     bands: dict = field(default_factory=dict)
+    targets: dict = field(default_factory=dict)
+
+    TABLES = ("parts", "wires", "meta", "bands", "targets")
 
     def is_empty(self) -> bool:
         """Whether applying the patch would change nothing."""
-        return all(b == a for table in (self.parts, self.wires, self.meta, self.bands)
-                   for b, a in table.values())
+        return all(b == a for name in self.TABLES for b, a in getattr(self, name).values())
 
     def merged(self, later: "Patch") -> "Patch":
         """This patch followed by ``later``: before from this one, after from the later one."""
         out = Patch()
-        for name in ("parts", "wires", "meta", "bands"):
+        for name in self.TABLES:
             mine, theirs = getattr(self, name), getattr(later, name)
             table = dict(mine)
             for key, (before, after) in theirs.items():
@@ -79,6 +82,9 @@ def apply_patch(doc: Document, patch: Patch, forward: bool = True) -> None:
     for element, value in patch.bands.items():
         if doc.band_pins.get(element) != value[pick]:
             doc.set_band_pin(element, value[pick])
+    for key, value in patch.targets.items():
+        if doc.targets.get(key) != value[pick]:
+            doc.set_target(key, value[pick])
 
 
 # -- geometry helpers ------------------------------------------------------------
@@ -309,6 +315,11 @@ def set_input(doc: Document, name: str | None) -> Patch:
 def set_meta(doc: Document, key: str, value: str) -> Patch:
     """Change the design's title or description."""
     return Patch(meta={key: (getattr(doc, key), value)})
+
+
+def set_target(doc: Document, key: str, text: str) -> Patch:
+    """Set one design target's text (as typed; read when checked), or clear it with ''."""
+    return Patch(targets={key: (doc.targets.get(key), text or None)})
 
 
 def pin_band(doc: Document, element: str, band: str | None) -> Patch:

@@ -3,9 +3,10 @@
 Every number shown comes from an engine result (:mod:`engine.targets`,
 :mod:`engine.sensitivity`, :mod:`engine.tolerance`); the widgets only lay them out. The
 verdict and the sensitivities are worked from the analysis the window's runner delivers,
-so an edit is analysed once for every view. Long
-searches run on a worker thread over a snapshot of the design, so the sheet stays live;
-every change to the design goes through the window's :class:`app.commands.Editor`.
+so an edit is analysed once for every view. Long searches run on a worker thread over a
+snapshot of the design, so the sheet stays live; every change to the design, a target
+included, is a patch (:mod:`app.edits`) pushed through the window's
+:class:`app.commands.Editor`.
 """
 
 from __future__ import annotations
@@ -16,7 +17,6 @@ import threading
 import numpy as np
 import pyqtgraph as pg
 from PySide6.QtCore import QObject, QThreadPool, Qt, Signal
-from PySide6.QtGui import QUndoCommand
 from PySide6.QtWidgets import (QComboBox, QFormLayout, QGridLayout, QHBoxLayout, QHeaderView, QLabel,
                                QLineEdit, QProgressBar, QPushButton, QSpinBox, QTableWidget,
                                QTableWidgetItem, QTabWidget, QVBoxLayout, QWidget)
@@ -41,21 +41,6 @@ def snapshot(doc: Document) -> Document:
     copy.replace_all(doc)
     copy.description = doc.description
     return copy
-
-
-class TargetCommand(QUndoCommand):
-    """Setting one design target's text (the document's patches do not cover targets)."""
-
-    def __init__(self, doc: Document, key: str, text: str):
-        super().__init__(f"Set {TARGET_LABELS[key]} target")
-        self.doc, self.key = doc, key
-        self.before, self.after = doc.targets.get(key, ""), text
-
-    def redo(self):
-        self.doc.set_target(self.key, self.after)
-
-    def undo(self):
-        self.doc.set_target(self.key, self.before)
 
 
 class _Relay(QObject):
@@ -197,7 +182,7 @@ class AdvisorPanel(QWidget):
 
     def set_target(self, key: str, text: str) -> None:
         """Set a target as one undoable step."""
-        self.editor.push(TargetCommand(self.doc, key, text))
+        self.editor.patch(edits.set_target(self.doc, key, text), f"Set {TARGET_LABELS[key]} target")
 
     def _doc_changed(self, change) -> None:
         if change.what in ("meta", "reset"):

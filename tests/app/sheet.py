@@ -50,5 +50,5 @@ def snapshot(doc):
     return (
         {n: (p.kind, p.x, p.y, p.rotation, p.mirror, dict(p.params)) for n, p in doc.parts.items()},
         sorted(w.points for w in doc.wires.values()),
-        doc.input_source, dict(doc.band_pins), doc.title, doc.description,
+        doc.input_source, dict(doc.band_pins), doc.title, doc.description, dict(doc.targets),
     )

@@ -27,6 +27,8 @@ def test_every_edit_undoes_to_empty_and_redoes_to_the_end(qtbot, window):
     window.editor.patch(edits.pin_band(doc, c, "low"), "Pin band"); step()
     window.editor.patch(edits.set_input(doc, None), "Input"); step()
     window.editor.patch(edits.set_meta(doc, "title", "Invented undo check"), "Title"); step()
+    window.editor.patch(edits.set_target(doc, "f_high_min", "1M"), "Target"); step()
+    window.editor.patch(edits.set_target(doc, "f_high_min", "2M"), "Target"); step()
     window.scene.select(["Rload"]); window.act_copy.trigger(); window.act_paste.trigger(); step()
     window.act_duplicate.trigger(); step()
     window.scene.select([v]); window.act_delete.trigger(); step()
