@@ -1,4 +1,5 @@
-"""Exceptions the engine raises; every message names the part, node or field at fault."""
+"""Exceptions the engine raises; every message names the part, node or field at fault
+(:class:`Cancelled`, which carries none, says a long run was stopped on request)."""
 
 from __future__ import annotations
 
@@ -47,3 +48,7 @@ class BadValueError(CircuitError):
 
 class DesignFileError(ValueError):
     """A design file that cannot be read; the message names the file and what is wrong."""
+
+
+class Cancelled(Exception):
+    """A long run (tolerance spread, value search) was cancelled; no partial result is returned."""

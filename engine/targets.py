@@ -19,10 +19,9 @@ from . import eseries
 from .analysis import analyze
 from .devices import given_from_params
 from .document import Document
-from .errors import BadValueError, CircuitError
+from .errors import BadValueError, Cancelled, CircuitError
 from .netlist import NO_ELEMENT, design_to_circuit
 from .parts import KINDS
-from .tolerance import Cancelled
 from .values import format_value, parse_value
 
 DEFAULT_GAIN_TOLERANCE_DB = 1.0
@@ -515,7 +514,7 @@ def values_that_meet(doc, target: str, targets: Targets, series: str = "E24", *,
     progress : callable, optional
         ``progress(done, total)`` after each field.
     cancel : callable, optional
-        Polled between fields; True stops the search with :class:`engine.tolerance.Cancelled`.
+        Polled between fields; True stops the search with :class:`engine.errors.Cancelled`.
 
     Returns
     -------

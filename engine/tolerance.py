@@ -30,9 +30,10 @@ import numpy as np
 
 from .analysis import analyze, midband_states
 from .elements import Capacitor, Inductor
-from .errors import CircuitError
+from .errors import Cancelled, CircuitError
 from .netlist import design_to_circuit
 from .partvalues import PartValue, coefficients_for, parametric_system, part_values
+from .targets import Targets, parse_targets
 from .values import format_value
 
 _SRC_COMMON = "common practice, no source"
@@ -85,10 +86,6 @@ HIST_BINS = 40
 WORST_CASE_PARTS = 6
 """Vertices of the tolerance box are searched exhaustively over this many of the parts that
 move a figure most (2⁶ = 64 vertices per figure); the rest sit at the vertex their sign picks."""
-
-
-class Cancelled(Exception):
-    """The run was cancelled between batches; no partial result is returned."""
 
 
 @dataclass(frozen=True)
@@ -358,7 +355,7 @@ def _histogram(figure, unit, values, nominal, lines) -> Histogram:
     return Histogram(figure, unit, edges, counts, nominal, lines, int(values.size - good.size))
 
 
-def _target_lines(targets: "engine.targets.Targets | None", figure: str, gain_unit: str) -> tuple:
+def _target_lines(targets: Targets | None, figure: str, gain_unit: str) -> tuple:
     if targets is None:
         return ()
     if figure == "f_high" and targets.f_high_min is not None:
@@ -371,7 +368,7 @@ def _target_lines(targets: "engine.targets.Targets | None", figure: str, gain_un
     return ()
 
 
-def _yields(targets: "engine.targets.Targets | None", fh, fl, gain) -> dict:
+def _yields(targets: Targets | None, fh, fl, gain) -> dict:
     if targets is None or targets.is_empty():
         return {}
     # NaN means "no corner was found near the nominal one": a failure, never a silent pass.
@@ -394,7 +391,7 @@ def _check_samples(samples: int) -> None:
 
 
 def monte_carlo(circuit, analysis, tolerances=None, *, samples: int = 10_000, seed: int = 1,
-                targets: "engine.targets.Targets | None" = None, gain_unit: str = "V/V",
+                targets: Targets | None = None, gain_unit: str = "V/V",
                 progress: Callable[[int, int], None] | None = None,
                 cancel: Callable[[], bool] | None = None) -> Spread:
     """Draw ``samples`` designs within the tolerances and find each one's exact figures.
@@ -417,7 +414,7 @@ def monte_carlo(circuit, analysis, tolerances=None, *, samples: int = 10_000, se
     progress : callable, optional
         ``progress(done, total)`` after each batch of :data:`CHUNK` samples.
     cancel : callable, optional
-        Polled between batches; when it returns True the run stops with :class:`Cancelled`.
+        Polled between batches; when it returns True the run stops with :class:`engine.errors.Cancelled`.
 
     Returns
     -------
@@ -537,9 +534,6 @@ def spread_to_dict(spread: Spread) -> dict:
 
 def spread_of_design(doc, samples: int = 10_000, seed: int = 1, **kw) -> Spread:
     """:func:`monte_carlo` of a design document with its targets and default tolerances."""
-    # engine.targets imports this module (for Cancelled), so it is imported at call time.
-    from .targets import parse_targets
-
     circuit = design_to_circuit(doc)
     analysis = analyze(circuit, bands=dict(doc.band_pins))
     return monte_carlo(circuit, analysis, samples=samples, seed=seed, targets=parse_targets(doc.targets),

@@ -22,10 +22,10 @@ from PySide6.QtWidgets import (QComboBox, QFormLayout, QGridLayout, QHBoxLayout,
                                QTableWidgetItem, QTabWidget, QVBoxLayout, QWidget)
 
 from engine.document import Document
-from engine.errors import CircuitError
+from engine.errors import Cancelled, CircuitError
 from engine.sensitivity import FIGURE_TITLES, sensitivities
 from engine.targets import TARGET_LABELS, check_targets, parse_targets, value_text, values_that_meet
-from engine.tolerance import Cancelled, spread_of_design
+from engine.tolerance import spread_of_design
 from engine.values import format_value
 
 from .. import edits
