@@ -561,3 +561,59 @@ def write_curves_csv(data: BodeData, path) -> None:
         out.writerow(["frequency_hz", "exact_db", "exact_phase_deg", "estimate_db", "estimate_phase_deg"])
         for f, m, ph in zip(data.exact.freq_hz, data.exact.magnitude_db, data.exact.phase_deg):
             out.writerow([f"{f:.6g}", f"{m:.6g}", f"{ph:.6g}", *estimate.get(float(f), ("", ""))])
+
+
+HISTOGRAM_TICKS = 5
+"""At most this many labelled ticks under a spread histogram (they must fit a third of a panel)."""
+HISTOGRAM_MARGIN = 0.04
+"""Room left each side of a histogram's span, as a fraction of it."""
+
+
+@dataclass(frozen=True)
+class HistogramAxis:
+    """The value axis of a spread histogram: its span and its labelled ticks.
+
+    Attributes
+    ----------
+    low, high : float
+        The span shown, in the histogram's unit: every bin, the nominal value and the target
+        bounds, with a little room each side.
+    ticks : tuple of (float, str)
+        Tick positions on 1-2-2.5-5 steps, each written with an SI prefix and the unit
+        (``(250e3, "250 kHz")``), so no axis ever reads a bare 250000.
+    """
+
+    low: float
+    high: float
+    ticks: tuple
+
+
+def _nice_step(span: float, most: int) -> float:
+    raw = span / max(1, most - 1)
+    decade = 10 ** math.floor(math.log10(raw))
+    return next(m * decade for m in (1, 2, 2.5, 5, 10) if m * decade >= raw)
+
+
+def histogram_axis(hist) -> HistogramAxis:
+    """Span and tick labels for the value axis of ``hist`` (an :class:`engine.tolerance.Histogram`).
+
+    Labels use :func:`engine.values.format_value` with as many digits as it takes for
+    neighbouring ticks to read differently.
+    """
+    marks = [float(hist.edges[0]), float(hist.edges[-1])] + [v for v, _ in hist.target_lines]
+    if hist.nominal:
+        marks.append(float(hist.nominal))
+    lo, hi = min(marks), max(marks)
+    if hi <= lo:
+        # One value only: a span of ±1 % round it (or ±1 at zero) still reads.
+        pad = abs(lo) * 0.01 or 1.0
+        lo, hi = lo - pad, hi + pad
+    margin = (hi - lo) * HISTOGRAM_MARGIN
+    lo, hi = lo - margin, hi + margin
+    step = _nice_step(hi - lo, HISTOGRAM_TICKS)
+    values = [k * step for k in range(math.ceil(lo / step), math.floor(hi / step) + 1)]
+    for digits in range(3, 8):
+        texts = [format_value(v, hist.unit, digits) for v in values]
+        if len(set(texts)) == len(texts):
+            break
+    return HistogramAxis(lo, hi, tuple(zip(values, texts)))

@@ -23,6 +23,7 @@ from PySide6.QtWidgets import (QComboBox, QFormLayout, QGridLayout, QHBoxLayout,
 
 from engine.document import Document
 from engine.errors import Cancelled, CircuitError
+from engine.plotdata import histogram_axis
 from engine.sensitivity import FIGURE_TITLES, sensitivities
 from engine.targets import TARGET_LABELS, check_targets, parse_targets, value_text, values_that_meet
 from engine.tolerance import spread_of_design
@@ -31,6 +32,7 @@ from engine.values import format_value
 from .. import edits
 
 SERIES = ("E12", "E24", "E48", "E96")
+_SPREAD_TITLES = {"f_high": "f_H", "f_low": "f_L", "gain": "|A_m|"}
 _TARGET_FIELDS = (("f_high_min", "Minimum f_H", "e.g. 1M"), ("f_low_max", "Maximum f_L", "e.g. 20"),
                   ("gain", "Mid-band gain", "e.g. 100 or 40 dB"), ("gain_tolerance", "Gain tolerance", "e.g. 10 % or 1 dB"))
 
@@ -387,7 +389,7 @@ class AdvisorPanel(QWidget):
         v.addWidget(self.spread_label)
         grid = QGridLayout()
         self.plots = {}
-        for col, (fig, title) in enumerate((("f_high", "f_H (Hz)"), ("f_low", "f_L (Hz)"), ("gain", "|A_m|"))):
+        for col, (fig, title) in enumerate(_SPREAD_TITLES.items()):
             plot = pg.PlotWidget()
             plot.setBackground("w")
             plot.setTitle(title, color="#1d2430")
@@ -413,8 +415,12 @@ class AdvisorPanel(QWidget):
             plot.clear()
             hist = next((h for h in spread.histograms if h.figure == fig), None)
             if hist is None or hist.edges.size == 0:
-                plot.setTitle(f"{fig.replace('f_high', 'f_H').replace('f_low', 'f_L')}: none", color="#1d2430")
+                plot.setTitle(f"{_SPREAD_TITLES[fig]}: none", color="#1d2430")
                 continue
+            plot.setTitle(_SPREAD_TITLES[fig], color="#1d2430")
+            axis = histogram_axis(hist)
+            plot.setXRange(axis.low, axis.high, padding=0)
+            plot.getAxis("bottom").setTicks([list(axis.ticks), []])
             centres = (hist.edges[:-1] + hist.edges[1:]) / 2
             width = float(np.diff(hist.edges).mean())
             plot.addItem(pg.BarGraphItem(x=centres, height=hist.counts, width=width * 0.95, brush="#7aa6e0"))
@@ -428,7 +434,7 @@ class AdvisorPanel(QWidget):
         parts += [f"Yield, {names[k]}: {100 * v:.1f} %" for k, v in spread.yields.items()]
         worst = [w for w in spread.worst_cases if w.extreme == ("min" if w.figure == "f_high" else "max")
                  and w.figure != "gain" and math.isfinite(w.value)]
-        parts += [f"Worst-case {w.figure.replace('f_high', 'f_H').replace('f_low', 'f_L')}: "
+        parts += [f"Worst-case {_SPREAD_TITLES[w.figure]}: "
                   f"{format_value(w.value, 'Hz')}" for w in worst]
         self.spread_label.setText("  ·  ".join(parts))
 

@@ -9,7 +9,9 @@ import numpy as np
 import pytest
 
 from engine import plotdata
-from engine.plotdata import HALF_POWER_DB, bar_data, bode_data, sweep_range, verdict_data
+from engine.plotdata import (HALF_POWER_DB, HISTOGRAM_TICKS, bar_data, bode_data, histogram_axis, sweep_range,
+                             verdict_data)
+from engine.tolerance import Histogram
 
 
 def _element(name, band, r, c, share, pinned=False):
@@ -200,3 +202,26 @@ def test_curves_csv_has_every_swept_point_and_the_estimate_where_drawn(tmp_path)
     assert float(rows[-1]["exact_db"]) == pytest.approx(d.exact.magnitude_db[-1], abs=1e-4)
     assert float(rows[-1]["estimate_db"]) == pytest.approx(d.high_estimate.magnitude_db[-1], abs=1e-4)
     assert float(rows[0]["estimate_db"]) == pytest.approx(d.low_estimate.magnitude_db[0], abs=1e-4)
+
+
+def test_histogram_axis_labels_ticks_with_prefixes_and_spans_the_targets():
+    # The spread of a corner near 250 kHz with a 300 kHz target: every bin and the target
+    # line are in view, ticks sit on round steps inside it, each written as format_value does.
+    edges = np.linspace(160e3, 290e3, 41)
+    hist = Histogram("f_high", "Hz", edges, np.ones(40, dtype=int), 209e3, ((300e3, "f_H ≥ 300 kHz"),), 0)
+    axis = histogram_axis(hist)
+    assert axis.low < 160e3 and axis.high > 300e3
+    values = [v for v, _ in axis.ticks]
+    assert all(axis.low <= v <= axis.high for v in values) and 2 <= len(values) <= HISTOGRAM_TICKS
+    steps = np.diff(values)
+    assert np.allclose(steps, steps[0]) and steps[0] in (25e3, 50e3)
+    assert dict(axis.ticks)[250e3] == "250 kHz"
+    assert all("Hz" in text and "000" not in text for _, text in axis.ticks)
+
+
+def test_histogram_axis_keeps_close_ticks_apart():
+    # Ticks a fraction of a per cent apart need a fourth digit, or two would both read "1 MHz".
+    edges = np.linspace(1.000e6, 1.012e6, 11)
+    axis = histogram_axis(Histogram("f_high", "Hz", edges, np.ones(10, dtype=int), None, (), 0))
+    texts = [t for _, t in axis.ticks]
+    assert len(set(texts)) == len(texts) >= 2
