@@ -31,13 +31,23 @@ def recovery_dir() -> Path:
     return Path(QStandardPaths.writableLocation(QStandardPaths.StandardLocation.AppDataLocation)) / "recovery"
 
 
+def _timestamp(value) -> float | None:
+    """A recovery file's time of writing (s since the epoch), or None if it holds no usable one."""
+    if isinstance(value, bool) or not isinstance(value, (int, float)):
+        return None
+    # Beyond year 5000 or before 1970 a time can only come from a damaged file.
+    return float(value) if 0 <= value < 1e11 else None
+
+
 class Recovered:
     """What a recovery file held: the design, the file it belonged to and when it was written."""
 
-    def __init__(self, doc: Document, path: str | None, written: float):
+    def __init__(self, doc: Document, path: str | None, written: float | None):
         self.doc, self.path, self.written = doc, path, written
 
     def when(self) -> str:
+        if self.written is None:
+            return "time of writing unknown"
         return "last written " + time.strftime("%Y-%m-%d %H:%M", time.localtime(self.written))
 
 
@@ -124,8 +134,8 @@ class RecoveryKeeper(QObject):
             data = json.loads(self.path.read_text(encoding="utf-8"))
             doc = document_from_dict(data["design"], "recovered design")
             path = data.get("saved_path")
-            return Recovered(doc, path if isinstance(path, str) else None, float(data.get("written", 0)))
-        except (OSError, ValueError, KeyError, TypeError, DesignFileError):
+            return Recovered(doc, path if isinstance(path, str) else None, _timestamp(data.get("written")))
+        except (OSError, ValueError, KeyError, TypeError, DesignFileError, RecursionError):
             self.set_aside()
             return None
 

@@ -154,16 +154,8 @@ def damaged(design) -> dict:
     }
 
 
-# Reported to the lead with these reproducers (app/recovery.py is not ours to change):
-# left_over() lets RecursionError and OverflowError out, and Recovered.when() raises on a
-# timestamp that is infinite or NaN, so such a file breaks every start-up until removed.
-KNOWN_BROKEN = {"deeply nested", "written infinite", "written NaN", "written huge"}
-
-
 @pytest.mark.parametrize("case", sorted(damaged({})))
-def test_a_damaged_recovery_file_is_set_aside_and_the_window_starts(qtbot, tmp_path, case, request):
-    if case in KNOWN_BROKEN:
-        request.applymarker(pytest.mark.xfail(strict=True, reason="app/recovery.py: reported bug, see comment"))
+def test_a_damaged_recovery_file_is_set_aside_and_the_window_starts(qtbot, tmp_path, case):
     folder = tmp_path / "recovery"
     folder.mkdir()
     content = damaged(json.loads(SAMPLE.read_text(encoding="utf-8")))[case]
