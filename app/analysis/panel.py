@@ -205,7 +205,7 @@ class AnalysisPanel(QWidget):
         outcome = self.outcome
         geometry = picture_geometry(outcome.doc, outcome.netlist, outcome.analysis, focus) \
             if focus is not None else None
-        self.overlay.show_picture(geometry, self.scene.content_rect())
+        self.overlay.show_picture(geometry, self.scene.content_rect(), self.scene.occupied())
 
     def _select_problem_parts(self) -> None:
         if self.outcome is not None:

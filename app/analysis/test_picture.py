@@ -12,7 +12,7 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-from PySide6.QtCore import QPointF, QRectF, Qt
+from PySide6.QtCore import QLineF, QPointF, QRectF, Qt
 from PySide6.QtGui import QColor, QFont, QFontMetricsF, QPainterPath, QPen
 from PySide6.QtWidgets import QGraphicsItem
 
@@ -28,8 +28,15 @@ GLYPH_R = 13
 GLYPH_OFFSET = 56
 """How far (scene units) a block-internal element's glyph sits outside its block."""
 
-GRID_STEP = 20
-"""Sheet grid (scene units): wires are sampled this often to keep the label off them."""
+LABEL_CLEARANCE = 6
+"""Space (scene units) the label keeps from parts, wires and the test source's leads."""
+AROUND_GAP = 16
+"""How far outside the drawing's bounds the label goes when nothing beside the glyph is free."""
+LEADER_AFTER = GLYPH_R + 24
+"""A label further than this from the glyph's centre gets a thin leader line to it."""
+OWN_TEXT_REACH = GLYPH_R + 28
+"""The element's own name and value sit within this of the glyph's centre: a leader
+leaving the glyph may cross them, so crossings are counted only beyond it."""
 
 INTERNAL_NODE_PIN = {("bjt", "bi"): "base", ("opamp", "x"): "out", ("opamp", "y"): "out"}
 """A block's internal node -> the pin it is drawn at (b′ sits behind r_b at the base)."""
@@ -57,8 +64,6 @@ class PictureGeometry:
         Where the test-source glyph is drawn.
     lines : tuple of str
         The label: the element, its numbers, what the rest of the circuit is doing.
-    obstacles : tuple of (x, y)
-        Sheet points the label should not cover: pins, and wires every grid step.
     """
 
     element: str
@@ -69,18 +74,6 @@ class PictureGeometry:
     test_nodes: tuple
     glyph: tuple
     lines: tuple
-    obstacles: tuple
-
-
-def _obstacles(doc) -> tuple:
-    # Pins, part origins (the middle of most symbols) and the name/value spot beside them.
-    points = [pos for part in doc.parts.values() for pos in (*part.pins().values(), (part.x, part.y),
-                                                                (part.x + GRID_STEP, part.y))]
-    for wire in doc.wires.values():
-        for (x0, y0), (x1, y1) in zip(wire.points, wire.points[1:]):
-            steps = max(1, int(max(abs(x1 - x0), abs(y1 - y0)) // GRID_STEP))
-            points += [(x0 + (x1 - x0) * k / steps, y0 + (y1 - y0) * k / steps) for k in range(steps + 1)]
-    return tuple(points)
 
 
 def _two_pins(part) -> tuple:
@@ -195,7 +188,7 @@ def picture_geometry(doc, nets, analysis, element: str) -> PictureGeometry | Non
     lines = (f"{element}: a test source in its place", element_label(result),
              *_state_lines(picture, doc))
     return PictureGeometry(element, result.band, tuple(faded), tuple(gaps), tuple(shorts),
-                           ends, glyph, tuple(line for line in lines if line), _obstacles(doc))
+                           ends, glyph, tuple(line for line in lines if line))
 
 
 def _pt(p) -> QPointF:
@@ -218,6 +211,7 @@ class PictureOverlay(QGraphicsItem):
         self._leads = QPainterPath()
         self._glyph = QRectF()
         self._label = QRectF()
+        self._leader: QLineF | None = None
         self._label_lines: list = []
         self.setVisible(False)
 
@@ -226,9 +220,16 @@ class PictureOverlay(QGraphicsItem):
         self._colours = colours
         self.update()
 
-    def show_picture(self, geometry: PictureGeometry | None, room: QRectF | None = None) -> None:
-        """Draw ``geometry`` (None hides the picture), its label kept inside ``room`` (the
-        drawing's bounds, scene units) where it fits, so it is in view with the circuit."""
+    def show_picture(self, geometry: PictureGeometry | None, drawing: QRectF | None = None,
+                     occupied=()) -> None:
+        """Draw ``geometry`` (None hides the picture).
+
+        The label goes where it covers nothing: beside the glyph if a spot there is free,
+        else just outside ``drawing`` (the circuit's bounds, scene units), nearest the glyph
+        first. ``occupied`` are the scene outlines of the parts (with their texts) and wire
+        segments, as paths or rectangles. A label set apart from its glyph gets a thin
+        leader line.
+        """
         self.prepareGeometryChange()
         self.geometry = geometry
         self.setVisible(geometry is not None)
@@ -250,13 +251,17 @@ class PictureOverlay(QGraphicsItem):
         metrics = [QFontMetricsF(f) for f in fonts]
         width = max(m.horizontalAdvance(t) for m, t in zip(metrics, geometry.lines)) + 16
         height = sum(m.height() for m in metrics[:len(geometry.lines)]) + 10
-        self._label = _place_label(g, width, height, room, geometry.obstacles)
+        blocked = list(occupied) + [self._glyph] + _line_boxes(self._leads)
+        self._label = _place_label(g, width, height, drawing, blocked)
+        self._leader = _leader(g, self._label)
         self._label_lines = []
         y = self._label.top() + 5
         for text, font, m in zip(geometry.lines, fonts, metrics):
             self._label_lines.append((QPointF(self._label.left() + 8, y + m.ascent()), text, font))
             y += m.height()
         bounds = self._fade.boundingRect().united(self._label).united(self._glyph).united(self._leads.boundingRect())
+        if self._leader is not None:
+            bounds = bounds.united(QRectF(self._leader.p1(), self._leader.p2()).normalized())
         self._bounds = bounds.adjusted(-6, -6, 6, 6)
 
     def boundingRect(self) -> QRectF:
@@ -298,6 +303,9 @@ class PictureOverlay(QGraphicsItem):
         head.closeSubpath()
         painter.setBrush(accent)
         painter.drawPath(head)
+        if self._leader is not None:
+            painter.setPen(QPen(accent, 1.2))
+            painter.drawLine(self._leader)
         box = QColor(c.paper)
         box.setAlphaF(0.94)
         painter.setBrush(box)
@@ -319,24 +327,81 @@ def _label_fonts(n: int) -> list:
     return [head, body] + [note] * max(0, n - 2)
 
 
-def _place_label(glyph: QPointF, width: float, height: float, room: QRectF | None, obstacles) -> QRectF:
-    """Beside the glyph where the label covers the fewest pins and wires and stays in ``room``
-    (the drawing's bounds, so it is in view when the drawing is); right of it on a tie."""
+def _line_boxes(path: QPainterPath, step: float = 8.0) -> list:
+    """Small squares along the straight lines of ``path`` (the test source's leads)."""
+    boxes = []
+    for k in range(1, path.elementCount()):
+        a, b = path.elementAt(k - 1), path.elementAt(k)
+        if not b.isLineTo():
+            continue
+        n = max(1, int(math.hypot(b.x - a.x, b.y - a.y) // step))
+        boxes += [QRectF(a.x + (b.x - a.x) * t / n - 3, a.y + (b.y - a.y) * t / n - 3, 6, 6) for t in range(n + 1)]
+    return boxes
+
+
+def _label_spots(glyph: QPointF, width: float, height: float, drawing: QRectF | None) -> list:
+    """Where the label may go, in order of preference: beside the glyph (right of it first),
+    then just outside the drawing's bounds, level with the glyph before the drawing's
+    corners, the spots nearest the glyph first."""
     near = GLYPH_R + 10
-    x, y = glyph.x(), glyph.y()
-    spots = [QRectF(x + near, y - height / 2, width, height), QRectF(x - near - width, y - height / 2, width, height),
-             QRectF(x + near, y - near - height, width, height), QRectF(x + near, y + near, width, height),
-             QRectF(x - near - width, y - near - height, width, height), QRectF(x - near - width, y + near, width, height)]
-    points = [QPointF(float(px), float(py)) for px, py in obstacles]
-    grown = room.adjusted(-30, -30, 30, 30) if room is not None and not room.isEmpty() else None
+    x, y, w, h = glyph.x(), glyph.y(), width, height
+    beside = [QRectF(x + near, y - h / 2, w, h), QRectF(x - near - w, y - h / 2, w, h),
+              QRectF(x + near, y - near - h, w, h), QRectF(x + near, y + near, w, h),
+              QRectF(x - near - w, y - near - h, w, h), QRectF(x - near - w, y + near, w, h),
+              QRectF(x - w / 2, y - near - h, w, h), QRectF(x - w / 2, y + near, w, h)]
+    if drawing is None or drawing.isEmpty():
+        return beside
+    d, gap = drawing, AROUND_GAP
+    # Level with the glyph (a straight leader) first, then at the drawing's corners.
+    level_y, level_x = min(max(y - h / 2, d.top()), d.bottom() - h), min(max(x - w / 2, d.left()), d.right() - w)
+    straight, corners = [], []
+    for ys, xs, out in (((level_y,), (level_x,), straight),
+                        ((d.top(), d.bottom() - h), (d.left(), d.right() - w), corners)):
+        out += [QRectF(d.right() + gap, yy, w, h) for yy in ys] + [QRectF(d.left() - gap - w, yy, w, h) for yy in ys]
+        out += [QRectF(xx, d.top() - gap - h, w, h) for xx in xs] + [QRectF(xx, d.bottom() + gap, w, h) for xx in xs]
+        out.sort(key=lambda r: _distance(glyph, r))
+    return beside + straight + corners
 
-    def cost(rect: QRectF) -> float:
-        covered = sum(rect.contains(p) for p in points)
-        outside = 0.0 if grown is None else (rect.width() * rect.height() - rect.intersected(grown).width()
-                                             * rect.intersected(grown).height()) / 400.0
-        return covered + outside
 
-    return min(spots, key=cost)
+def _distance(p: QPointF, rect: QRectF) -> float:
+    """How far ``p`` is from ``rect`` (0 inside it)."""
+    dx = max(rect.left() - p.x(), 0.0, p.x() - rect.right())
+    dy = max(rect.top() - p.y(), 0.0, p.y() - rect.bottom())
+    return math.hypot(dx, dy)
+
+
+def _place_label(glyph: QPointF, width: float, height: float, drawing: QRectF | None, blocked) -> QRectF:
+    """The first of :func:`_label_spots` that covers none of ``blocked`` (paths or
+    rectangles), preferring one whose leader line crosses the fewest of them; if every
+    spot covers something, the one covering the fewest, nearest first."""
+    spots = _label_spots(glyph, width, height, drawing)
+
+    def covers(rect: QRectF) -> int:
+        grown = rect.adjusted(-LABEL_CLEARANCE, -LABEL_CLEARANCE, LABEL_CLEARANCE, LABEL_CLEARANCE)
+        return sum(b.intersects(grown) for b in blocked)
+
+    def crossed(rect: QRectF) -> int:
+        line = _leader(glyph, rect)
+        if line is None or line.length() + GLYPH_R <= OWN_TEXT_REACH:
+            return 0
+        path = QPainterPath(line.pointAt((OWN_TEXT_REACH - GLYPH_R) / line.length()))
+        path.lineTo(line.p2())
+        return sum(b.intersects(box) for box in _line_boxes(path) for b in blocked)
+
+    free = [spot for spot in spots if covers(spot) == 0]
+    if free:
+        return min(free, key=crossed)
+    return min(spots, key=lambda r: (covers(r), _distance(glyph, r)))
+
+
+def _leader(glyph: QPointF, label: QRectF) -> QLineF | None:
+    """A line from the glyph's ring to the nearest point of a label set far from it, else None."""
+    if _distance(glyph, label) <= LEADER_AFTER:
+        return None
+    near = QPointF(min(max(glyph.x(), label.left()), label.right()), min(max(glyph.y(), label.top()), label.bottom()))
+    line = QLineF(glyph, near)
+    start = line.pointAt(GLYPH_R / line.length())
+    return QLineF(start, near)
 
 
 def _span_rect(a, b, half: float) -> QRectF:

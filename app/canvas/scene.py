@@ -225,6 +225,15 @@ class SchematicScene(QGraphicsScene):
                     return (x, ay)
         return None
 
+    def occupied(self) -> list:
+        """What a label laid over the sheet must not cover, in scene coordinates: each part's
+        outline with its name and value (a path), and each wire segment (a thin rectangle)."""
+        shapes = [item.mapToScene(item.shape()) for item in self._parts.values()]
+        for w in self.doc.wires.values():
+            for a, b in zip(w.points, w.points[1:]):
+                shapes.append(QRectF(QPointF(*a), QPointF(*b)).normalized().adjusted(-2, -2, 2, 2))
+        return shapes
+
     def content_rect(self) -> QRectF:
         """Bounds of everything drawn (empty if nothing is)."""
         rect = QRectF()

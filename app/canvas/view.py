@@ -58,8 +58,11 @@ class SchematicView(QGraphicsView):
         self.setTransformationAnchor(QGraphicsView.ViewportAnchor.AnchorUnderMouse)
 
     def zoom_to_fit(self) -> None:
-        """Show the whole drawing, with a margin, no larger than :data:`FIT_MAX_ZOOM`."""
-        rect = self.scene().content_rect()
+        """Show the whole drawing, with a margin, no larger than :data:`FIT_MAX_ZOOM`.
+
+        Everything on the sheet counts, a test picture's label set beside the circuit too.
+        """
+        rect = self.scene().itemsBoundingRect()
         if rect.isEmpty():
             rect = QRectF(-200, -150, 400, 300)
         rect = rect.adjusted(-40, -40, 40, 40)

@@ -46,6 +46,9 @@ def test_each_capacitor_shows_the_engines_numbers(window, path):
         assert shown.lines[1] == element_label(result)
         assert f"R = {format_value(result.resistance, 'Ω')}" in shown.lines[1]
         assert f"τ = {format_value(result.time_constant, 's')}" in shown.lines[1]
+        # The label covers no part, part text or wire of the sheet.
+        label = panel.overlay._label
+        assert not [shape for shape in window.scene.occupied() if shape.intersects(label)], name
         row = panel.bars.data().row(name)
         assert row.share == pytest.approx(result.share)
         assert row.dominant == (name in (analysis.dominant_high, analysis.dominant_low))
