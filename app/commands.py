@@ -17,13 +17,14 @@ from engine.document import Document
 from . import edits
 from .edits import Patch
 
-_MOVE_ID = 1
-_drag_serials = count(1)
+_RUN_ID = 1
+_run_serials = count(1)
 
 
-def new_drag() -> int:
-    """A serial number for one drag, so its moves merge into one undo step."""
-    return next(_drag_serials)
+def new_run() -> int:
+    """A serial number for one gesture made in pieces (a drag, a run of typing), so its
+    pieces merge into one undo step."""
+    return next(_run_serials)
 
 
 class PatchCommand(QUndoCommand):
@@ -41,18 +42,19 @@ class PatchCommand(QUndoCommand):
         edits.apply_patch(self.doc, self.patch, forward=False)
 
 
-class MoveCommand(PatchCommand):
-    """Moving parts and wires; the moves of one drag merge into a single step."""
+class RunCommand(PatchCommand):
+    """One piece of a gesture made in pieces: a drag's move, a run of typing in a text box.
+    The pieces of one run (see :func:`new_run`) merge into a single step."""
 
-    def __init__(self, doc: Document, patch: Patch, drag: int):
-        super().__init__(doc, patch, "Move")
-        self.drag = drag
+    def __init__(self, doc: Document, patch: Patch, text: str, run: int):
+        super().__init__(doc, patch, text)
+        self.run = run
 
     def id(self) -> int:
-        return _MOVE_ID
+        return _RUN_ID
 
     def mergeWith(self, other) -> bool:
-        if not isinstance(other, MoveCommand) or other.drag != self.drag:
+        if not isinstance(other, RunCommand) or other.run != self.run:
             return False
         self.patch = self.patch.merged(other.patch)
         self.setObsolete(self.patch.is_empty())

@@ -33,6 +33,8 @@ from .theme import system_theme
 APP_NAME = "Bandsketch"
 FRAGMENT_MIME = "application/x-bandsketch-fragment"
 PASTE_STEP = 2 * GRID
+PROPERTIES_WIDTH = 330
+"""Pixels the Properties panel starts with: a design's title and notes read in full."""
 REPORT_MARGIN = 2 * GRID
 """Paper left round the drawing in the report's picture of the sheet (scene units)."""
 
@@ -93,6 +95,7 @@ class MainWindow(QMainWindow):
         self.tabifyDockWidget(self.properties_dock, self.help_dock)
         self.properties_dock.raise_()
         self.help_dock.hide()
+        self.resizeDocks([self.properties_dock], [PROPERTIES_WIDTH], Qt.Orientation.Horizontal)
         self._make_menus()
         self._make_status()
 

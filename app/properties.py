@@ -7,15 +7,17 @@ marked, with the reason under it, and the document keeps its previous value.
 from __future__ import annotations
 
 from PySide6.QtCore import Qt
+from PySide6.QtGui import QKeySequence, QTextCursor
 from PySide6.QtWidgets import (QCheckBox, QComboBox, QFormLayout, QGroupBox, QLabel, QLineEdit,
-                               QVBoxLayout, QWidget)
+                               QPlainTextEdit, QVBoxLayout, QWidget)
 
+from engine.designfile import MAX_TEXT
 from engine.document import Change, Document
 from engine.parts import KINDS, Field
 from engine.values import format_value
 
 from . import edits
-from .commands import Editor, RenameCommand
+from .commands import Editor, RenameCommand, RunCommand, new_run
 from .engine_link import check_field, derived_values, kind_fields
 from .theme import Theme
 
@@ -25,6 +27,9 @@ DERIVED_UNITS = {"gm": "S", "rpi": "Ω", "ro": "Ω", "cpi": "F", "cmu": "F", "cc
                  "cgs": "F", "cgd": "F", "cdb": "F", "csb": "F", "vt": "V", "a0": "", "fu": "Hz", "fp": "Hz",
                  "rout": "Ω", "rin": "Ω"}
 DERIVED_LABELS = {"vt": "V_T", "fp": "f_p"}
+NOTES_LINES = 6
+"""How many lines of the design's notes show without scrolling."""
+TOO_LONG = f"Keep this under {MAX_TEXT} characters (what a design file holds)"
 
 
 def caption(label: str) -> str:
@@ -70,6 +75,71 @@ class _Entry(QWidget):
             self.edit.setText(text)
 
 
+class _NotesBox(QPlainTextEdit):
+    """The design's notes, several lines. What is typed goes into the document as it is
+    typed, and one visit to the box (focus in to focus out) is one undo step. The box
+    keeps no undo history of its own: undo and redo keys reach the window's stack."""
+
+    def __init__(self, doc: Document, editor: Editor, theme: Theme):
+        super().__init__()
+        self.doc, self.editor, self._theme = doc, editor, theme
+        self.setUndoRedoEnabled(False)
+        self.setTabChangesFocus(True)
+        self.setPlainText(doc.description)
+        self.setFixedHeight(round(self.fontMetrics().lineSpacing() * NOTES_LINES
+                                  + 2 * (self.frameWidth() + self.document().documentMargin())))
+        self.note = QLabel()
+        self.note.setWordWrap(True)
+        self._run = new_run()
+        self._pushing = False
+        self.textChanged.connect(self._typed)
+
+    def _typed(self) -> None:
+        text = self.toPlainText()
+        if text == self.doc.description:
+            return
+        if len(text) > MAX_TEXT:
+            self.note.setText(TOO_LONG)
+            self.note.setStyleSheet(f"color: {self._theme.problem.name()};")
+            return
+        self.note.setText("")
+        self._pushing = True
+        try:
+            self.editor.push(RunCommand(self.doc, edits.set_meta(self.doc, "description", text), "Edit notes",
+                                        self._run), finished=False)
+        finally:
+            self._pushing = False
+
+    def show_document(self) -> None:
+        """Show the document's notes (after an undo, say), unless they came from this box."""
+        if not self._pushing and self.toPlainText() != self.doc.description:
+            self.setPlainText(self.doc.description)
+            self.moveCursor(QTextCursor.MoveOperation.End)
+            self.note.setText("")
+
+    def _end_run(self) -> None:
+        self._run = new_run()
+        self.editor.finish()
+
+    def focusInEvent(self, event):
+        self._run = new_run()
+        super().focusInEvent(event)
+
+    def focusOutEvent(self, event):
+        self._end_run()
+        super().focusOutEvent(event)
+
+    def keyPressEvent(self, event):
+        for key, step in ((QKeySequence.StandardKey.Undo, self.editor.undo),
+                          (QKeySequence.StandardKey.Redo, self.editor.redo)):
+            if event.matches(key):
+                # What was typed so far is a step of its own; the next keystroke starts another.
+                self._run = new_run()
+                step()
+                return
+        super().keyPressEvent(event)
+
+
 class PropertiesPanel(QWidget):
     """Edits the selected part (or the design itself when nothing is selected).
 
@@ -91,6 +161,7 @@ class PropertiesPanel(QWidget):
         self.part_name: str | None = None
         self._selection: tuple = ((), ())
         self._entries: dict[str, _Entry] = {}
+        self.notes: _NotesBox | None = None
         self._layout = QVBoxLayout(self)
         self._layout.setContentsMargins(6, 6, 6, 6)
         self._body: QWidget | None = None
@@ -152,12 +223,15 @@ class PropertiesPanel(QWidget):
 
     # -- the forms -----------------------------------------------------------------------
     def _design_form(self) -> None:
+        # Captions above the fields, so the title and the notes get the panel's whole width.
         form = QFormLayout(self._body)
-        title = _Entry(self.doc.title, lambda e, t: self._set_meta(e, "title", t), self.theme)
-        description = _Entry(self.doc.description, lambda e, t: self._set_meta(e, "description", t), self.theme)
-        self._entries = {"title": title, "description": description}
+        form.setRowWrapPolicy(QFormLayout.RowWrapPolicy.WrapAllRows)
+        title = _Entry(self.doc.title, self._set_title, self.theme)
+        self._entries = {"title": title}
+        self.notes = _NotesBox(self.doc, self.editor, self.theme)
         form.addRow("Title", title)
-        form.addRow("Notes", description)
+        form.addRow("Notes", self.notes)
+        form.addRow(self.notes.note)
         sources = QComboBox()
         sources.addItem("(none)", None)
         for p in self.doc.parts.values():
@@ -259,20 +333,20 @@ class PropertiesPanel(QWidget):
         if problem is None:
             self.editor.push(RenameCommand(self.doc, self.part_name, text))
 
-    def _set_meta(self, entry: _Entry, key: str, text: str) -> None:
-        if len(text) > 200:
-            entry.show_verdict(False, "Keep this under 200 characters")
+    def _set_title(self, entry: _Entry, text: str) -> None:
+        if len(text) > MAX_TEXT:
+            entry.show_verdict(False, TOO_LONG)
             return
         entry.show_verdict(True, "")
-        if text != getattr(self.doc, key):
-            self.editor.patch(edits.set_meta(self.doc, key, text), f"Set {key}")
+        if text != self.doc.title:
+            self.editor.patch(edits.set_meta(self.doc, "title", text), "Set title")
 
     # -- keeping up with the document -------------------------------------------------------------
     def _refresh_texts(self) -> None:
         if self.part_name is None:
-            for key in ("title", "description"):
-                if key in self._entries:
-                    self._entries[key].set_text(getattr(self.doc, key))
+            if "title" in self._entries:
+                self._entries["title"].set_text(self.doc.title)
+                self.notes.show_document()
             return
         part = self.doc.parts[self.part_name]
         for key, entry in self._entries.items():

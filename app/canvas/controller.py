@@ -18,7 +18,7 @@ from engine.document import Document, Part
 from engine.parts import KINDS
 
 from .. import edits
-from ..commands import Editor, MoveCommand, new_drag
+from ..commands import Editor, RunCommand, new_run
 from .items import Z_PREVIEW, PartItem, WireItem
 from .scene import SchematicScene
 
@@ -304,7 +304,7 @@ class CanvasController(QObject):
             item.setSelected(True)
         names, wires = self.scene.selected_names(), self.scene.selected_wire_ids()
         if names or wires:
-            self._drag = _Drag(new_drag(), pos, _copy(self.doc), names, wires)
+            self._drag = _Drag(new_run(), pos, _copy(self.doc), names, wires)
         return True
 
     def _drag_to(self, pos: QPointF) -> None:
@@ -314,7 +314,7 @@ class CanvasController(QObject):
             return
         d.delta = delta
         patch = edits.move(d.base, d.names, d.wire_ids, *delta)
-        self.editor.push(MoveCommand(self.doc, patch, d.serial), finished=False)
+        self.editor.push(RunCommand(self.doc, patch, "Move", d.serial), finished=False)
 
     def _band_to(self, pos: QPointF) -> None:
         rect = QRectF(self._band_start, pos).normalized()

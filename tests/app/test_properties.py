@@ -108,3 +108,32 @@ def test_complete_stage_shows_no_problem_marks(qtbot, window):
     assert any(r in p.parts for p in window.scene.problems)
     window.act_undo.trigger()
     assert window.scene.problems == []
+
+
+def test_design_notes_are_several_lines_and_a_visit_is_one_undo_step(qtbot, window):
+    notes = window.properties.notes
+    assert notes.height() > 3 * notes.fontMetrics().lineSpacing(), "room for several lines"
+    notes.setFocus()
+    qtbot.keyClicks(notes, "Invented stage")
+    qtbot.keyClick(notes, Qt.Key.Key_Return)
+    qtbot.keyClicks(notes, "second line")
+    assert window.doc.description == "Invented stage\nsecond line", "taken as typed"
+    window.view.setFocus()
+    assert window.stack.count() == 1 and window.stack.undoText() == "Edit notes"
+    # Undo from inside the box goes to the window's stack, and the box shows the result.
+    notes.setFocus()
+    qtbot.keyClicks(notes, "!")
+    assert window.stack.count() == 2
+    qtbot.keyClick(notes, Qt.Key.Key_Z, Qt.KeyboardModifier.ControlModifier)
+    assert window.doc.description == notes.toPlainText() == "Invented stage\nsecond line"
+    qtbot.keyClick(notes, Qt.Key.Key_Z, Qt.KeyboardModifier.ControlModifier)
+    assert window.doc.description == notes.toPlainText() == ""
+    qtbot.keyClick(notes, Qt.Key.Key_Z, Qt.KeyboardModifier.ControlModifier | Qt.KeyboardModifier.ShiftModifier)
+    assert window.doc.description == "Invented stage\nsecond line"
+
+
+def test_design_notes_longer_than_a_file_holds_are_refused_with_the_reason(qtbot, window):
+    notes = window.properties.notes
+    notes.setFocus()
+    notes.setPlainText("x" * 201)
+    assert window.doc.description == "" and "200 characters" in notes.note.text()
