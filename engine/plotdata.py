@@ -34,6 +34,12 @@ tens of gigahertz would otherwise squeeze the corners into a corner of the plot.
 
 VIEW_DEPTH_DB = 60.0
 """How far below the mid-band gain the magnitude axis reaches at most, dB."""
+VIEW_MARGIN_DB = 6.0
+"""Room above and below the magnitude curve, dB."""
+PEAK_SHOWN_DB = 0.1
+"""An exact gain this far above the mid-band gain (dB) is a peak the plot keeps in view."""
+PEAK_ROOM = 0.25
+"""Above a peak, the magnitude axis leaves this fraction of its span for the corner labels."""
 
 BAND_TITLES = {"high": "High band: τ, share of b1", "low": "Low band: 1/2πτ, share of ω_L",
                "neutral": "No effect on the gain"}
@@ -74,6 +80,10 @@ class Marker:
         The gain there, dB (the mid-band gain less 3.01 dB).
     text : str
         The label drawn beside it, e.g. ``"f_H ≈ 894 kHz"``.
+    label_db : float
+        Where the label is pinned, dB: an estimate's label sits above it, an exact one's
+        below. The corner's level, or for an estimate the top of a peak on its side of the
+        mid band, so the label does not hide the peak.
     """
 
     corner: str
@@ -81,6 +91,7 @@ class Marker:
     freq_hz: float
     level_db: float
     text: str
+    label_db: float
 
 
 @dataclass(frozen=True)
@@ -97,6 +108,9 @@ class BodeData:
         ``A_m · s / (s + ω_L)`` over the lower part of the sweep; None without low-band elements.
     midband_db : float
         20·log10|A_m|, dB.
+    peak : (float, float) or None
+        (Hz, dB) of the exact gain's highest point, when it rises more than
+        :data:`PEAK_SHOWN_DB` above the mid band; None otherwise.
     markers : tuple of Marker
         f_H and f_L, estimated and exact, where they exist.
     gain_unit : str
@@ -107,6 +121,7 @@ class BodeData:
     high_estimate: Curve | None
     low_estimate: Curve | None
     midband_db: float
+    peak: tuple | None
     markers: tuple
     gain_unit: str
 
@@ -118,11 +133,15 @@ class BodeData:
     @property
     def magnitude_view_db(self) -> tuple:
         """(bottom, top) of the magnitude axis, dB: the exact curve, but no deeper than
-        :data:`VIEW_DEPTH_DB` below the mid band, so a deep notch does not flatten the corners."""
+        :data:`VIEW_DEPTH_DB` below the mid band, so a deep notch does not flatten the corners.
+        Above a peak the axis leaves :data:`PEAK_ROOM` of its span, where the corner labels
+        pinned over the peak go."""
         m = self.exact.magnitude_db
-        top = max(float(m.max()), self.midband_db) + 6.0
-        bottom = max(float(m.min()), self.midband_db - VIEW_DEPTH_DB) - 6.0
-        return bottom, top
+        bottom = max(float(m.min()), self.midband_db - VIEW_DEPTH_DB) - VIEW_MARGIN_DB
+        if self.peak is None:
+            return bottom, self.midband_db + VIEW_MARGIN_DB
+        peak_db = self.peak[1]
+        return bottom, peak_db + max(VIEW_MARGIN_DB, PEAK_ROOM * (peak_db - bottom) / (1 - PEAK_ROOM))
 
     def readout(self, freq_hz: float) -> str:
         """The exact response at the swept point nearest ``freq_hz``, as the hover line reads it.
@@ -406,14 +425,19 @@ def bode_data(analysis) -> BodeData:
             low = _curve(fl, low_estimate_response(am, analysis.omega_low_estimate, fl), ref, anchor)
     mid_db = float(_db(am))
     level = mid_db - HALF_POWER_DB
+    top = int(np.argmax(exact.magnitude_db))
+    peak = (float(f[top]), float(exact.magnitude_db[top])) \
+        if exact.magnitude_db[top] - mid_db > PEAK_SHOWN_DB else None
+    peak_side = None if peak is None else ("high" if peak[0] > anchor else "low")
     markers = []
     for corner, est, value in (("high", True, analysis.f_high_estimate),
                                ("high", False, analysis.f_high_exact),
                                ("low", True, analysis.f_low_estimate),
                                ("low", False, analysis.f_low_exact)):
         if _positive(value):
-            markers.append(Marker(corner, est, float(value), level, _marker_text(corner, est, value)))
-    return BodeData(exact, high, low, mid_db, tuple(markers), analysis.gain_unit)
+            label_db = max(level, peak[1]) if est and corner == peak_side else level
+            markers.append(Marker(corner, est, float(value), level, _marker_text(corner, est, value), label_db))
+    return BodeData(exact, high, low, mid_db, peak, tuple(markers), analysis.gain_unit)
 
 
 def _percent(share: float) -> str:

@@ -148,12 +148,13 @@ class BodePlot(QWidget):
             line.show()
         dot.setData([marker.freq_hz], [marker.level_db])
         dot.show()
-        # Labels point into the mid band, where there is room; the estimate sits above the
-        # −3 dB line and the exact value below it, so a corner's two labels never overlap.
+        # Labels point into the mid band, where there is room; the estimate sits above its
+        # pin (the −3 dB line, or a peak's top) and the exact value below the line, so a
+        # corner's two labels never overlap.
         left = slot[0] == "high"
         label.setAnchor((1.0 if left else 0.0, 1.0 if marker.estimated else 0.0))
         label.setText((marker.text + " ") if left else (" " + marker.text))
-        label.setPos(x, marker.level_db)
+        label.setPos(x, marker.label_db)
         label.show()
 
     def set_stale(self, stale: bool) -> None:

@@ -225,3 +225,24 @@ def test_histogram_axis_keeps_close_ticks_apart():
     axis = histogram_axis(Histogram("f_high", "Hz", edges, np.ones(10, dtype=int), None, (), 0))
     texts = [t for _, t in axis.ticks]
     assert len(set(texts)) == len(texts) >= 2
+
+
+def test_a_peak_above_the_mid_band_stays_in_view_with_the_label_over_it():
+    # A second-order low-pass with Q = 2 at 1 MHz peaks by Q/sqrt(1 - 1/(4Q²)) (the textbook
+    # resonant-peak closed form, 6.3 dB here); the axis keeps room above it and the f_H
+    # estimate's label is pinned over the peak, not across it.
+    q, w0, wl, am = 2.0, 2 * math.pi * 1e6, 2 * math.pi * 20.0, -40.0
+
+    def response(f):
+        s = 2j * np.pi * np.asarray(f, dtype=float)
+        return am * s / (s + wl) * w0 ** 2 / (s * s + s * w0 / q + w0 ** 2)
+
+    d = bode_data(_two_corner(am=am, response=response))
+    rise = 20 * math.log10(q / math.sqrt(1 - 1 / (4 * q * q)))
+    assert d.peak is not None and d.peak[1] - d.midband_db == pytest.approx(rise, abs=0.05)
+    bottom, top = d.magnitude_view_db
+    assert top - d.peak[1] == pytest.approx(plotdata.PEAK_ROOM * (top - bottom))
+    by_kind = {(m.corner, m.estimated): m for m in d.markers}
+    assert by_kind["high", True].label_db == d.peak[1]
+    assert by_kind["high", False].label_db == by_kind["low", True].label_db == d.midband_db - HALF_POWER_DB
+    assert bode_data(_two_corner()).peak is None
