@@ -226,10 +226,12 @@ def _corner_check(key, sym, op, target, exact, estimate) -> TargetCheck:
     else:
         passed = ok(exact)
         margin = exact / target - 1 if minimum else target / exact - 1
-        word = "pass" if passed else "fail"
-        head = f"{sym} = {format_value(exact, 'Hz')} {op} {format_value(target, 'Hz')}: {word} by {abs(margin) * 100:.0f} %"
-        if not passed:
-            head = f"{sym} = {format_value(exact, 'Hz')}, not {op} {format_value(target, 'Hz')}: fail, " \
+        # The verdict badge beside the text already says pass or fail; the text gives the margin.
+        if passed:
+            head = f"{sym} = {format_value(exact, 'Hz')} {op} {format_value(target, 'Hz')}, " \
+                   f"{abs(margin) * 100:.0f} % to spare"
+        else:
+            head = f"{sym} = {format_value(exact, 'Hz')}, not {op} {format_value(target, 'Hz')}: " \
                    f"{abs(margin) * 100:.0f} % short"
     est = estimate if _usable(estimate) else None
     est_ok = ok(est)
@@ -277,7 +279,7 @@ def check_targets(targets: Targets, analysis, gain_unit: str = "V/V") -> tuple:
         wanted = f"{format_value(targets.gain, gain_unit)} {targets.gain_window_text}"
         target_text = f"|A_m| = {wanted}"
         if g > 0:
-            word = "pass, inside the window by" if passed else "fail, outside the window by"
+            word = "inside the window by" if passed else "outside the window by"
             text = f"|A_m| = {format_value(g, gain_unit)} against {wanted}: {word} {abs(margin):.2f} dB"
         else:
             text = f"|A_m| = 0: no signal reaches the output; {target_text} failed"

@@ -75,7 +75,7 @@ def test_check_on_the_exact_figures_with_the_estimate_beside():
     assert "would have said" in check.text
     (check,) = check_targets(Targets(f_high_min=a.f_high_exact * 0.8), a)
     assert check.passed and check.margin == pytest.approx(0.25)
-    assert "pass" in check.text
+    assert "25 % to spare" in check.text
 
 
 @pytest.mark.parametrize("name, key, text", [
