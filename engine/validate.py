@@ -84,9 +84,13 @@ def problems(circuit) -> list[CircuitError]:
                                       nodes=(p,)))
 
     counts = Counter(node for el in els for node in el.nodes)
+    first = {}
+    for e in els:
+        for node in e.nodes:
+            first.setdefault(node, e)
     for node, count in counts.items():
         if node != "0" and count == 1:
-            el = next(e for e in els if node in e.nodes)
+            el = first[node]
             found.append(CircuitError(
                 f"Node {node} has only one connection ({owner[el.name]}): wire it to the rest of the "
                 f"circuit or remove {owner[el.name]}.", parts=(owner[el.name],), nodes=(node,)))

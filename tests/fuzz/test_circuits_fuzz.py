@@ -19,9 +19,11 @@ of Electronic Circuits", IEEE Trans. Circuit Theory CT-20(1), 1973):
 - with Z_L the port matrix of the low-band capacitors (high band open): R_jˢ = 1/(Z_L⁻¹)_jj
   and Σ 1/(C_j R_jˢ) = tr((D_L Z_L)⁻¹) = −Σ p over the finite poles p of the low-band-only
   network (its generalised eigenvalues, from scipy.linalg.eig);
-- the exact response at every swept point equals the dense solve to 1e-9 (relative, with a
-  floor of 1e-9 of the sweep's largest |H|, since near a transmission zero |H| itself
-  carries the solve's rounding).
+- the exact response at every swept point equals the dense reference to 1e-9 (relative,
+  with a floor of 1e-9 of the sweep's largest |H|, since near a transmission zero |H| itself
+  carries the solve's rounding), or to 8·κ·u where the matrix's condition number κ makes
+  that larger (κ > ~1e6: a few networks at gigahertz with microfarads in them). The
+  reference refines each solve with long-double residuals, so it is accurate to a few u.
 """
 
 from __future__ import annotations
@@ -130,7 +132,24 @@ class Dense:
         self.G, self.C, self.b, self.c = G, C, b, out
 
     def response(self, freqs):
-        return np.array([self.c @ np.linalg.solve(self.G + 2j * np.pi * f * self.C, self.b) for f in freqs])
+        """H at ``freqs`` (Hz), each solve refined with residuals in extended precision.
+
+        Mixed-precision iterative refinement (residual r = b − A·x in numpy's long double,
+        64-bit mantissa on x86) makes x accurate to a few units of double rounding whenever
+        κ(A)·u < 1 — so the reference is more accurate than either solver it checks.
+        """
+        out, self.conditions = [], []
+        bl = self.b.astype(np.clongdouble)
+        for f in freqs:
+            A = self.G + 2j * np.pi * f * self.C
+            lu = la.lu_factor(A)
+            x = la.lu_solve(lu, self.b.astype(complex))
+            Al = A.astype(np.clongdouble)
+            for _ in range(3):
+                x = x + la.lu_solve(lu, (bl - Al @ x.astype(np.clongdouble)).astype(complex))
+            out.append(self.c @ x)
+            self.conditions.append(np.linalg.cond(A))
+        return np.array(out)
 
     def port(self, a, b):
         e = np.zeros(self.G.shape[0])
@@ -202,15 +221,50 @@ def circuits(draw, max_nodes=8):
             c.bjt(f"Q{k}", collector=col, base=base, emitter=emi, gm=draw(log_uniform(1e-3, 0.1)),
                   rpi=draw(log_uniform(500, 2e4)), ro=draw(log_uniform(1e4, 1e6)), rb=draw(log_uniform(10, 500)),
                   cpi=draw(log_uniform(1e-12, 3e-11)), cmu=draw(log_uniform(1e-13, 3e-12)))
-    c.output(draw(st.sampled_from(nodes[1:])))
+    # The output on a node the signal reaches (an unreached one is the known bug below).
+    c.output(draw(st.sampled_from(sorted(reached(c) - {"0", "in"}) or ["n1"])))
     return c
 
 
-def relative_error(actual, reference):
-    peak = np.max(np.abs(reference))
-    if peak == 0:  # the output hangs off a piece the signal never reaches
-        return np.max(np.abs(actual))
-    return np.max(np.abs(actual - reference) / np.maximum(np.abs(reference), 1e-9 * peak))
+def reached(c) -> set:
+    """Nodes the input signal reaches without passing through ground: through resistors and
+    capacitors either way, through a transconductance from its sensing to its output pins."""
+    step = {}
+    for el in c.elements.values():
+        if isinstance(el, VCCS):
+            pairs = [(x, y) for x in (el.cp, el.cn) for y in (el.p, el.n)]
+        else:
+            a, b = el.nodes[:2]
+            pairs = [(a, b), (b, a)]
+        for x, y in pairs:
+            step.setdefault(x, set()).add(y)
+    seen, todo = {"in"}, ["in"]
+    while todo:
+        for y in step.get(todo.pop(), ()):
+            if y not in seen and y != "0":
+                seen.add(y)
+                todo.append(y)
+    return seen
+
+
+U = np.finfo(float).eps / 2
+
+
+def assert_sweep_matches(actual, dense, freqs):
+    """Within 1e-9 of the refined reference, or within what the conditioning allows.
+
+    A backward-stable solve of (G + jωC)x = b is accurate to about κ·u (κ the condition
+    number, u the unit roundoff); above κ ≈ 1e6 that exceeds 1e-9, and no double-precision
+    solver can promise more (N. J. Higham, "Accuracy and Stability of Numerical Algorithms",
+    2nd ed., SIAM, 2002, ch. 7 and 12, from memory). The allowance is 8·κ·u per point.
+    """
+    reference = dense.response(freqs)
+    # Floors: 1e-9 of the sweep's peak (near a transmission zero), and 1e-20 absolute for an
+    # output the signal cannot reach, where both sides hold nothing but rounding (1e-33).
+    floor = max(1e-9 * np.max(np.abs(reference)), 1e-20)
+    err = np.abs(actual - reference) / np.maximum(np.abs(reference), floor)
+    allowed = np.maximum(1e-9, 8 * np.array(dense.conditions) * U)
+    assert np.all(err <= allowed), (err.max(), np.array(dense.conditions)[np.argmax(err / allowed)])
 
 
 @FUZZ
@@ -219,7 +273,7 @@ def test_exact_sweep_equals_the_dense_reference(c):
     validate(c)
     dense = Dense(c)
     freqs = np.logspace(-2, 10, 61)
-    assert relative_error(frequency_response(build_system(c), freqs), dense.response(freqs)) < 1e-9
+    assert_sweep_matches(frequency_response(build_system(c), freqs), dense, freqs)
 
 
 @settings(FUZZ, max_examples=max(5, FUZZ.max_examples // 5))  # ~0.4 s an example
@@ -235,7 +289,7 @@ def test_sparse_sweep_equals_the_dense_reference(c, extra):
     system = build_system(c)
     assert system.size > DENSE_LIMIT
     freqs = np.logspace(0, 9, 7)
-    assert relative_error(frequency_response(system, freqs), Dense(c).response(freqs)) < 1e-9
+    assert_sweep_matches(frequency_response(system, freqs), Dense(c), freqs)
 
 
 def analysed(c):
@@ -259,7 +313,7 @@ def test_time_constant_identities_hold(c):
     other = [n for n in caps if n not in {el.name for el in high + low}]
 
     # The response the analysis carries is the exact one.
-    assert relative_error(a.sweep_response, Dense(c).response(a.sweep_frequencies)) < 1e-9
+    assert_sweep_matches(a.sweep_response, Dense(c), a.sweep_frequencies)
 
     # Upper band: open-circuit time constants.
     taus = [a.capacitors[el.name].time_constant for el in high]
@@ -300,6 +354,25 @@ def test_time_constant_identities_hold(c):
         assert abs(pole_sum.imag) <= 1e-8 * abs(pole_sum)
     else:
         assert a.omega_low_estimate is None
+
+
+@pytest.mark.xfail(strict=True, raises=ValueError, reason=(
+    "engine/analysis.py: an output the signal cannot reach, but whose rounding noise is not "
+    "exactly 0 (a transconductance senses it), slips past the 'gain == 0' check and fails "
+    "later in math.log10 or brentq; reported with this reproducer"))
+def test_an_output_the_signal_cannot_reach_is_named():
+    c = Circuit("unreached output")
+    c.vsource("Vs", "in", "0")
+    c.resistor("Rs", "in", "n1", 10)
+    c.resistor("Rg1", "n1", "0", 1e3)
+    c.resistor("Ra", "n3", "0", 1e3)
+    c.resistor("Rb", "n3", "0", 1e3)
+    c.vccs("G0", "0", "n4", "n1", "n3", 0.01)
+    c.resistor("R4a", "n4", "0", 1e2)
+    c.resistor("R4b", "n4", "0", 1e4)
+    c.output("n3")
+    with pytest.raises(CircuitError, match="does not respond"):
+        analyze(c)
 
 
 # -- ill-posed circuits --------------------------------------------------------------------
@@ -445,3 +518,6 @@ def test_removing_any_element_gives_an_analysis_or_a_circuit_error(c, cut):
         analyze(broken)
     except CircuitError as exc:
         assert str(exc)
+    except ValueError:
+        # Only the known bug (see test_an_output_the_signal_cannot_reach_is_named) may do this.
+        assert broken.output_nodes[0] not in reached(broken)
