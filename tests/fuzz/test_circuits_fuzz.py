@@ -356,10 +356,6 @@ def test_time_constant_identities_hold(c):
         assert a.omega_low_estimate is None
 
 
-@pytest.mark.xfail(strict=True, raises=ValueError, reason=(
-    "engine/analysis.py: an output the signal cannot reach, but whose rounding noise is not "
-    "exactly 0 (a transconductance senses it), slips past the 'gain == 0' check and fails "
-    "later in math.log10 or brentq; reported with this reproducer"))
 def test_an_output_the_signal_cannot_reach_is_named():
     c = Circuit("unreached output")
     c.vsource("Vs", "in", "0")
