@@ -28,6 +28,14 @@ def no_waiting_dialogs(monkeypatch, qapp):
         monkeypatch.setattr(dialogs, name, unexpected(name))
 
 
+@pytest.fixture(autouse=True)
+def empty_clipboard(qapp):
+    """Leave no copied parts on the clipboard: the offscreen platform crashes at exit if
+    the clipboard still owns data when the application is torn down."""
+    yield
+    qapp.clipboard().clear()
+
+
 @pytest.fixture
 def window(qtbot, tmp_path):
     """A main window with its recovery file in ``tmp_path / "recovery"``."""
