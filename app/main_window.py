@@ -99,7 +99,8 @@ class MainWindow(QMainWindow):
         self._make_menus()
         self._make_status()
 
-        self.scene.selectionChanged.connect(self._selection_changed)
+        self._watching_selection = False
+        self._watch_selection(True)
         self.controller.mode_changed.connect(self._mode_changed)
         self.controller.message.connect(lambda text: self.statusBar().showMessage(text, 6000))
         self.controller.value_edit_requested.connect(self.edit_value_in_place)
@@ -485,5 +486,16 @@ class MainWindow(QMainWindow):
             self.keeper.stop()
             self.keeper.discard()
         # The scene deletes its items as it goes; nothing may ask it about selection then.
-        self.scene.selectionChanged.disconnect(self._selection_changed)
+        self._watch_selection(False)
         event.accept()
+
+    def showEvent(self, event):
+        self._watch_selection(True)
+        super().showEvent(event)
+
+    def _watch_selection(self, on: bool) -> None:
+        """Follow the scene's selection while the window is open (once, however often shown)."""
+        if on != self._watching_selection:
+            signal = self.scene.selectionChanged
+            (signal.connect if on else signal.disconnect)(self._selection_changed)
+            self._watching_selection = on
