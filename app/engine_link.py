@@ -68,7 +68,7 @@ def check_field(doc: Document, part: Part, f: Field, text: str) -> FieldCheck:
                                      "name the source whose current is sensed")
         return FieldCheck(True, text)
     if f.unit == "net":
-        if not NAME_RE.match(text):
+        if not NAME_RE.fullmatch(text):
             return FieldCheck(False, f"{where}: '{text}' is not a usable net name; start with a "
                                      "letter, then letters, digits or _")
         return FieldCheck(True, text)

@@ -105,7 +105,7 @@ def _part(raw, i: int) -> Part:
     if kind not in KINDS:
         raise _fail(where, f"unknown kind {kind!r} (known: {', '.join(KINDS)})")
     name = _text(raw["name"], f"{where} name", allow_empty=False)
-    if not NAME_RE.fullmatch(name):  # fullmatch: NAME_RE's $ lets a trailing newline through
+    if not NAME_RE.fullmatch(name):
         raise _fail(where, f"{name!r} is not a usable part name")
     where = f"part {name}"
     rotation = _int(raw.get("rotation", 0), f"{where} rotation")

@@ -16,8 +16,8 @@ from typing import Mapping
 from .events import Signal
 from .parts import KINDS, ROTATIONS, pin_positions
 
-NAME_RE = re.compile(r"^[A-Za-z][A-Za-z0-9_]*$")
-"""What a part name may look like: a letter, then letters, digits or underscores."""
+NAME_RE = re.compile(r"[A-Za-z][A-Za-z0-9_]*")
+"""What a part name may look like (whole, with ``fullmatch``): a letter, then letters, digits or _."""
 
 BANDS = ("low", "high")
 """Bands a user may pin an element to."""
@@ -102,6 +102,7 @@ class Document:
         self.changed = Signal()
         self.edited = Signal()
         self._parts: dict[str, Part] = {}
+        self._lower: dict[str, str] = {}  # names are unique regardless of case
         self._wires: dict[int, Wire] = {}
         self._next_wire = 1
         self.title = title
@@ -139,16 +140,16 @@ class Document:
         """The lowest free automatic name for a new part of ``kind`` (R1, R2 ... C1 ...)."""
         prefix = KINDS[kind].prefix
         n = 1
-        while f"{prefix}{n}" in self._parts:
+        while f"{prefix}{n}".lower() in self._lower:
             n += 1
         return f"{prefix}{n}"
 
     def name_problem(self, name: str, current: str | None = None) -> str | None:
         """Why ``name`` cannot be given to a part (now called ``current``), or None if it can."""
-        if not NAME_RE.match(name or ""):
+        if not NAME_RE.fullmatch(name or ""):
             return f"'{name}' is not a usable name: start with a letter, then letters, digits or _"
-        clash = next((n for n in self._parts if n.lower() == name.lower() and n != current), None)
-        if clash is not None:
+        clash = self._lower.get(name.lower())
+        if clash is not None and clash != current:
             return f"'{name}' is already the name of {clash}; choose another"
         return None
 
@@ -163,11 +164,13 @@ class Document:
         if problem:
             raise ValueError(problem)
         self._parts[part.name] = part
+        self._lower[part.name.lower()] = part.name
         self.changed.emit(Change("part_added", part.name))
 
     def remove_part(self, name: str) -> Part:
         """Remove a part and return it."""
         part = self._parts.pop(name)
+        del self._lower[name.lower()]
         self.changed.emit(Change("part_removed", name))
         return part
 
@@ -178,6 +181,8 @@ class Document:
             if problem:
                 raise ValueError(problem)
             self._parts = {(part.name if k == name else k): v for k, v in self._parts.items()}
+            del self._lower[name.lower()]
+            self._lower[part.name.lower()] = part.name
             if name in self._band_pins:
                 self._band_pins[part.name] = self._band_pins.pop(name)
             if self.input_source == name:
@@ -237,6 +242,7 @@ class Document:
     def replace_all(self, other: "Document") -> None:
         """Take every part, wire and setting of ``other`` (open, new, restore); one reset notice."""
         self._parts = dict(other._parts)
+        self._lower = dict(other._lower)
         self._wires = dict(other._wires)
         self._next_wire = other._next_wire
         self.title, self.description = other.title, other.description
