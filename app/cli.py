@@ -11,6 +11,7 @@ from __future__ import annotations
 
 import argparse
 import json
+import os
 import sys
 
 SUBCOMMANDS = ("analyze", "report", "spread")
@@ -142,6 +143,11 @@ def main(argv: list[str] | None = None) -> int:
         from app.gui import run_gui
 
         return run_gui(args.design, screenshot=args.screenshot, size=args.size, select=args.select)
+    except BrokenPipeError:
+        # The reader (e.g. `| head`) stopped early; that is not an error worth a message.
+        # Point stdout at devnull so the flush at exit cannot fail again (Python docs, signal).
+        os.dup2(os.open(os.devnull, os.O_WRONLY), sys.stdout.fileno())
+        return 0
     except (CircuitError, DesignFileError) as exc:
         print(f"bandsketch: {exc}", file=sys.stderr)
         return 2
