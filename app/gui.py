@@ -21,6 +21,18 @@ def _application():
     return app
 
 
+def _quiet_offscreen_notices() -> None:
+    """Drop the offscreen platform's notice that it cannot pass size hints to a window
+    system it does not have; every other Qt message still reaches stderr."""
+    from PySide6.QtCore import qInstallMessageHandler
+
+    def handler(mode, context, message):
+        if "does not support propagateSizeHints" not in message:
+            print(message, file=sys.stderr)
+
+    qInstallMessageHandler(handler)
+
+
 def run_gui(design_path: str | None = None, screenshot: str | None = None,
             size: tuple[int, int] | None = None, select: str | None = None) -> int:
     """Open the main window, optionally on a design; with ``screenshot``, save a picture and exit.
@@ -46,6 +58,8 @@ def run_gui(design_path: str | None = None, screenshot: str | None = None,
     if screenshot:
         os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
     app = _application()
+    if app.platformName() == "offscreen":
+        _quiet_offscreen_notices()
 
     from PySide6.QtCore import QEventLoop, QTimer
 
