@@ -256,8 +256,13 @@ class MainWindow(QMainWindow):
 
     def _update_problem_count(self) -> None:
         n = len(self.scene.problems)
-        self.problem_label.setText("Connections complete" if n == 0 and self.doc.parts
-                                   else (f"{n} problem(s) marked on the sheet" if n else ""))
+        if not self.doc.parts:
+            text = "Empty sheet: place parts from the Parts panel"
+        elif n == 0:
+            text = "Connections complete"
+        else:
+            text = f"{n} problem{'s' if n > 1 else ''} marked on the sheet"
+        self.problem_label.setText(text)
 
     def _mode_changed(self, mode: Mode) -> None:
         self.mode_label.setText(f"Mode: {mode.value}")

@@ -116,6 +116,8 @@ class AnalysisPanel(QWidget):
 
     def _show(self, outcome: Outcome) -> None:
         self.outcome = outcome
+        # Empty axes say nothing; the bars and the plot appear with the first result.
+        self.split.setVisible(outcome.ok or outcome.problem is not None and self.good is not None)
         if outcome.ok:
             self.good = outcome
             self.banner.show_problem(None)
