@@ -134,6 +134,8 @@ class AdvisorPanel(QWidget):
         self.tabs.addTab(self._sensitivity_tab(), "Sensitivities")
         self.tabs.addTab(self._meet_tab(), "Value that meets it")
         self.tabs.addTab(self._spread_tab(), "Tolerance spread")
+        self._sens_source = self._sens_shown = None
+        self.tabs.currentChanged.connect(self._refresh_sensitivities)
         # The report covers every page, so its button sits by the tabs rather than on one.
         self.report_button = QPushButton("Export report…")
         self.report_button.setToolTip("Write the design report, with the sheet and plots, as HTML or PDF")
@@ -246,7 +248,23 @@ class AdvisorPanel(QWidget):
             self._set_failing(())
             return
         self._show_verdict(targets, outcome.analysis)
+        self._sens_source = outcome
+        self._refresh_sensitivities()
+
+    def _refresh_sensitivities(self, *_) -> None:
+        """Work out the sensitivities of the newest analysis once they are on screen.
+
+        They cost a set of solves per part value, so an edit made while another page is
+        showing does not wait for them."""
+        outcome = self._sens_source
+        if outcome is None or outcome is self._sens_shown or not self.sens_table.isVisible():
+            return
+        self._sens_shown = outcome
         self._show_sensitivities(sensitivities(outcome.circuit, outcome.analysis))
+
+    def showEvent(self, event):
+        super().showEvent(event)
+        self._refresh_sensitivities()
 
     def _show_verdict(self, targets, analysis) -> None:
         if targets is None or targets.is_empty():

@@ -47,7 +47,11 @@ def test_target_is_an_undo_step_and_the_verdict_follows(panel):
     assert panel.verdict_label.text() == "No targets set."
 
 
-def test_sensitivity_rows_name_their_part(panel, qtbot):
+def test_sensitivities_wait_until_shown_and_name_their_part(panel, window, qtbot):
+    # An edit while another page shows does not pay for them; showing the page works them out.
+    assert panel.sens_table.rowCount() == 0
+    window.analysis_tabs.setCurrentWidget(panel)
+    panel.tabs.setCurrentIndex(1)
     assert panel.sens_table.rowCount() > 5
     seen = []
     panel.part_hovered.connect(seen.append)
