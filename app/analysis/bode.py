@@ -19,7 +19,7 @@ from PySide6.QtWidgets import QVBoxLayout, QWidget
 from engine.plotdata import BodeData
 from engine.values import format_value
 
-from .style import ViewColours, view_colours
+from .style import Restyles, ViewColours, view_colours
 
 MARKER_SLOTS = (("high", True), ("high", False), ("low", True), ("low", False))
 """One marker item set per corner and kind; a slot with no corner is hidden."""
@@ -32,7 +32,7 @@ class FrequencyAxis(pg.AxisItem):
         return [format_value(10 ** v * scale, "Hz", digits=2) for v in values]
 
 
-class BodePlot(QWidget):
+class BodePlot(Restyles, QWidget):
     """Magnitude (dB) and phase (degrees) against log frequency, one above the other.
 
     Signals
@@ -156,16 +156,6 @@ class BodePlot(QWidget):
         label.setText((marker.text + " ") if left else (" " + marker.text))
         label.setPos(x, marker.label_db)
         label.show()
-
-    def set_stale(self, stale: bool) -> None:
-        """Grey every curve (the circuit as drawn cannot be analysed) or show them in colour."""
-        self._stale = stale
-        self._restyle()
-
-    def set_colours(self, colours: ViewColours) -> None:
-        """Redraw in ``colours`` (the theme changed)."""
-        self._colours = colours
-        self._restyle()
 
     def data(self) -> BodeData | None:
         """The response shown."""

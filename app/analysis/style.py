@@ -40,3 +40,20 @@ def view_colours(theme: Theme | None = None) -> ViewColours:
     return ViewColours(dark=t.dark, paper=t.paper, ink=t.ink, muted=t.value, grid=t.grid,
                        high=t.band_high, low=t.band_low, neutral=t.ghost, selection=t.selection,
                        problem=t.problem, stale=t.ghost)
+
+
+class Restyles:
+    """A view that greys its result when it is stale and redraws when the theme changes.
+
+    The view keeps ``_stale`` and ``_colours`` and draws them in ``_restyle``.
+    """
+
+    def set_stale(self, stale: bool) -> None:
+        """Grey the result (the circuit as drawn cannot be analysed) or show it in colour."""
+        self._stale = stale
+        self._restyle()
+
+    def set_colours(self, colours: "ViewColours") -> None:
+        """Redraw in ``colours`` (the theme changed)."""
+        self._colours = colours
+        self._restyle()

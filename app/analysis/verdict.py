@@ -8,10 +8,10 @@ from PySide6.QtWidgets import QFrame, QGridLayout, QHBoxLayout, QLabel, QPushBut
 
 from engine.plotdata import VerdictData
 
-from .style import ViewColours, view_colours
+from .style import Restyles, ViewColours, view_colours
 
 
-class VerdictStrip(QFrame):
+class VerdictStrip(Restyles, QFrame):
     """The analysis in a few lines, drawn from a :class:`engine.plotdata.VerdictData`."""
 
     def __init__(self, parent=None):
@@ -61,16 +61,6 @@ class VerdictStrip(QFrame):
             self.dominant.setText(data.dominant_text)
             self.warnings.setText("\n".join(f"• {w}" for w in data.warnings))
             self.warnings.setVisible(bool(data.warnings))
-        self._restyle()
-
-    def set_stale(self, stale: bool) -> None:
-        """Grey the lines (they describe the last circuit that could be analysed)."""
-        self._stale = stale
-        self._restyle()
-
-    def set_colours(self, colours: ViewColours) -> None:
-        """Redraw in ``colours`` (the theme changed)."""
-        self._colours = colours
         self._restyle()
 
     def _restyle(self) -> None:

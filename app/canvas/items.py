@@ -127,7 +127,26 @@ def _blocked(symbol: Symbol, pins) -> QPainterPath:
     return blocked
 
 
-class PartItem(QGraphicsItem):
+class _Lit:
+    """An item that lights up under the pointer, its bounds and outline laid out beforehand
+    (in ``_bounds`` and ``_shape``) so that Qt's queries and painting compute nothing."""
+
+    def boundingRect(self) -> QRectF:
+        return self._bounds
+
+    def shape(self) -> QPainterPath:
+        return self._shape
+
+    def hoverEnterEvent(self, event):
+        self._hover = True
+        self.update()
+
+    def hoverLeaveEvent(self, event):
+        self._hover = False
+        self.update()
+
+
+class PartItem(_Lit, QGraphicsItem):
     """The view of one part: its symbol, name and value, hover, selection and marks."""
 
     def __init__(self, part: Part, theme: Theme, style: ResistorStyle, *, ghost: bool = False):
@@ -252,20 +271,6 @@ class PartItem(QGraphicsItem):
         return self._is_input
 
     # -- QGraphicsItem ---------------------------------------------------------
-    def boundingRect(self) -> QRectF:
-        return self._bounds
-
-    def shape(self) -> QPainterPath:
-        return self._shape
-
-    def hoverEnterEvent(self, event):
-        self._hover = True
-        self.update()
-
-    def hoverLeaveEvent(self, event):
-        self._hover = False
-        self.update()
-
     def paint(self, painter, option, widget=None):
         t = self._theme
         selected = bool(option.state & QStyle.StateFlag.State_Selected)
@@ -306,7 +311,7 @@ class PartItem(QGraphicsItem):
             painter.drawText(self._badge, Qt.AlignmentFlag.AlignCenter, "IN")
 
 
-class WireItem(QGraphicsItem):
+class WireItem(_Lit, QGraphicsItem):
     """The view of one wire: an orthogonal polyline."""
 
     def __init__(self, wire: Wire, theme: Theme):
@@ -332,20 +337,6 @@ class WireItem(QGraphicsItem):
 
     def set_theme(self, theme: Theme) -> None:
         self._theme = theme
-        self.update()
-
-    def boundingRect(self) -> QRectF:
-        return self._bounds
-
-    def shape(self) -> QPainterPath:
-        return self._shape
-
-    def hoverEnterEvent(self, event):
-        self._hover = True
-        self.update()
-
-    def hoverLeaveEvent(self, event):
-        self._hover = False
         self.update()
 
     def paint(self, painter, option, widget=None):
