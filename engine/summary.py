@@ -95,6 +95,30 @@ def _error(estimate, exact):
     return f"(error {100 * (estimate / exact - 1):+.1f} %)".replace("-", "−")
 
 
+ROOTS_LISTED_UP_TO = 40
+"""The table lists the exact poles and zeros for circuits up to this many reactive elements
+(beyond, the eigenproblem costs more than a table is worth; JSON still has them)."""
+
+
+def _roots(roots) -> str:
+    """Poles or zeros as |s|/2π, slowest first, a right-half-plane one marked."""
+    if len(roots) == 0:
+        return "none"
+    out = []
+    for s in sorted(roots, key=abs):
+        text = format_value(abs(s) / (2 * math.pi), "Hz")
+        if s.imag > 0:
+            continue  # a complex pair is listed once
+        if s.imag < 0:
+            text += f" (complex pair, Q = {abs(s) / (-2 * s.real):.2g})" if s.real != 0 else " (on the jω axis)"
+        if s.real > 0:
+            text += " (right half-plane)"
+        elif s == 0:
+            text = "0 Hz (at the origin)"
+        out.append(text)
+    return ", ".join(out)
+
+
 def format_table(a, title: str | None = None) -> str:
     """The analysis as a readable text table.
 
@@ -136,6 +160,8 @@ def format_table(a, title: str | None = None) -> str:
                      f"{_error(a.f_high_estimate_2nd, a.f_high_exact)}".rstrip())
     b2 = "" if a.b2 is None else f", b2 = {a.b2:.4g} s²"
     lines.append(f"b1 = {_fmt(a.b1, 's')}{b2}")
+    if len(a.elements) <= ROOTS_LISTED_UP_TO:
+        lines += ["", f"Exact poles   {_roots(a.poles)}", f"Exact zeros   {_roots(a.zeros)}"]
     if a.warnings:
         lines += ["", "Warnings"] + [f"  • {w}" for w in a.warnings]
     return "\n".join(lines) + "\n"

@@ -161,6 +161,16 @@ def test_dict_is_json_and_table_reads(tmp_path):
     assert rows[0].startswith("frequency_hz") and len(rows) == len(a.sweep_frequencies) + 1
 
 
+def test_table_lists_exact_roots_with_the_right_half_plane_zero_marked():
+    # The common-emitter stage's zero at +g_m/C_μ lies in the right half-plane (Gray, Hurst,
+    # Lewis, Meyer, Analysis and Design of Analog Integrated Circuits; from memory).
+    a = analyze(common_emitter(coupling=True))
+    table = format_table(a)
+    rhp = [z for z in a.zeros if z.real > 0]
+    assert rhp and "(right half-plane)" in table.split("Exact zeros", 1)[1]
+    assert "Exact poles" in table and "(at the origin)" in table
+
+
 # The exact corner is where |H| = |A_m|/√2 (the definition of the −3 dB corner).
 def test_exact_corners_are_3db_points():
     a = analyze(common_emitter(coupling=True))
