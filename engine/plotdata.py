@@ -537,8 +537,12 @@ def _corner_text(sym: str, est, exact) -> str:
 
 
 def _gain_text(gain: float, unit: str) -> str:
-    shown = "Ω" if unit == "V/A" else unit
-    return f"A_m = {format_value(gain, shown)} ({float(_db(gain)):.1f} {db_unit(unit)})"
+    if unit == "V/A":
+        value = format_value(gain, "Ω")
+    else:
+        # A voltage gain reads as a plain ratio (0.895 V/V, not 895 mV/V).
+        value = f"{gain:.3g} V/V" if 1e-3 <= abs(gain) < 1e6 else format_value(gain, "V/V")
+    return f"A_m = {value} ({float(_db(gain)):.1f} {db_unit(unit)})"
 
 
 def verdict_data(analysis) -> VerdictData:

@@ -246,3 +246,11 @@ def test_a_peak_above_the_mid_band_stays_in_view_with_the_label_over_it():
     assert by_kind["high", True].label_db == d.peak[1]
     assert by_kind["high", False].label_db == by_kind["low", True].label_db == d.midband_db - HALF_POWER_DB
     assert bode_data(_two_corner()).peak is None
+
+
+def test_a_voltage_gain_below_one_reads_as_a_plain_ratio():
+    # Common practice, no source: a follower's gain is written 0.895 V/V, not 895 mV/V.
+    from engine.plotdata import _gain_text
+
+    assert _gain_text(0.8954, "V/V").startswith("A_m = 0.895 V/V")
+    assert _gain_text(-1e5, "V/A").startswith("A_m = -100 kΩ")
