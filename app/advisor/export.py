@@ -37,6 +37,11 @@ def widget_png(widget) -> bytes:
     return png_bytes(widget.grab().toImage())
 
 
+PDF_PICTURE_WIDTH = 600
+"""Width of a picture in the PDF, in the text layout's pixels: a little under the text width of an A4 page
+with 15 mm margins as Qt lays it out at screen resolution."""
+
+
 def export_report(doc, path: str, pictures: Pictures | None = None, spread=None, series: str = "E24") -> None:
     """Write the report to ``path``: HTML for ``.html``/``.htm``, else PDF.
 
@@ -64,5 +69,7 @@ def export_report(doc, path: str, pictures: Pictures | None = None, spread=None,
     writer.setPageMargins(QMarginsF(15, 15, 15, 15), QPageLayout.Unit.Millimeter)
     writer.setTitle(f"{doc.title} — design report")
     document = QTextDocument()
-    document.setHtml(text)
+    # Qt's rich text ignores CSS max-width, so each picture is given the text width outright
+    # (its height follows in proportion); otherwise the sheet would run off the page.
+    document.setHtml(text.replace("<img ", f'<img width="{PDF_PICTURE_WIDTH}" '))
     document.print_(writer)
