@@ -128,10 +128,6 @@ class BodePlot(Restyles, QWidget):
         self.magnitude.setYRange(*self._data.magnitude_view_db, padding=0)
         self.phase.enableAutoRange(axis="y")
 
-    def is_zoomed(self) -> bool:
-        """Whether the user zoomed or panned since the last :meth:`fit`."""
-        return self._zoomed
-
     def _on_manual_range(self, *_) -> None:
         # A zoom or pan the user made is kept while edits update the curves.
         self._zoomed = True

@@ -164,10 +164,6 @@ class AnalysisRunner(QObject):
         """The number of the newest request."""
         return self._generation
 
-    def is_busy(self) -> bool:
-        """Whether a run is under way on the worker thread."""
-        return self._running
-
     def request(self, doc: Document) -> None:
         """Analyse ``doc`` as it is now; a newer request supersedes this one."""
         self._generation += 1

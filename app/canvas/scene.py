@@ -183,9 +183,6 @@ class SchematicScene(QGraphicsScene):
     def part_item(self, name: str) -> PartItem:
         return self._parts[name]
 
-    def wire_item(self, wid: int) -> WireItem:
-        return self._wires[wid]
-
     def selected_names(self) -> list[str]:
         """Names of the selected parts, in document order."""
         return [n for n, item in self._parts.items() if item.isSelected()]
