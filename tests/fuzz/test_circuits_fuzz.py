@@ -138,7 +138,7 @@ class Dense:
         64-bit mantissa on x86) makes x accurate to a few units of double rounding whenever
         κ(A)·u < 1 — so the reference is more accurate than either solver it checks.
         """
-        out, self.conditions = [], []
+        out, self.conditions, self.norms = [], [], []
         bl = self.b.astype(np.clongdouble)
         for f in freqs:
             A = self.G + 2j * np.pi * f * self.C
@@ -149,6 +149,7 @@ class Dense:
                 x = x + la.lu_solve(lu, (bl - Al @ x.astype(np.clongdouble)).astype(complex))
             out.append(self.c @ x)
             self.conditions.append(np.linalg.cond(A))
+            self.norms.append(np.abs(x).max())
         return np.array(out)
 
     def port(self, a, b):
@@ -264,6 +265,11 @@ def assert_sweep_matches(actual, dense, freqs):
     floor = max(1e-9 * np.max(np.abs(reference)), 1e-20)
     err = np.abs(actual - reference) / np.maximum(np.abs(reference), floor)
     allowed = np.maximum(1e-9, 8 * np.array(dense.conditions) * U)
+    # The bound holds for the whole solution (‖x̂ − x‖ ≤ κ·u·‖x‖), so an output far smaller
+    # than the node voltages that drive it (one the signal barely reaches) may carry an error
+    # of that size: relative to the largest unknown, not to itself.
+    allowed = np.maximum(allowed, 8 * np.array(dense.conditions) * U * np.array(dense.norms)
+                         / np.maximum(np.abs(reference), floor))
     assert np.all(err <= allowed), (err.max(), np.array(dense.conditions)[np.argmax(err / allowed)])
 
 
