@@ -39,7 +39,7 @@ VIEW_MARGIN_DB = 6.0
 PEAK_SHOWN_DB = 0.1
 """An exact gain this far above the mid-band gain (dB) is a peak the plot keeps in view."""
 PEAK_ROOM = 0.25
-"""Above a peak, the magnitude axis leaves this fraction of its span for the corner labels."""
+"""Above the mid band (or a peak) the magnitude axis leaves this fraction of its span for labels."""
 
 BAND_TITLES = {"high": "High band: τ, share of b1", "low": "Low band: 1/2πτ, share of ω_L",
                "neutral": "No effect on the gain"}
@@ -134,14 +134,14 @@ class BodeData:
     def magnitude_view_db(self) -> tuple:
         """(bottom, top) of the magnitude axis, dB: the exact curve, but no deeper than
         :data:`VIEW_DEPTH_DB` below the mid band, so a deep notch does not flatten the corners.
-        Above a peak the axis leaves :data:`PEAK_ROOM` of its span, where the corner labels
-        pinned over the peak go."""
+        Above the mid band, or above a peak, the axis leaves :data:`PEAK_ROOM` of its span
+        (at least :data:`VIEW_MARGIN_DB`) for the corner labels."""
         m = self.exact.magnitude_db
         bottom = max(float(m.min()), self.midband_db - VIEW_DEPTH_DB) - VIEW_MARGIN_DB
-        if self.peak is None:
-            return bottom, self.midband_db + VIEW_MARGIN_DB
-        peak_db = self.peak[1]
-        return bottom, peak_db + max(VIEW_MARGIN_DB, PEAK_ROOM * (peak_db - bottom) / (1 - PEAK_ROOM))
+        # The corner labels sit just above the -3 dB line, so the room above the curve is a
+        # share of the span (it is a share of the plot's height on screen), not a fixed dB.
+        highest = self.midband_db if self.peak is None else self.peak[1]
+        return bottom, highest + max(VIEW_MARGIN_DB, PEAK_ROOM * (highest - bottom) / (1 - PEAK_ROOM))
 
     def readout(self, freq_hz: float) -> str:
         """The exact response at the swept point nearest ``freq_hz``, as the hover line reads it.
