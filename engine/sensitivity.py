@@ -106,16 +106,17 @@ def _pattern_terms(patterns: np.ndarray, M: np.ndarray) -> np.ndarray:
     return np.einsum("kab,ba->k", patterns, M)
 
 
-def _ports(system, elements):
-    return port_columns(system, elements).toarray(), port_weights(elements)
+def _port_solves(system, elements):
+    """Port columns E, weights D, and the direct and adjoint solves G⁻¹E, G⁻ᵀE."""
+    E, D = port_columns(system, elements).toarray(), port_weights(elements)
+    G = system.G.toarray()
+    return E, D, np.linalg.solve(G, E), np.linalg.solve(G.T, E)
 
 
 def _high_estimate(mid_sys, mid_ps, high, coef, sign, names):
     if not high:
         return None
-    E, D = _ports(mid_sys, high)
-    G = mid_sys.G.toarray()
-    X, Y = np.linalg.solve(G, E), np.linalg.solve(G.T, E)
+    E, D, X, Y = _port_solves(mid_sys, high)
     z = np.einsum("ij,ij->j", E, X)
     b1 = float(D @ z)
     if not b1 > 0:
@@ -131,9 +132,7 @@ def _high_estimate(mid_sys, mid_ps, high, coef, sign, names):
 def _low_estimate(dc_sys, dc_ps, low, coef, sign, names):
     if not low:
         return None
-    U, D = _ports(dc_sys, low)
-    G = dc_sys.G.toarray()
-    X, Y = np.linalg.solve(G, U), np.linalg.solve(G.T, U)
+    U, D, X, Y = _port_solves(dc_sys, low)
     Z = U.T @ X
     W_inv = np.linalg.inv(D[:, None] * Z)
     W2 = W_inv @ W_inv
