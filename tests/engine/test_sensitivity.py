@@ -1,7 +1,8 @@
 """Adjoint sensitivities against central finite differences of the full analysis.
 
 Source of truth: analyze() itself, run with one part value scaled by e^(±h); the central
-difference (ln f(+h) − ln f(−h)) / 2h agrees with d ln f / d ln x to O(h²).
+difference (ln f(+h) − ln f(−h)) / 2h agrees with d ln f / d ln x to O(h²) (the central
+difference's error order: common practice, no source).
 """
 
 from __future__ import annotations
