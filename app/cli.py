@@ -49,10 +49,10 @@ def _analyze_parser() -> argparse.ArgumentParser:
 
 
 def _analyze(args) -> int:
-    from engine import analyze
-    from engine.designfile import load_design
-    from engine.netlist import design_to_circuit
-    from engine.summary import analysis_to_dict, format_table, write_sweep_csv
+    from bandsketch.engine import analyze
+    from bandsketch.engine.design.designfile import load_design
+    from bandsketch.engine.design.netlist import design_to_circuit
+    from bandsketch.engine.present.summary import analysis_to_dict, format_table, write_sweep_csv
 
     doc = load_design(args.design)
     analysis = analyze(design_to_circuit(doc), bands=dict(doc.band_pins))
@@ -98,8 +98,8 @@ def _samples(text: str) -> int:
 
 
 def _report(args) -> int:
-    from engine.designfile import load_design
-    from engine.report import write_report
+    from bandsketch.engine.design.designfile import load_design
+    from bandsketch.engine.present.report import write_report
 
     write_report(load_design(args.design), args.output, samples=args.samples, seed=args.seed, series=args.series)
     print(f"bandsketch: wrote {args.output}")
@@ -107,14 +107,14 @@ def _report(args) -> int:
 
 
 def _spread(args) -> int:
-    from engine.designfile import load_design
-    from engine.tolerance import spread_summary
+    from bandsketch.engine.design.designfile import load_design
+    from bandsketch.engine.advise.tolerance import spread_summary
 
     summary = spread_summary(load_design(args.design), args.samples, args.seed)
     if args.json:
         print(json.dumps(summary, indent=1, ensure_ascii=False))
         return 0
-    from engine.values import format_value
+    from bandsketch.engine.core.values import format_value
 
     print(f"{summary['samples']} samples, seed {summary['seed']}, {summary['seconds']:.2f} s")
     for key, title, unit in (("f_high_hz", "f_H", "Hz"), ("f_low_hz", "f_L", "Hz"), ("gain_magnitude", "|A_m|", summary["gain_unit"])):
@@ -129,7 +129,7 @@ def _spread(args) -> int:
 
 def main(argv: list[str] | None = None) -> int:
     """Entry point of the ``bandsketch`` console script; returns the exit status."""
-    from engine.errors import CircuitError, DesignFileError
+    from bandsketch.engine.core.errors import CircuitError, DesignFileError
 
     argv = sys.argv[1:] if argv is None else list(argv)
     try:
@@ -140,7 +140,7 @@ def main(argv: list[str] | None = None) -> int:
         if argv and argv[0] == "spread":
             return _spread(_spread_parser().parse_args(argv[1:]))
         args = _gui_parser().parse_args(argv)
-        from app.gui import run_gui
+        from bandsketch.app.gui import run_gui
 
         return run_gui(args.design, screenshot=args.screenshot, size=args.size, select=args.select)
     except BrokenPipeError:

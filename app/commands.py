@@ -12,7 +12,7 @@ from itertools import count
 
 from PySide6.QtGui import QUndoCommand, QUndoStack
 
-from engine.document import Document
+from bandsketch.engine.design.document import Document
 
 from . import edits
 from .edits import Patch

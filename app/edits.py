@@ -11,8 +11,8 @@ from __future__ import annotations
 from collections import Counter
 from dataclasses import dataclass, field, replace
 
-from engine.document import Document, Part, Wire
-from engine.parts import GRID, KINDS, ROTATIONS
+from bandsketch.engine.design.document import Document, Part, Wire
+from bandsketch.engine.design.parts import GRID, KINDS, ROTATIONS
 
 Point = tuple[int, int]
 

@@ -8,11 +8,12 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-from engine import devices, netlist
-from engine.document import NAME_RE, Document, Part
-from engine.errors import BadValueError, CircuitError
-from engine.parts import KINDS, Field
-from engine.values import format_value, parse_value
+from bandsketch.engine.design import netlist
+from bandsketch.engine.network import devices
+from bandsketch.engine.design.document import NAME_RE, Document, Part
+from bandsketch.engine.core.errors import BadValueError, CircuitError
+from bandsketch.engine.design.parts import KINDS, Field
+from bandsketch.engine.core.values import format_value, parse_value
 
 _PARSER_UNITS = {"Ω", "F", "H", "S", "A/V", "V/V", "A/A", "V", "A", "Hz", "K", "", "1/V"}
 """Units the value parser knows; other numeric fields (°C) are parsed unit-free."""
@@ -77,7 +78,7 @@ def check_field(doc: Document, part: Part, f: Field, text: str) -> FieldCheck:
         if part.kind in devices.RESOLVERS:
             # The block's own model has the last word on its fields (what may be zero ...).
             try:
-                devices.derived_values(part.with_params(**{f.key: text}))
+                netlist.derived_values(part.with_params(**{f.key: text}))
             except BadValueError as exc:
                 if exc.field == f.key:
                     raise
@@ -116,7 +117,7 @@ def connectivity_problems(doc: Document) -> list:
 def derived_values(part: Part) -> dict | str:
     """A transistor block's derived small-signal values (key -> SI value), or the reason not."""
     try:
-        return devices.derived_values(part)
+        return netlist.derived_values(part)
     except CircuitError as exc:
         return exc.message
 

@@ -63,8 +63,8 @@ def run_gui(design_path: str | None = None, screenshot: str | None = None,
 
     from PySide6.QtCore import QEventLoop, QTimer
 
-    from engine.designfile import load_design
-    from engine.errors import DesignFileError
+    from bandsketch.engine.design.designfile import load_design
+    from bandsketch.engine.core.errors import DesignFileError
 
     from .main_window import MainWindow
 

@@ -9,11 +9,11 @@ from PySide6.QtCore import QEvent, QMimeData, Qt
 from PySide6.QtGui import QAction, QGuiApplication, QKeySequence, QUndoStack
 from PySide6.QtWidgets import QDockWidget, QLabel, QMainWindow, QScrollArea, QSplitter, QTabWidget, QWidget
 
-from engine.designfile import document_from_dict, document_to_dict, load_design, save_design
-from engine.document import Document
-from engine.errors import DesignFileError
-from engine.parts import GRID
-from engine.report import Pictures
+from bandsketch.engine.design.designfile import document_from_dict, document_to_dict, load_design, save_design
+from bandsketch.engine.design.document import Document
+from bandsketch.engine.core.errors import DesignFileError
+from bandsketch.engine.design.parts import GRID
+from bandsketch.engine.present.report import Pictures
 
 from . import dialogs, edits, preferences
 from .advisor.export import scene_png, widget_png

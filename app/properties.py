@@ -11,10 +11,10 @@ from PySide6.QtGui import QKeySequence, QTextCursor
 from PySide6.QtWidgets import (QCheckBox, QComboBox, QFormLayout, QGroupBox, QLabel, QLineEdit,
                                QPlainTextEdit, QVBoxLayout, QWidget)
 
-from engine.designfile import MAX_TEXT
-from engine.document import Change, Document
-from engine.parts import KINDS, Field
-from engine.values import format_value
+from bandsketch.engine.design.designfile import MAX_TEXT
+from bandsketch.engine.design.document import Change, Document
+from bandsketch.engine.design.parts import KINDS, Field
+from bandsketch.engine.core.values import format_value
 
 from . import edits
 from .commands import Editor, RenameCommand, RunCommand, new_run

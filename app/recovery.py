@@ -15,9 +15,9 @@ from pathlib import Path
 
 from PySide6.QtCore import QObject, QStandardPaths, QTimer
 
-from engine.designfile import document_from_dict, document_to_dict
-from engine.document import Document
-from engine.errors import DesignFileError
+from bandsketch.engine.design.designfile import document_from_dict, document_to_dict
+from bandsketch.engine.design.document import Document
+from bandsketch.engine.core.errors import DesignFileError
 
 PERIOD_MS = 30_000
 CALM_MS = 2_000

@@ -1,10 +1,10 @@
 """Bandsketch engine: circuits, exact AC analysis and time-constant estimates. No Qt here."""
 
-from .errors import BadValueError, CircuitError, DesignFileError
-from .document import Change, Document, Part, Wire
-from .designfile import load_design, save_design
-from .circuit import Circuit
-from .analysis import Analysis, analyze
+from .core.errors import BadValueError, CircuitError, DesignFileError
+from .design.document import Change, Document, Part, Wire
+from .design.designfile import load_design, save_design
+from .network.circuit import Circuit
+from .solve.analysis import Analysis, analyze
 
 __all__ = [
     "Analysis", "Circuit", "analyze", "BadValueError", "Change", "CircuitError", "DesignFileError", "Document", "Part", "Wire",

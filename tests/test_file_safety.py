@@ -21,12 +21,12 @@ from pathlib import Path
 
 import pytest
 
-import engine.designfile as designfile
-from engine.designfile import MAX_FILE_BYTES, load_design
-from engine.errors import DesignFileError
+import bandsketch.engine.design.designfile as designfile
+from bandsketch.engine.design.designfile import MAX_FILE_BYTES, load_design
+from bandsketch.engine.core.errors import DesignFileError
 
 ROOT = Path(__file__).resolve().parents[1]
-LOADER = ROOT / "engine" / "designfile.py"
+LOADER = ROOT / "engine" / "design" / "designfile.py"
 
 FORBIDDEN_MODULES = {"pickle", "cPickle", "_pickle", "marshal", "shelve", "yaml", "dill", "cloudpickle",
                      "importlib", "imp", "runpy", "subprocess", "ctypes", "code", "codeop", "jsonpickle"}
@@ -41,7 +41,7 @@ ALLOWED_IMPORTS = {"__future__", "json", "math", "os", "tempfile", "pathlib", "r
 
 
 def loading_chain() -> list[Path]:
-    """engine/designfile.py and every engine module it imports, transitively."""
+    """engine/design/designfile.py and every engine module it imports, transitively."""
     seen, todo = [], [LOADER]
     while todo:
         path = todo.pop()
@@ -49,10 +49,11 @@ def loading_chain() -> list[Path]:
             continue
         seen.append(path)
         for node in ast.walk(ast.parse(path.read_text("utf-8"))):
-            if isinstance(node, ast.ImportFrom) and node.level == 1 and node.module:
-                todo.append(ROOT / "engine" / f"{node.module.replace('.', '/')}.py")
-            elif isinstance(node, ast.ImportFrom) and node.module and node.module.startswith("engine."):
-                todo.append(ROOT / f"{node.module.replace('.', '/')}.py")
+            if isinstance(node, ast.ImportFrom) and node.level >= 1 and node.module:
+                base = path.parents[node.level - 1]
+                todo.append(base / f"{node.module.replace('.', '/')}.py")
+            elif isinstance(node, ast.ImportFrom) and node.module and node.module.startswith("bandsketch.engine."):
+                todo.append(ROOT / f"{node.module.removeprefix('bandsketch.').replace('.', '/')}.py")
     return seen
 
 

@@ -1,6 +1,6 @@
 """Exporting the design report from the app: HTML as written by the engine, PDF through Qt.
 
-The engine writes the report (:mod:`engine.report`); the app adds the pictures only it can
+The engine writes the report (:mod:`bandsketch.engine.present.report`); the app adds the pictures only it can
 draw (the sheet, and the plots as they look on screen) as PNG bytes.
 """
 
@@ -9,7 +9,7 @@ from __future__ import annotations
 from PySide6.QtCore import QBuffer, QByteArray, QIODevice, QMarginsF, QRectF
 from PySide6.QtGui import QImage, QPageLayout, QPageSize, QPainter, QPdfWriter, QTextDocument
 
-from engine.report import Pictures, build_report
+from bandsketch.engine.present.report import Pictures, build_report
 
 
 def png_bytes(image: QImage) -> bytes:
@@ -47,14 +47,14 @@ def export_report(doc, path: str, pictures: Pictures | None = None, spread=None,
 
     Parameters
     ----------
-    doc : engine.document.Document
+    doc : bandsketch.engine.design.document.Document
         A snapshot of the design.
     path : str
         Where to write it.
-    pictures : engine.report.Pictures, optional
+    pictures : bandsketch.engine.present.report.Pictures, optional
         Sheet and plots as the app draws them. The PDF needs them for its plots: Qt's rich
         text engine does not draw the inline SVG the HTML falls back on.
-    spread : engine.tolerance.Spread, optional
+    spread : bandsketch.engine.advise.tolerance.Spread, optional
         The spread the designer ran, reported as is.
     series : str
         IEC 60063 series for the standard values.

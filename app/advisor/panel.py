@@ -1,7 +1,7 @@
 """The design advisor: targets, sensitivities, the value that meets a target, tolerance spread, report.
 
-Every number shown comes from an engine result (:mod:`engine.targets`,
-:mod:`engine.sensitivity`, :mod:`engine.tolerance`); the widgets only lay them out. The
+Every number shown comes from an engine result (:mod:`bandsketch.engine.advise.targets`,
+:mod:`bandsketch.engine.advise.sensitivity`, :mod:`bandsketch.engine.advise.tolerance`); the widgets only lay them out. The
 verdict and the sensitivities are worked from the analysis the window's runner delivers,
 so an edit is analysed once for every view. Long searches run on a worker thread over a
 snapshot of the design, so the sheet stays live; every change to the design, a target
@@ -21,13 +21,13 @@ from PySide6.QtWidgets import (QComboBox, QFormLayout, QGridLayout, QHBoxLayout,
                                QLineEdit, QProgressBar, QPushButton, QSpinBox, QTableWidget,
                                QTableWidgetItem, QTabWidget, QVBoxLayout, QWidget)
 
-from engine.document import Document
-from engine.errors import Cancelled, CircuitError
-from engine.plotdata import histogram_axis
-from engine.sensitivity import FIGURE_TITLES, sensitivities
-from engine.targets import TARGET_LABELS, check_targets, parse_targets, value_text, values_that_meet
-from engine.tolerance import spread_of_design
-from engine.values import format_value
+from bandsketch.engine.design.document import Document
+from bandsketch.engine.core.errors import Cancelled, CircuitError
+from bandsketch.engine.present.plotdata import histogram_axis
+from bandsketch.engine.advise.sensitivity import FIGURE_TITLES, sensitivities
+from bandsketch.engine.advise.targets import TARGET_LABELS, check_targets, parse_targets, value_text, values_that_meet
+from bandsketch.engine.advise.tolerance import spread_of_design
+from bandsketch.engine.core.values import format_value
 
 from .. import edits
 
@@ -141,7 +141,7 @@ class AdvisorPanel(QWidget):
         self.report_button.setToolTip("Write the design report, with the sheet and plots, as HTML or PDF")
         self.report_button.clicked.connect(self._ask_report)
         self.tabs.setCornerWidget(self.report_button)
-        # The window sets this to a callable giving engine.report.Pictures of the sheet and plots.
+        # The window sets this to a callable giving bandsketch.engine.present.report.Pictures of the sheet and plots.
         self.pictures = None
         layout = QVBoxLayout(self)
         layout.setContentsMargins(0, 0, 0, 0)

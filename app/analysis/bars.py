@@ -1,6 +1,6 @@
 """Time-constant bars: one bar per element, grouped by band, longest share first.
 
-The widget draws a :class:`engine.plotdata.BarData` and nothing else. Row geometry is laid
+The widget draws a :class:`bandsketch.engine.present.plotdata.BarData` and nothing else. Row geometry is laid
 out when the data or the size changes, never in ``paintEvent``. Clicks, hovers and the pin
 menu are reported by signal; the panel turns a pin into an undoable edit.
 """
@@ -13,7 +13,7 @@ from PySide6.QtCore import QEvent, QPointF, QRectF, QSize, Qt, Signal
 from PySide6.QtGui import QAction, QActionGroup, QColor, QFont, QFontMetricsF, QPainter, QPainterPath, QPen
 from PySide6.QtWidgets import QMenu, QSizePolicy, QToolTip, QWidget
 
-from engine.plotdata import BarData, BarRow
+from bandsketch.engine.present.plotdata import BarData, BarRow
 
 from .style import ViewColours, view_colours
 

@@ -1,7 +1,7 @@
 """The exact response as a Bode plot, with the time-constant estimates drawn over it.
 
 Every item is made once and updated with ``setData``; the plot draws a
-:class:`engine.plotdata.BodeData` and computes nothing. The frequency axis labels are set
+:class:`bandsketch.engine.present.plotdata.BodeData` and computes nothing. The frequency axis labels are set
 explicitly (``1 kHz``, ``10 MHz``) because automatic SI prefixes on a log axis read oddly.
 """
 
@@ -16,8 +16,8 @@ from PySide6.QtGui import QColor, QPainter
 from PySide6.QtSvg import QSvgGenerator
 from PySide6.QtWidgets import QVBoxLayout, QWidget
 
-from engine.plotdata import BodeData
-from engine.values import format_value
+from bandsketch.engine.present.plotdata import BodeData
+from bandsketch.engine.core.values import format_value
 
 from .style import Restyles, ViewColours, view_colours
 

@@ -13,7 +13,7 @@ from PySide6.QtCore import QEvent, QObject, Qt
 from PySide6.QtWidgets import (QFileDialog, QHBoxLayout, QLabel, QMenu, QScrollArea, QSplitter,
                                QToolButton, QVBoxLayout, QWidget)
 
-from engine.plotdata import part_of, write_curves_csv
+from bandsketch.engine.present.plotdata import part_of, write_curves_csv
 
 from .. import edits
 from ..canvas.items import PartItem
@@ -21,7 +21,7 @@ from .bars import TimeConstantBars
 from .bode import BodePlot
 from .runner import AnalysisRunner, Outcome
 from .style import view_colours
-from .test_picture import PictureOverlay, picture_geometry
+from .port_picture import PictureOverlay, picture_geometry
 from .verdict import ProblemBanner, VerdictStrip
 
 

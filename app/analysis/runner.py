@@ -15,11 +15,11 @@ from dataclasses import dataclass
 
 from PySide6.QtCore import QObject, QThreadPool, Signal
 
-from engine.analysis import analyze
-from engine.document import Document
-from engine.errors import CircuitError
-from engine.netlist import Netlist, build_netlist, connectivity_problems, design_to_circuit
-from engine.plotdata import BarData, BodeData, VerdictData, bar_data, bode_data, verdict_data
+from bandsketch.engine.solve.analysis import analyze
+from bandsketch.engine.design.document import Document
+from bandsketch.engine.core.errors import CircuitError
+from bandsketch.engine.design.netlist import Netlist, build_netlist, connectivity_problems, design_to_circuit
+from bandsketch.engine.present.plotdata import BarData, BodeData, VerdictData, bar_data, bode_data, verdict_data
 
 THREAD_AFTER_S = 0.030
 """A run slower than this (seconds) moves the next ones off the UI thread."""
@@ -37,9 +37,9 @@ class Outcome:
         The snapshot of the design that was analysed.
     netlist : Netlist or None
         Its nets (None for an empty design).
-    circuit : engine.circuit.Circuit or None
+    circuit : bandsketch.engine.network.circuit.Circuit or None
         The circuit that was analysed (None if the design is empty or not a circuit yet).
-    analysis : engine.analysis.Analysis or None
+    analysis : bandsketch.engine.solve.analysis.Analysis or None
         The analysis, or None if the design is empty or cannot be analysed.
     bode, bars, verdict : BodeData, BarData, VerdictData or None
         What the views draw.

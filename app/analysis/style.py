@@ -11,7 +11,7 @@ from dataclasses import dataclass
 
 from PySide6.QtGui import QColor
 
-from app.theme import Theme, system_theme
+from bandsketch.app.theme import Theme, system_theme
 
 @dataclass(frozen=True)
 class ViewColours:

@@ -6,13 +6,13 @@ from __future__ import annotations
 from PySide6.QtCore import Qt, Signal
 from PySide6.QtWidgets import QFrame, QGridLayout, QHBoxLayout, QLabel, QPushButton
 
-from engine.plotdata import VerdictData
+from bandsketch.engine.present.plotdata import VerdictData
 
 from .style import Restyles, ViewColours, view_colours
 
 
 class VerdictStrip(Restyles, QFrame):
-    """The analysis in a few lines, drawn from a :class:`engine.plotdata.VerdictData`."""
+    """The analysis in a few lines, drawn from a :class:`bandsketch.engine.present.plotdata.VerdictData`."""
 
     def __init__(self, parent=None):
         super().__init__(parent)

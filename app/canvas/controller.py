@@ -14,8 +14,8 @@ from PySide6.QtCore import QObject, QPointF, QRectF, Qt, Signal
 from PySide6.QtGui import QColor, QPainterPath, QPen
 from PySide6.QtWidgets import QGraphicsEllipseItem, QGraphicsPathItem, QGraphicsRectItem
 
-from engine.document import Document, Part
-from engine.parts import KINDS
+from bandsketch.engine.design.document import Document, Part
+from bandsketch.engine.design.parts import KINDS
 
 from .. import edits
 from ..commands import Editor, RunCommand, new_run

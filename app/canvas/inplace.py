@@ -5,7 +5,7 @@ from __future__ import annotations
 from PySide6.QtCore import QPoint, Qt
 from PySide6.QtWidgets import QLabel, QLineEdit
 
-from engine.parts import KINDS
+from bandsketch.engine.design.parts import KINDS
 
 from .. import edits
 from ..commands import Editor

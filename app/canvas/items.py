@@ -14,7 +14,7 @@ from PySide6.QtGui import (QBrush, QColor, QFont, QFontMetricsF, QPainterPath, Q
                            QPen)
 from PySide6.QtWidgets import QGraphicsItem, QStyle
 
-from engine.document import Part, Wire
+from bandsketch.engine.design.document import Part, Wire
 
 from ..engine_link import kind_fields, shown_value
 from ..theme import Theme

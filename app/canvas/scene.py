@@ -8,8 +8,8 @@ from PySide6.QtCore import QPointF, QRectF
 from PySide6.QtGui import QPen
 from PySide6.QtWidgets import QGraphicsScene
 
-from engine.document import Change, Document
-from engine.parts import GRID
+from bandsketch.engine.design.document import Change, Document
+from bandsketch.engine.design.parts import GRID
 
 from .. import edits
 from ..engine_link import connectivity_problems

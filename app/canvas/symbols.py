@@ -1,7 +1,7 @@
 """Schematic symbols drawn as painter paths in each part's own frame.
 
 Shapes follow the IEEE 315 / IEC 60617 conventions; every lead ends exactly on the pin
-position the catalogue gives (:mod:`engine.parts`), so what is drawn and what connects agree.
+position the catalogue gives (:mod:`bandsketch.engine.design.parts`), so what is drawn and what connects agree.
 Paths are built once per change of a part, never while painting.
 """
 
@@ -14,7 +14,7 @@ from enum import Enum
 from PySide6.QtCore import QPointF, QRectF
 from PySide6.QtGui import QPainterPath, QTransform
 
-from engine.parts import GRID, KINDS, transform_point
+from bandsketch.engine.design.parts import GRID, KINDS, transform_point
 
 
 class ResistorStyle(Enum):
@@ -270,7 +270,7 @@ def _label(p: _Pen, text_width: float):
 
 
 def build_symbol(kind: str, params, style: ResistorStyle, text_width: float = 0.0) -> Symbol:
-    """The symbol of a part in its own frame (pins where :data:`engine.parts.KINDS` puts them).
+    """The symbol of a part in its own frame (pins where :data:`bandsketch.engine.design.parts.KINDS` puts them).
 
     Parameters
     ----------

@@ -10,7 +10,7 @@ os.environ["XDG_DATA_HOME"] = os.path.join(_HOME, "data")
 
 import pytest  # noqa: E402
 
-from app import dialogs  # noqa: E402
+from bandsketch.app import dialogs  # noqa: E402
 
 
 @pytest.fixture(autouse=True)
@@ -39,7 +39,7 @@ def empty_clipboard(qapp):
 @pytest.fixture
 def window(qtbot, tmp_path):
     """A main window with its recovery file in ``tmp_path / "recovery"``."""
-    from app.main_window import MainWindow
+    from bandsketch.app.main_window import MainWindow
 
     w = MainWindow(recovery_folder=tmp_path / "recovery")
     w.resize(1200, 800)

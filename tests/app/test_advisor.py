@@ -7,10 +7,10 @@ from pathlib import Path
 
 import pytest
 
-from engine import analyze
-from engine.designfile import load_design
-from engine.netlist import design_to_circuit
-from engine.targets import meets, parse_targets
+from bandsketch.engine import analyze
+from bandsketch.engine.design.designfile import load_design
+from bandsketch.engine.design.netlist import design_to_circuit
+from bandsketch.engine.advise.targets import meets, parse_targets
 
 SAMPLES = Path(__file__).resolve().parents[2] / "sample_designs"
 

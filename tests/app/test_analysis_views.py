@@ -12,13 +12,13 @@ import numpy as np  # noqa: E402
 import pytest  # noqa: E402
 from PySide6.QtCore import QPointF, Qt  # noqa: E402
 
-from app import edits  # noqa: E402
-from app.analysis.runner import AnalysisRunner, analyse_design  # noqa: E402
-from app.analysis.style import view_colours  # noqa: E402
-from app.theme import DARK, LIGHT  # noqa: E402
-from engine.designfile import load_design  # noqa: E402
-from engine.plotdata import element_label, part_of  # noqa: E402
-from engine.values import format_value  # noqa: E402
+from bandsketch.app import edits  # noqa: E402
+from bandsketch.app.analysis.runner import AnalysisRunner, analyse_design  # noqa: E402
+from bandsketch.app.analysis.style import view_colours  # noqa: E402
+from bandsketch.app.theme import DARK, LIGHT  # noqa: E402
+from bandsketch.engine.design.designfile import load_design  # noqa: E402
+from bandsketch.engine.present.plotdata import element_label, part_of  # noqa: E402
+from bandsketch.engine.core.values import format_value  # noqa: E402
 
 SAMPLES = sorted((Path(__file__).parents[2] / "sample_designs").glob("*.json"))
 
@@ -182,7 +182,7 @@ def test_hover_reads_out_frequency_gain_and_phase(window, qtbot):
 
 
 def test_log_axis_labels_say_hertz_plainly():
-    from app.analysis.bode import FrequencyAxis
+    from bandsketch.app.analysis.bode import FrequencyAxis
 
     axis = FrequencyAxis("bottom")
     assert axis.logTickStrings([1.0, 3.0, 6.0], 1.0, 1.0) == ["10 Hz", "1 kHz", "1 MHz"]
@@ -200,7 +200,7 @@ def test_select_names_what_it_cannot_show(window):
 
 
 def test_screenshot_with_select_draws_the_picture(tmp_path, qapp):
-    from app.gui import run_gui
+    from bandsketch.app.gui import run_gui
 
     out = tmp_path / "shot.png"
     path = Path(__file__).parents[2] / "sample_designs" / "ce_hydrophone_preamp.json"

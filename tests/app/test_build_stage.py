@@ -5,8 +5,8 @@ import json
 from PySide6.QtCore import QMimeData, QPointF, Qt
 from PySide6.QtGui import QDropEvent
 
-from app.canvas.view import PART_MIME
-from engine.netlist import build_netlist, connectivity_problems, design_to_circuit
+from bandsketch.app.canvas.view import PART_MIME
+from bandsketch.engine.design.netlist import build_netlist, connectivity_problems, design_to_circuit
 from sheet import at, click, drag, place, snapshot, wire
 
 

@@ -12,8 +12,8 @@ from pathlib import Path
 
 import pytest
 
-from engine.designfile import load_design
-from engine.document import Part, Wire
+from bandsketch.engine.design.designfile import load_design
+from bandsketch.engine.design.document import Part, Wire
 
 SAMPLE = Path(__file__).parents[2] / "sample_designs" / "ce_hydrophone_preamp.json"
 

@@ -3,9 +3,9 @@
 import json
 from pathlib import Path
 
-from app import dialogs
-from app.main_window import MainWindow
-from app.recovery import RecoveryKeeper
+from bandsketch.app import dialogs
+from bandsketch.app.main_window import MainWindow
+from bandsketch.app.recovery import RecoveryKeeper
 from sheet import place, snapshot, wire
 
 CE_DESIGN = Path(__file__).with_name("invented_ce_stage.json")
@@ -72,7 +72,7 @@ def test_recovery_after_a_crash_is_offered_and_restores(qtbot, tmp_path, monkeyp
     folder = tmp_path / "recovery"
     crashed = MainWindow(recovery_folder=folder)
     place_via = crashed.controller
-    from app.canvas.controller import Template
+    from bandsketch.app.canvas.controller import Template
     from PySide6.QtCore import QPointF
     place_via.place_at(Template("resistor", {"value": "22k"}), QPointF(100, 100))
     place_via.place_at(Template("capacitor"), QPointF(200, 100))
@@ -111,9 +111,9 @@ def test_declined_recovery_is_set_aside_not_deleted(qtbot, tmp_path, monkeypatch
 
 
 def test_burst_of_edits_is_written_once_calm(qtbot, tmp_path, monkeypatch):
-    monkeypatch.setattr("app.recovery.CALM_MS", 50)
+    monkeypatch.setattr("bandsketch.app.recovery.CALM_MS", 50)
     w = MainWindow(recovery_folder=tmp_path / "rec")
-    from app.canvas.controller import Template
+    from bandsketch.app.canvas.controller import Template
     from PySide6.QtCore import QPointF
     for i in range(5):
         w.controller.place_at(Template("resistor"), QPointF(40 * i, 0))
@@ -125,7 +125,7 @@ def test_burst_of_edits_is_written_once_calm(qtbot, tmp_path, monkeypatch):
 
 
 def test_keeper_removes_the_file_when_nothing_is_unsaved(qtbot, tmp_path):
-    from engine.document import Document
+    from bandsketch.engine.design.document import Document
     keeper = RecoveryKeeper(Document(), lambda: False, lambda: None, tmp_path)
     (tmp_path / "recovery.json").write_text("{}", encoding="utf-8")
     keeper.write()

@@ -9,10 +9,10 @@ import pytest
 from PySide6.QtCore import QPointF, QRectF
 from PySide6.QtGui import QFontMetricsF
 
-from app.canvas.items import LABEL_GAP, PartItem, name_font, value_font
-from app.canvas.symbols import ResistorStyle
-from app.theme import LIGHT
-from engine.designfile import load_design
+from bandsketch.app.canvas.items import LABEL_GAP, PartItem, name_font, value_font
+from bandsketch.app.canvas.symbols import ResistorStyle
+from bandsketch.app.theme import LIGHT
+from bandsketch.engine.design.designfile import load_design
 
 SAMPLES = sorted((Path(__file__).parents[2] / "sample_designs").glob("*.json"))
 

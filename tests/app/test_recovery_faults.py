@@ -25,11 +25,11 @@ from pathlib import Path
 
 import pytest
 
-from app import dialogs, edits
-from app.main_window import MainWindow
-from app.recovery import RecoveryKeeper
-from engine.designfile import document_to_dict, load_design, save_design
-from engine.document import Document
+from bandsketch.app import dialogs, edits
+from bandsketch.app.main_window import MainWindow
+from bandsketch.app.recovery import RecoveryKeeper
+from bandsketch.engine.design.designfile import document_to_dict, load_design, save_design
+from bandsketch.engine.design.document import Document
 
 ROOT = Path(__file__).resolve().parents[2]
 SAMPLE = ROOT / "sample_designs" / "ce_hydrophone_preamp.json"
@@ -38,17 +38,17 @@ CRASHING = textwrap.dedent("""
     import json, os, signal, sys
     os.environ["QT_QPA_PLATFORM"] = "offscreen"
     root, folder, design, dump = sys.argv[1:5]
-    sys.path.insert(0, root)
-    import app.recovery
-    app.recovery.CALM_MS = 100
+
+    import bandsketch.app.recovery
+    bandsketch.app.recovery.CALM_MS = 100
     from PySide6.QtCore import QPointF, QTimer
     from PySide6.QtWidgets import QApplication
     qt = QApplication([])
     qt.setApplicationName("BandsketchCrashTest")
-    from app import edits
-    from app.canvas.controller import Template
-    from app.main_window import MainWindow
-    from engine.designfile import document_to_dict, load_design
+    from bandsketch.app import edits
+    from bandsketch.app.canvas.controller import Template
+    from bandsketch.app.main_window import MainWindow
+    from bandsketch.engine.design.designfile import document_to_dict, load_design
     w = MainWindow(recovery_folder=folder)
     w.show()
     w.set_document(load_design(design), design)

@@ -4,7 +4,7 @@ from pathlib import Path
 
 from PySide6.QtGui import QImage
 
-from app.gui import run_gui
+from bandsketch.app.gui import run_gui
 
 CE_DESIGN = Path(__file__).with_name("invented_ce_stage.json")
 

@@ -2,8 +2,8 @@
 
 from PySide6.QtCore import Qt
 
-from app import edits
-from app.commands import RenameCommand
+from bandsketch.app import edits
+from bandsketch.app.commands import RenameCommand
 from sheet import click, drag, place, snapshot, wire
 
 

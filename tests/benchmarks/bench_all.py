@@ -13,7 +13,7 @@ maximum resident set size, which includes the interpreter and numpy/scipy, about
   rebuilding and solving the network once per capacitor (the naive way, from
   tests/benchmarks/bench_timeconstants.py; ~ marks a time measured on 40 capacitors and scaled).
 - ``sweep``: exact-response points per second against network size (200 points, 1 Hz to
-  1 THz), for the engine's own choice (a batched dense solve up to engine.response.DENSE_LIMIT
+  1 THz), for the engine's own choice (a batched dense solve up to bandsketch.engine.solve.response.DENSE_LIMIT
   unknowns, a sparse LU per point above), each path forced, and a modal sum (written here,
   not in the engine: the capacitance-free unknowns eliminated, one eigen-decomposition, then
   O(n) per point) with its error against the direct solve.
@@ -111,8 +111,8 @@ def _modal(system):
 def child_sweep(n: int, path: str):
     import numpy as np
 
-    import engine.response as response
-    from engine.mna import build_system
+    import bandsketch.engine.solve.response as response
+    from bandsketch.engine.solve.mna import build_system
     sys.path.insert(0, str(HERE))
     import bench_timeconstants as bt
 
@@ -152,8 +152,8 @@ def child_edits(which: str, edits_n: int):
     from PySide6.QtWidgets import QApplication
 
     import bench_views as bv
-    from app.main_window import MainWindow
-    from engine.designfile import load_design
+    from bandsketch.app.main_window import MainWindow
+    from bandsketch.engine.design.designfile import load_design
 
     app = QApplication.instance() or QApplication(sys.argv[:1])
     window = MainWindow(keep_recovery=False)
@@ -174,8 +174,8 @@ def child_first_paint(design: str, launched: float):
     from PySide6.QtWidgets import QApplication
 
     app = QApplication(sys.argv[:1])
-    from app.main_window import MainWindow
-    from engine.designfile import load_design
+    from bandsketch.app.main_window import MainWindow
+    from bandsketch.engine.design.designfile import load_design
 
     window = MainWindow(keep_recovery=False)
     window.resize(1400, 900)

@@ -14,8 +14,8 @@ import time
 import numpy as np
 import scipy.sparse.linalg as spla
 
-from engine import Circuit, analyze
-from engine.mna import OPEN, build_system
+from bandsketch.engine import Circuit, analyze
+from bandsketch.engine.solve.mna import OPEN, build_system
 
 SIZES = (10, 100, 400, 1000, 5000)
 NAIVE_SAMPLE = 40
@@ -60,7 +60,7 @@ def naive_seconds(c: Circuit, f_test: float, repeat: int) -> tuple[float, float,
     others open), the time of the whole naive job (that, plus rebuilding and solving with
     the capacitor shorted and opened for the band test at ``f_test``), and whether sampled.
     """
-    from engine.response import frequency_response
+    from bandsketch.engine.solve.response import frequency_response
 
     caps = [el for el in c.elements.values() if type(el).__name__ == "Capacitor"]
     sample = caps[:NAIVE_SAMPLE]
@@ -133,7 +133,7 @@ def main(argv) -> int:
 
 def _octc_seconds(c, a) -> float:
     """Time of the open-circuit part alone: one LU of the mid-band network and the port solves."""
-    from engine.timeconstants import factorize, open_circuit, port_columns, port_weights
+    from bandsketch.engine.solve.timeconstants import factorize, open_circuit, port_columns, port_weights
 
     reactive = [el for el in c.elements.values() if type(el).__name__ in ("Capacitor", "Inductor")]
     high = [el for el in reactive if a.elements[el.name].band == "high"]

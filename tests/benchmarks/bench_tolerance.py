@@ -13,11 +13,11 @@ from pathlib import Path
 ROOT = Path(__file__).resolve().parents[2]
 sys.path.insert(0, str(ROOT))
 
-from engine import analyze  # noqa: E402
-from engine.designfile import load_design  # noqa: E402
-from engine.mna import build_system  # noqa: E402
-from engine.netlist import design_to_circuit  # noqa: E402
-from engine.tolerance import monte_carlo  # noqa: E402
+from bandsketch.engine import analyze  # noqa: E402
+from bandsketch.engine.design.designfile import load_design  # noqa: E402
+from bandsketch.engine.solve.mna import build_system  # noqa: E402
+from bandsketch.engine.design.netlist import design_to_circuit  # noqa: E402
+from bandsketch.engine.advise.tolerance import monte_carlo  # noqa: E402
 
 
 def main() -> None:

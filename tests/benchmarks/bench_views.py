@@ -22,11 +22,11 @@ sys.path.insert(0, str(ROOT))
 from PySide6.QtCore import QCoreApplication  # noqa: E402
 from PySide6.QtWidgets import QApplication  # noqa: E402
 
-from app import edits  # noqa: E402
-from app.analysis.runner import analyse_design  # noqa: E402
-from app.main_window import MainWindow  # noqa: E402
-from engine.designfile import load_design  # noqa: E402
-from engine.document import Document, Part  # noqa: E402
+from bandsketch.app import edits  # noqa: E402
+from bandsketch.app.analysis.runner import analyse_design  # noqa: E402
+from bandsketch.app.main_window import MainWindow  # noqa: E402
+from bandsketch.engine.design.designfile import load_design  # noqa: E402
+from bandsketch.engine.design.document import Document, Part  # noqa: E402
 
 EDITS = 15
 STAGES = 50

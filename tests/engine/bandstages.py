@@ -2,15 +2,15 @@
 
 Every scenario here is invented for the tests. The symbolic analysis is written from the
 nodal equations directly (Ho, Ruehli, Brennan, "The Modified Nodal Approach to Network
-Analysis", IEEE Trans. Circuits and Systems CAS-22(6), 1975), not from engine.mna.
+Analysis", IEEE Trans. Circuits and Systems CAS-22(6), 1975), not from bandsketch.engine.solve.mna.
 """
 
 from __future__ import annotations
 
 import sympy
 
-from engine import Circuit
-from engine.elements import VCCS, Capacitor, Resistor, VSource
+from bandsketch.engine import Circuit
+from bandsketch.engine.network.elements import VCCS, Capacitor, Resistor, VSource
 
 s = sympy.Symbol("s")
 

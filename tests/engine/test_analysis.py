@@ -12,14 +12,14 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from bandstages import common_emitter
-from engine import Circuit, CircuitError, analyze
-from engine.mna import OPEN, build_system
-from engine.summary import analysis_to_dict, format_table, write_sweep_csv
+from bandsketch.engine import Circuit, CircuitError, analyze
+from bandsketch.engine.solve.mna import OPEN, build_system
+from bandsketch.engine.present.summary import analysis_to_dict, format_table, write_sweep_csv
 
 
 # The scripting API example of issue 2, as written there (common practice, no source).
 def test_scripting_api_example_runs_as_written():
-    from engine import Circuit, analyze, CircuitError  # noqa: F401  (the example's own import)
+    from bandsketch.engine import Circuit, analyze, CircuitError  # noqa: F401  (the example's own import)
     c = Circuit("hydrophone preamp")            # an invented scenario
     c.vsource("Vsig", "sig", "0")               # AC 1 V signal source; "0" and "gnd" are ground
     c.resistor("Rsig", "sig", "x", "600")       # values: numbers or strings ("4k7", "2.2n", 1e-9)
@@ -136,9 +136,9 @@ def test_result_is_immutable():
     assert not a.sweep_response.flags.writeable
 
 
-def test_test_picture_of_a_high_band_capacitor():
+def test_port_picture_of_a_high_band_capacitor():
     a = analyze(common_emitter(coupling=True))
-    p = a.test_picture("Q1.cmu")
+    p = a.port_picture("Q1.cmu")
     assert p.nodes == ("Q1.bi", "c") and p.zeroed == ("Vsig",)
     assert set(p.shorted) == {"Cin", "Ce", "Cout"}
     assert set(p.opened) == {"Q1.cpi", "Q1.ccs", "CL"}

@@ -6,7 +6,7 @@ All stages are invented scenarios (see bandstages.py).
 import pytest
 
 from bandstages import common_emitter, common_source, follower
-from engine import Circuit, CircuitError, analyze
+from bandsketch.engine import Circuit, CircuitError, analyze
 
 
 # Expected bands follow the usual reading of these stages: coupling and bypass capacitors
@@ -64,7 +64,7 @@ def test_neutral_capacitors():
     for name in ("Cmon", "Csrc"):
         r = a.capacitors[name]
         assert r.band == "neutral" and r.resistance is None and r.share == 0
-        assert a.test_picture(name) is None
+        assert a.port_picture(name) is None
     assert "ideal voltage source" in a.capacitors["Csrc"].reason
     assert a.capacitors["Cmon"].reason.endswith("neutral")
 

@@ -10,11 +10,11 @@ import os
 
 import pytest
 
-from engine.designfile import (FORMAT_NAME, FORMAT_VERSION, MAX_FILE_BYTES, document_from_dict,
+from bandsketch.engine.design.designfile import (FORMAT_NAME, FORMAT_VERSION, MAX_FILE_BYTES, document_from_dict,
                                document_to_dict, load_design, save_design)
-from engine.document import Document, Part, Wire
-from engine.errors import DesignFileError
-from engine.parts import KINDS
+from bandsketch.engine.design.document import Document, Part, Wire
+from bandsketch.engine.core.errors import DesignFileError
+from bandsketch.engine.design.parts import KINDS
 
 
 def _part(kind, name, x, y, rotation=0, mirror=False, params=None):

@@ -5,14 +5,14 @@ import math
 import numpy as np
 import pytest
 
-from engine.circuit import Circuit
-from engine.devices import (BOLTZMANN, ELEMENTARY_CHARGE, bjt_values, expand, mosfet_values,
+from bandsketch.engine.network.circuit import Circuit
+from bandsketch.engine.network.devices import (BOLTZMANN, ELEMENTARY_CHARGE, bjt_values, expand, mosfet_values,
                             opamp_values, thermal_voltage)
-from engine.elements import VCCS, Resistor
-from engine.errors import BadValueError
-from engine.mna import build_system
-from engine.response import frequency_response, poles
-from engine.validate import validate
+from bandsketch.engine.network.elements import VCCS, Resistor
+from bandsketch.engine.core.errors import BadValueError
+from bandsketch.engine.solve.mna import build_system
+from bandsketch.engine.solve.response import frequency_response, poles
+from bandsketch.engine.network.validate import validate
 
 # Source: CODATA 2018 recommended values (E. Tiesinga et al., Rev. Mod. Phys. 93, 025010,
 # 2021): k = 1.380649e-23 J/K and e = 1.602176634e-19 C, both exact since the 2019 SI.

@@ -6,7 +6,7 @@ import math
 import pytest
 from hypothesis import given, strategies as st
 
-from engine import eseries
+from bandsketch.engine.advise import eseries
 
 
 def test_series_sizes_and_order():

@@ -27,7 +27,7 @@ Where conditioning limits it (measured, see the last tests):
   each capacitor apart (a branch current per capacitor). The effect sits above 10¹¹ Hz here,
   four decades beyond f_H, so no corner or resistance is touched; it is a known limit.
 - The exact poles span 33 decades (−1e-12, −0.011, −1e8 and +1e21 rad/s). The finite-pole
-  filter of engine.response works relative to the pencil's scale (max|G|/max|C| = 10³ rad/s):
+  filter of bandsketch.engine.solve.response works relative to the pencil's scale (max|G|/max|C| = 10³ rad/s):
   the −1e-12 rad/s pole is reported as 0 and the +1e21 rad/s one is dropped as infinite. The
   two poles within nine decades of that scale agree to 1e-6.
 """
@@ -40,10 +40,10 @@ import mpmath as mp
 import numpy as np
 import pytest
 
-from engine import analyze
-from engine.circuit import Circuit
-from engine.elements import VCCS, Capacitor, Resistor, VSource
-from engine.mna import build_system
+from bandsketch.engine import analyze
+from bandsketch.engine.network.circuit import Circuit
+from bandsketch.engine.network.elements import VCCS, Capacitor, Resistor, VSource
+from bandsketch.engine.solve.mna import build_system
 
 DIGITS = 40
 RTOL = 1e-6

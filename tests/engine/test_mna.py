@@ -18,10 +18,10 @@ import pytest
 import scipy.signal
 import sympy as sp
 
-from engine.circuit import Circuit
-from engine.mna import OPEN, SHORT, build_system
-from engine.response import frequency_response, poles, zeros
-from engine.validate import validate
+from bandsketch.engine.network.circuit import Circuit
+from bandsketch.engine.solve.mna import OPEN, SHORT, build_system
+from bandsketch.engine.solve.response import frequency_response, poles, zeros
+from bandsketch.engine.network.validate import validate
 
 s = sp.symbols("s")
 R = sp.Rational

@@ -9,14 +9,14 @@ a resistor at (x, y) unrotated has pin a at (x, y − 40) and pin b at (x, y + 4
 import numpy as np
 import pytest
 
-from engine.circuit import Circuit
-from engine.document import Document, Part, Wire
-from engine.elements import VCCS, Capacitor, Resistor, VSource
-from engine.errors import CircuitError
-from engine.mna import build_system
-from engine.netlist import build_netlist, connectivity_problems, design_to_circuit
-from engine.parts import KINDS, ROTATIONS, pin_positions, transform_point
-from engine.response import frequency_response
+from bandsketch.engine.network.circuit import Circuit
+from bandsketch.engine.design.document import Document, Part, Wire
+from bandsketch.engine.network.elements import VCCS, Capacitor, Resistor, VSource
+from bandsketch.engine.core.errors import CircuitError
+from bandsketch.engine.solve.mna import build_system
+from bandsketch.engine.design.netlist import build_netlist, connectivity_problems, design_to_circuit
+from bandsketch.engine.design.parts import KINDS, ROTATIONS, pin_positions, transform_point
+from bandsketch.engine.solve.response import frequency_response
 
 
 def _part(kind, name, x, y, rotation=0, mirror=False, **params):

@@ -8,10 +8,10 @@ from types import SimpleNamespace
 import numpy as np
 import pytest
 
-from engine import plotdata
-from engine.plotdata import (HALF_POWER_DB, HISTOGRAM_TICKS, bar_data, bode_data, histogram_axis, sweep_range,
+from bandsketch.engine.present import plotdata
+from bandsketch.engine.present.plotdata import (HALF_POWER_DB, HISTOGRAM_TICKS, bar_data, bode_data, histogram_axis, sweep_range,
                              verdict_data)
-from engine.tolerance import Histogram
+from bandsketch.engine.advise.tolerance import Histogram
 
 
 def _element(name, band, r, c, share, pinned=False):
@@ -139,7 +139,7 @@ def test_bars_sorted_by_share_with_dominant_and_pinned_marked():
     assert bars.row("Cin").band == "low" and bars.row("nothing") is None
 
 
-def test_test_picture_label_and_tooltip_carry_the_elements_own_numbers():
+def test_port_picture_label_and_tooltip_carry_the_elements_own_numbers():
     a = _two_corner()
     assert plotdata.element_label(a.capacitors["Cmu"]) == "R = 74.9 kΩ · τ = 150 ns · 84 % of b1"
     tip = plotdata.element_tooltip(a.capacitors["Ce"])
@@ -251,7 +251,7 @@ def test_a_peak_above_the_mid_band_stays_in_view_with_the_label_over_it():
 
 def test_a_voltage_gain_below_one_reads_as_a_plain_ratio():
     # Common practice, no source: a follower's gain is written 0.895 V/V, not 895 mV/V.
-    from engine.plotdata import _gain_text
+    from bandsketch.engine.present.plotdata import _gain_text
 
     assert _gain_text(0.8954, "V/V").startswith("A_m = 0.895 V/V")
     assert _gain_text(-1e5, "V/A").startswith("A_m = -100 kΩ")

@@ -1,7 +1,7 @@
 """The design report holds every figure the app shows for the same design.
 
-Source of the figures: engine.plotdata (what the bars, the Bode plot and the verdict strip
-draw), engine.targets (the target verdicts), engine.sensitivity and engine.tolerance.
+Source of the figures: bandsketch.engine.present.plotdata (what the bars, the Bode plot and the verdict strip
+draw), bandsketch.engine.advise.targets (the target verdicts), bandsketch.engine.advise.sensitivity and bandsketch.engine.advise.tolerance.
 """
 
 from __future__ import annotations
@@ -12,14 +12,14 @@ from pathlib import Path
 
 import pytest
 
-from engine import analyze
-from engine.designfile import load_design
-from engine.netlist import design_to_circuit
-from engine.plotdata import bar_data, bode_data, verdict_data
-from engine.report import CAUTION, REFERENCES, Pictures, build_report, write_report
-from engine.sensitivity import sensitivities
-from engine.targets import check_targets, parse_targets
-from engine.tolerance import spread_of_design
+from bandsketch.engine import analyze
+from bandsketch.engine.design.designfile import load_design
+from bandsketch.engine.design.netlist import design_to_circuit
+from bandsketch.engine.present.plotdata import bar_data, bode_data, verdict_data
+from bandsketch.engine.present.report import CAUTION, REFERENCES, Pictures, build_report, write_report
+from bandsketch.engine.advise.sensitivity import sensitivities
+from bandsketch.engine.advise.targets import check_targets, parse_targets
+from bandsketch.engine.advise.tolerance import spread_of_design
 
 SAMPLES = Path(__file__).resolve().parents[2] / "sample_designs"
 

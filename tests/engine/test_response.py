@@ -7,11 +7,11 @@ import pytest
 from hypothesis import HealthCheck, assume, given, settings
 from hypothesis import strategies as st
 
-from engine.circuit import Circuit
-from engine.mna import build_system
-from engine import response
-from engine.response import frequency_response, poles, zeros
-from engine.validate import validate
+from bandsketch.engine.network.circuit import Circuit
+from bandsketch.engine.solve.mna import build_system
+from bandsketch.engine.solve import response
+from bandsketch.engine.solve.response import frequency_response, poles, zeros
+from bandsketch.engine.network.validate import validate
 
 
 def _rc(r=4700.0, c=22e-9):

@@ -8,10 +8,10 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from engine.designfile import load_design
-from engine.mna import build_system
-from engine.netlist import connectivity_problems, design_to_circuit
-from engine.response import frequency_response
+from bandsketch.engine.design.designfile import load_design
+from bandsketch.engine.solve.mna import build_system
+from bandsketch.engine.design.netlist import connectivity_problems, design_to_circuit
+from bandsketch.engine.solve.response import frequency_response
 
 SAMPLES = sorted((Path(__file__).resolve().parents[2] / "sample_designs").glob("*.json"))
 
@@ -47,9 +47,9 @@ def test_exact_response_at_1khz(doc):
 
 def test_analysis_runs(doc):
     try:
-        analysis = importlib.import_module("engine.analysis")
+        analysis = importlib.import_module("bandsketch.engine.solve.analysis")
     except ImportError:
-        pytest.skip("engine.analysis is not available yet")
+        pytest.skip("bandsketch.engine.solve.analysis is not available yet")
     if not hasattr(analysis, "analyze"):
-        pytest.skip("engine.analysis has no analyze() yet")
+        pytest.skip("bandsketch.engine.solve.analysis has no analyze() yet")
     analysis.analyze(design_to_circuit(doc))

@@ -12,11 +12,11 @@ from pathlib import Path
 
 import pytest
 
-from engine import Circuit, analyze
-from engine.designfile import load_design
-from engine.netlist import design_to_circuit
-from engine.partvalues import with_value
-from engine.sensitivity import FIGURES, sensitivities
+from bandsketch.engine import Circuit, analyze
+from bandsketch.engine.design.designfile import load_design
+from bandsketch.engine.design.netlist import design_to_circuit
+from bandsketch.engine.advise.partvalues import with_value
+from bandsketch.engine.advise.sensitivity import FIGURES, sensitivities
 
 SAMPLES = sorted((Path(__file__).resolve().parents[2] / "sample_designs").glob("*.json"))
 H = 1e-4

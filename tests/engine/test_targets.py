@@ -11,12 +11,12 @@ from pathlib import Path
 
 import pytest
 
-from engine import analyze
-from engine.designfile import load_design
-from engine.errors import BadValueError
-from engine.eseries import E24
-from engine.netlist import design_to_circuit
-from engine.targets import (Targets, check_targets, knobs, meets, parse_targets, values_that_meet,
+from bandsketch.engine import analyze
+from bandsketch.engine.design.designfile import load_design
+from bandsketch.engine.core.errors import BadValueError
+from bandsketch.engine.advise.eseries import E24
+from bandsketch.engine.design.netlist import design_to_circuit
+from bandsketch.engine.advise.targets import (Targets, check_targets, knobs, meets, parse_targets, values_that_meet,
                             with_field)
 
 SAMPLES = Path(__file__).resolve().parents[2] / "sample_designs"

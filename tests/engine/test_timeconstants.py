@@ -9,7 +9,7 @@ import numpy as np
 import pytest
 
 from bandstages import common_emitter, common_source, denominator, follower, ladder
-from engine import Circuit, analyze
+from bandsketch.engine import Circuit, analyze
 
 
 def rel(a, b):

@@ -7,14 +7,14 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from engine import analyze
-from engine import tolerance as T
-from engine.designfile import load_design
-from engine.errors import Cancelled
-from engine.mna import build_system
-from engine.netlist import design_to_circuit
-from engine.partvalues import coefficients_for, parametric_system, part_values, with_value
-from engine.targets import Targets
+from bandsketch.engine import analyze
+from bandsketch.engine.advise import tolerance as T
+from bandsketch.engine.design.designfile import load_design
+from bandsketch.engine.core.errors import Cancelled
+from bandsketch.engine.solve.mna import build_system
+from bandsketch.engine.design.netlist import design_to_circuit
+from bandsketch.engine.advise.partvalues import coefficients_for, parametric_system, part_values, with_value
+from bandsketch.engine.advise.targets import Targets
 
 SAMPLES = Path(__file__).resolve().parents[2] / "sample_designs"
 
@@ -35,7 +35,7 @@ def _scaled(tols, k):
 
 
 def test_patterns_rebuild_the_nodal_matrices(ce):
-    # Source: engine.mna.build_system itself, on a circuit with every value changed.
+    # Source: bandsketch.engine.solve.mna.build_system itself, on a circuit with every value changed.
     c, _ = ce
     pvs = part_values(c)
     ps = parametric_system(c, [p.element for p in pvs])

@@ -8,9 +8,9 @@ approach to network analysis", IEEE Trans. Circuits and Systems 22(6), 1975).
 
 import pytest
 
-from engine.circuit import Circuit
-from engine.errors import CircuitError
-from engine.validate import problems, validate
+from bandsketch.engine.network.circuit import Circuit
+from bandsketch.engine.core.errors import CircuitError
+from bandsketch.engine.network.validate import problems, validate
 
 
 def _rc():

@@ -1,4 +1,4 @@
-"""Tests for engine.values: reading typed component values and writing them back."""
+"""Tests for bandsketch.engine.core.values: reading typed component values and writing them back."""
 
 import math
 
@@ -6,8 +6,8 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from engine.errors import BadValueError
-from engine.values import SI_PREFIXES, format_value, parse_value
+from bandsketch.engine.core.errors import BadValueError
+from bandsketch.engine.core.values import SI_PREFIXES, format_value, parse_value
 
 UNITS = ["Ω", "F", "H", "S", "A/V", "V/V", "A/A", "V", "A", "Hz", "K"]
 

@@ -30,9 +30,9 @@ from pathlib import Path
 
 import pytest
 
-from engine.designfile import document_from_dict, document_to_dict, load_design, save_design
-from engine.errors import DesignFileError
-from engine.parts import GRID
+from bandsketch.engine.design.designfile import document_from_dict, document_to_dict, load_design, save_design
+from bandsketch.engine.core.errors import DesignFileError
+from bandsketch.engine.design.parts import GRID
 
 ROOT = Path(__file__).resolve().parents[2]
 
@@ -60,7 +60,7 @@ def versions(tmp_path_factory):
 CHILD = textwrap.dedent("""
     import os, sys, time
     sys.path.insert(0, sys.argv[1])
-    from engine.designfile import load_design, save_design
+    from bandsketch.engine.design.designfile import load_design, save_design
     folder, target, pause_in = sys.argv[2], sys.argv[3], sys.argv[4]
     docs = [load_design(os.path.join(folder, "k.json")), load_design(os.path.join(folder, "M.json"))]
     if pause_in != "none":
@@ -244,7 +244,7 @@ def test_a_directory_in_the_way(tmp_path):
 
 
 def test_a_design_too_big_to_reload_is_refused_at_save(tmp_path, monkeypatch):
-    import engine.designfile as designfile
+    import bandsketch.engine.design.designfile as designfile
     doc = small_doc()
     monkeypatch.setattr(designfile, "MAX_FILE_BYTES", 2000)
     assert "larger than a design file can be" in refused_save(tmp_path, doc)

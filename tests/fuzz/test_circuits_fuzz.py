@@ -36,13 +36,13 @@ import scipy.linalg as la
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from engine import analyze
-from engine.circuit import Circuit
-from engine.elements import VCCS, VCVS, Capacitor, Inductor, ISource, Resistor, VSource
-from engine.errors import CircuitError
-from engine.mna import build_system
-from engine.response import DENSE_LIMIT, frequency_response
-from engine.validate import problems, validate
+from bandsketch.engine import analyze
+from bandsketch.engine.network.circuit import Circuit
+from bandsketch.engine.network.elements import VCCS, VCVS, Capacitor, Inductor, ISource, Resistor, VSource
+from bandsketch.engine.core.errors import CircuitError
+from bandsketch.engine.solve.mna import build_system
+from bandsketch.engine.solve.response import DENSE_LIMIT, frequency_response
+from bandsketch.engine.network.validate import problems, validate
 
 FUZZ = settings.get_profile("bandsketch-fuzz")
 

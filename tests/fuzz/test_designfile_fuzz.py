@@ -1,7 +1,7 @@
 """Design files that must never crash the loader, and value fields that must never crash the parser.
 
-The property throughout: a file given to :func:`engine.designfile.load_design` is either
-refused with a :class:`~engine.errors.DesignFileError` whose message names the file and
+The property throughout: a file given to :func:`bandsketch.engine.design.designfile.load_design` is either
+refused with a :class:`~bandsketch.engine.core.errors.DesignFileError` whose message names the file and
 what is wrong, or loaded intact — every part, wire and setting it holds, nothing dropped,
 and the document survives a save and a reload unchanged. No other exception escapes, and a
 document that loads can be handed to the netlister without anything but a CircuitError.
@@ -26,12 +26,12 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from engine.designfile import (FORMAT_NAME, FORMAT_VERSION, MAX_FILE_BYTES, document_from_dict,
+from bandsketch.engine.design.designfile import (FORMAT_NAME, FORMAT_VERSION, MAX_FILE_BYTES, document_from_dict,
                                document_to_dict, load_design, save_design)
-from engine.errors import BadValueError, CircuitError, DesignFileError
-from engine.netlist import connectivity_problems, design_to_circuit
-from engine.parts import GRID, KINDS, ROTATIONS
-from engine.values import parse_value
+from bandsketch.engine.core.errors import BadValueError, CircuitError, DesignFileError
+from bandsketch.engine.design.netlist import connectivity_problems, design_to_circuit
+from bandsketch.engine.design.parts import GRID, KINDS, ROTATIONS
+from bandsketch.engine.core.values import parse_value
 
 FUZZ = settings.get_profile("bandsketch-fuzz")
 ROOT = Path(__file__).resolve().parents[2]
@@ -384,7 +384,7 @@ def test_any_text_is_a_number_or_a_clear_error(text, unit, zero, negative, infin
 @FUZZ
 @given(value=st.floats(min_value=1e-15, max_value=1e15), unit=st.sampled_from(["Ω", "F", "H", "Hz"]))
 def test_formatted_values_read_back(value, unit):
-    from engine.values import format_value
+    from bandsketch.engine.core.values import format_value
     text = format_value(value, unit, digits=12)
     assert parse_value(text, unit=unit) == pytest.approx(value, rel=1e-11)
 

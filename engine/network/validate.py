@@ -7,7 +7,7 @@ from collections import Counter, defaultdict
 import networkx as nx
 
 from .elements import CCCS, CCVS, CONDUCTS_AT_DC, VCCS, VCVS, VOLTAGE_DEFINING, ISource, VSource
-from .errors import CircuitError
+from ..core.errors import CircuitError
 
 
 def _shown(names, limit=6):
@@ -146,7 +146,7 @@ def problems(circuit) -> list[CircuitError]:
 
 
 def validate(circuit) -> None:
-    """Raise the first of :func:`problems` as a :class:`~engine.errors.CircuitError`, if any."""
+    """Raise the first of :func:`problems` as a :class:`~bandsketch.engine.core.errors.CircuitError`, if any."""
     found = problems(circuit)
     if found:
         raise found[0]

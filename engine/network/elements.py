@@ -1,6 +1,6 @@
 """Primitive network elements: the only things the nodal equations are built from.
 
-Transistor and op-amp blocks expand into these (see :mod:`engine.devices`). Values are
+Transistor and op-amp blocks expand into these (see :mod:`bandsketch.engine.network.devices`). Values are
 floats in SI units. An element that belongs to a block carries the block's name in
 ``owner`` and is itself named ``<block>.<param>`` (``Q1.cpi``).
 """

@@ -6,7 +6,7 @@ thousands of samples at once and finds each sample's exact corners and mid-band 
 :func:`worst_case` searches the vertices of the tolerance box for the extreme corners.
 
 How the samples are solved: every sample's G and C come from one
-:class:`engine.partvalues.ParametricSystem` (stamp patterns read from the nodal builder),
+:class:`bandsketch.engine.advise.partvalues.ParametricSystem` (stamp patterns read from the nodal builder),
 so a batch is a stack of small dense systems solved together. A sample's mid-band gain is
 its resistive gain with the nominal bands (low-band reactances at their mid-band state,
 high-band ones at theirs; tolerances do not move a capacitor between bands). Its corners
@@ -28,13 +28,13 @@ from typing import Callable, Mapping
 
 import numpy as np
 
-from .analysis import analyze, midband_states
-from .elements import Capacitor, Inductor
-from .errors import Cancelled, CircuitError
-from .netlist import design_to_circuit
+from ..solve.analysis import analyze, midband_states
+from ..network.elements import Capacitor, Inductor
+from ..core.errors import Cancelled, CircuitError
+from ..design.netlist import design_to_circuit
 from .partvalues import PartValue, coefficients_for, parametric_system, part_values
 from .targets import Targets, parse_targets
-from .values import format_value
+from ..core.values import format_value
 
 _SRC_COMMON = "common practice, no source"
 DEFAULT_TOLERANCES = MappingProxyType({
@@ -112,7 +112,7 @@ def default_tolerances(circuit, overrides: Mapping[str, float] | None = None) ->
 
     Parameters
     ----------
-    circuit : engine.circuit.Circuit
+    circuit : bandsketch.engine.network.circuit.Circuit
     overrides : Mapping[str, float], optional
         Element name (``"R1"``, ``"Q1.rpi"``) -> tolerance fraction, replacing the default.
 
@@ -398,8 +398,8 @@ def monte_carlo(circuit, analysis, tolerances=None, *, samples: int = 10_000, se
 
     Parameters
     ----------
-    circuit : engine.circuit.Circuit
-    analysis : engine.analysis.Analysis
+    circuit : bandsketch.engine.network.circuit.Circuit
+    analysis : bandsketch.engine.solve.analysis.Analysis
         The nominal analysis (its bands and exact corners anchor every sample's search).
     tolerances : sequence of Tolerance, optional
         Defaults to :func:`default_tolerances`.
@@ -414,7 +414,7 @@ def monte_carlo(circuit, analysis, tolerances=None, *, samples: int = 10_000, se
     progress : callable, optional
         ``progress(done, total)`` after each batch of :data:`CHUNK` samples.
     cancel : callable, optional
-        Polled between batches; when it returns True the run stops with :class:`engine.errors.Cancelled`.
+        Polled between batches; when it returns True the run stops with :class:`bandsketch.engine.core.errors.Cancelled`.
 
     Returns
     -------

@@ -7,7 +7,7 @@ import math
 import numpy as np
 from scipy.optimize import brentq
 
-from .elements import Capacitor, Inductor, Resistor
+from ..network.elements import Capacitor, Inductor, Resistor
 from .response import DENSE_LIMIT, frequency_response
 
 SETTLED = 1e-3

@@ -16,7 +16,7 @@ from dataclasses import dataclass
 import networkx as nx
 import numpy as np
 
-from .elements import CCCS, CCVS, VCCS, VCVS, Capacitor, Inductor, ISource, VSource
+from ..network.elements import CCCS, CCVS, VCCS, VCVS, Capacitor, Inductor, ISource, VSource
 from .timeconstants import factorize, port_columns, port_diagonal
 
 LOW, HIGH, NEUTRAL = "low", "high", "neutral"
@@ -140,7 +140,7 @@ def band_tests(system, reactive, f_test: float, fixed) -> dict[str, BandTest]:
 
     Parameters
     ----------
-    system : engine.mna.MnaSystem
+    system : bandsketch.engine.solve.mna.MnaSystem
         The full network, every element as it is.
     reactive : sequence of Capacitor or Inductor
         The elements to test.

@@ -1,4 +1,4 @@
-"""An :class:`~engine.analysis.Analysis` as JSON-ready data, as a readable table, as a CSV sweep."""
+"""An :class:`~bandsketch.engine.solve.analysis.Analysis` as JSON-ready data, as a readable table, as a CSV sweep."""
 
 from __future__ import annotations
 
@@ -7,8 +7,8 @@ import math
 
 import numpy as np
 
-from .mna import SHORT
-from .values import format_value
+from ..solve.mna import SHORT
+from ..core.values import format_value
 
 _ELEMENT_UNITS = {"capacitance": "F", "inductance": "H", "resistance": "Ω", "time_constant": "s",
                   "share": "1", "gain_shorted": None, "gain_opened": None}
@@ -128,7 +128,7 @@ def format_table(a, title: str | None = None) -> str:
 
     Parameters
     ----------
-    a : engine.analysis.Analysis
+    a : bandsketch.engine.solve.analysis.Analysis
     title : str, optional
         Heading; the circuit's title by default.
     """

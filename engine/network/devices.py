@@ -13,9 +13,8 @@ from dataclasses import dataclass
 from types import MappingProxyType
 
 from .elements import VCCS, VCVS, Capacitor, Resistor
-from .errors import BadValueError
-from .parts import KINDS
-from .values import parse_value
+from ..core.errors import BadValueError
+from ..core.values import parse_value
 
 BOLTZMANN = 1.380649e-23
 """Boltzmann constant k, J/K (exact in the SI since 2019; CODATA 2018)."""
@@ -223,32 +222,3 @@ def expand(block: Block) -> list:
     else:
         raise ValueError(f"unknown block kind {block.kind!r}")
     return els
-
-
-def given_from_params(kind: str, params) -> dict:
-    """The field texts of a placed block that its model mode uses (empty texts dropped)."""
-    mode = params.get("mode", "")
-    return {f.key: params[f.key] for f in KINDS[kind].fields
-            if f.unit != "choice" and f.mode in ("", mode) and params.get(f.key, "").strip()}
-
-
-def derived_values(part) -> dict:
-    """Every small-signal value of a placed transistor or op-amp block, in SI units.
-
-    Parameters
-    ----------
-    part : engine.document.Part
-        A part of kind ``"bjt"``, ``"mosfet"`` or ``"opamp"``.
-
-    Returns
-    -------
-    dict
-        Value key -> float (``gm`` in S, ``rpi`` in Ω, ``cpi`` in F ...), as
-        :func:`bjt_values`, :func:`mosfet_values` or :func:`opamp_values` give them.
-
-    Raises
-    ------
-    BadValueError
-        A field the mode uses does not hold a usable value; the message names part and field.
-    """
-    return RESOLVERS[part.kind](part.name, given_from_params(part.kind, part.params))

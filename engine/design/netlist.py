@@ -14,10 +14,11 @@ from dataclasses import dataclass
 from types import MappingProxyType
 from typing import Mapping
 
-from .circuit import Circuit
-from .devices import given_from_params
-from .errors import BadValueError, CircuitError
-from .validate import problems as circuit_problems
+from ..network.circuit import Circuit
+from ..network.devices import RESOLVERS
+from .parts import KINDS
+from ..core.errors import BadValueError, CircuitError
+from ..network.validate import problems as circuit_problems
 
 NO_ELEMENT = ("ground", "label", "output")
 """Part kinds that mark the sheet but add no element."""
@@ -239,3 +240,32 @@ def connectivity_problems(doc) -> list[Problem]:
         parts = tuple(p for p in exc.parts if p in doc.parts)
         out.append(Problem(exc.message, parts, points))
     return out
+
+
+def given_from_params(kind: str, params) -> dict:
+    """The field texts of a placed block that its model mode uses (empty texts dropped)."""
+    mode = params.get("mode", "")
+    return {f.key: params[f.key] for f in KINDS[kind].fields
+            if f.unit != "choice" and f.mode in ("", mode) and params.get(f.key, "").strip()}
+
+
+def derived_values(part) -> dict:
+    """Every small-signal value of a placed transistor or op-amp block, in SI units.
+
+    Parameters
+    ----------
+    part : bandsketch.engine.design.document.Part
+        A part of kind ``"bjt"``, ``"mosfet"`` or ``"opamp"``.
+
+    Returns
+    -------
+    dict
+        Value key -> float (``gm`` in S, ``rpi`` in Ω, ``cpi`` in F ...), as
+        :func:`bjt_values`, :func:`mosfet_values` or :func:`opamp_values` give them.
+
+    Raises
+    ------
+    BadValueError
+        A field the mode uses does not hold a usable value; the message names part and field.
+    """
+    return RESOLVERS[part.kind](part.name, given_from_params(part.kind, part.params))

@@ -1,7 +1,7 @@
 """Design targets: what the document asks for, whether the stage meets it, and what would.
 
 A design may hold a minimum upper corner f_H, a maximum lower corner f_L and a mid-band gain
-with a tolerance (texts, see :data:`engine.document.TARGET_KEYS`). :func:`parse_targets`
+with a tolerance (texts, see :data:`bandsketch.engine.design.document.TARGET_KEYS`). :func:`parse_targets`
 reads them; :func:`check_targets` judges the exact figures of an analysis against them and
 says beside each what the time-constant estimate would have said; :func:`values_that_meet`
 finds, per part field, the single value that alone meets a failing target.
@@ -16,13 +16,13 @@ from dataclasses import dataclass
 from scipy.optimize import brentq
 
 from . import eseries
-from .analysis import analyze
-from .devices import given_from_params
-from .document import Document
-from .errors import BadValueError, Cancelled, CircuitError
-from .netlist import NO_ELEMENT, design_to_circuit
-from .parts import KINDS
-from .values import format_value, parse_value
+from ..solve.analysis import analyze
+from ..design.netlist import given_from_params
+from ..design.document import Document
+from ..core.errors import BadValueError, Cancelled, CircuitError
+from ..design.netlist import NO_ELEMENT, design_to_circuit
+from ..design.parts import KINDS
+from ..core.values import format_value, parse_value
 
 DEFAULT_GAIN_TOLERANCE_DB = 1.0
 """The gain window when a gain target has no tolerance: ±1 dB (common practice, no source)."""
@@ -100,7 +100,7 @@ def parse_targets(targets) -> Targets:
     Parameters
     ----------
     targets : Mapping[str, str]
-        :attr:`engine.document.Document.targets`: ``f_high_min`` and ``f_low_max`` in Hz
+        :attr:`bandsketch.engine.design.document.Document.targets`: ``f_high_min`` and ``f_low_max`` in Hz
         (``"1M"``, ``"20 Hz"``), ``gain`` in V/V or dB (``"-100"``, ``"40 dB"``),
         ``gain_tolerance`` as a percentage or in dB (``"10 %"``, ``"1 dB"``).
 
@@ -253,7 +253,7 @@ def check_targets(targets: Targets, analysis, gain_unit: str = "V/V") -> tuple:
     Parameters
     ----------
     targets : Targets
-    analysis : engine.analysis.Analysis
+    analysis : bandsketch.engine.solve.analysis.Analysis
     gain_unit : str, optional
         ``"V/V"`` for a voltage input, ``"Ω"`` for a current input.
 
@@ -504,7 +504,7 @@ def values_that_meet(doc, target: str, targets: Targets, series: str = "E24", *,
 
     Parameters
     ----------
-    doc : engine.document.Document
+    doc : bandsketch.engine.design.document.Document
         The design (not changed: each trial value is analysed on a copy).
     target : str
         ``"f_high_min"``, ``"f_low_max"`` or ``"gain"``.
@@ -516,7 +516,7 @@ def values_that_meet(doc, target: str, targets: Targets, series: str = "E24", *,
     progress : callable, optional
         ``progress(done, total)`` after each field.
     cancel : callable, optional
-        Polled between fields; True stops the search with :class:`engine.errors.Cancelled`.
+        Polled between fields; True stops the search with :class:`bandsketch.engine.core.errors.Cancelled`.
 
     Returns
     -------

@@ -24,7 +24,7 @@ import tempfile
 from pathlib import Path
 
 from .document import BANDS, NAME_RE, TARGET_KEYS, Document, Part, Wire
-from .errors import DesignFileError
+from ..core.errors import DesignFileError
 from .parts import KINDS, ROTATIONS
 
 FORMAT_NAME = "bandsketch-design"

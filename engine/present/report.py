@@ -19,14 +19,14 @@ from datetime import date
 
 import numpy as np
 
-from .analysis import analyze
-from .netlist import design_to_circuit
-from .partvalues import part_values
+from ..solve.analysis import analyze
+from ..design.netlist import design_to_circuit
+from ..advise.partvalues import part_values
 from .plotdata import bar_data, bode_data, db_unit, verdict_data
-from .sensitivity import FIGURE_TITLES, sensitivities
-from .targets import check_targets, parse_targets, values_that_meet
-from .tolerance import spread_of_design
-from .values import format_value
+from ..advise.sensitivity import FIGURE_TITLES, sensitivities
+from ..advise.targets import check_targets, parse_targets, values_that_meet
+from ..advise.tolerance import spread_of_design
+from ..core.values import format_value
 
 CAUTION = ("These are design estimates from a linear small-signal model. Confirm them by full "
            "circuit simulation and by measurement before anything is built.")
@@ -117,7 +117,7 @@ def _signed(x) -> str:
     return "—" if x is None else f"{x:+.3f}"
 
 
-# -- inline SVG (plain Python; the data come from engine.plotdata) -------------------------------
+# -- inline SVG (plain Python; the data come from bandsketch.engine.present.plotdata) -------------------------------
 _W, _H, _PAD_L, _PAD_R, _PAD_T, _PAD_B = 900, 340, 60, 20, 20, 40
 
 
@@ -299,7 +299,7 @@ def build_report(doc, *, pictures: Pictures | None = None, samples: int = SPREAD
 
     Parameters
     ----------
-    doc : engine.document.Document
+    doc : bandsketch.engine.design.document.Document
     pictures : Pictures, optional
         PNGs rendered by the app; missing plots are drawn as inline SVG, a missing schematic
         is noted.
@@ -307,7 +307,7 @@ def build_report(doc, *, pictures: Pictures | None = None, samples: int = SPREAD
         Monte Carlo size and seed (ignored when ``spread`` is given).
     series : str
         IEC 60063 series for the standard values (``"E12"``, ``"E24"``, ``"E48"``, ``"E96"``).
-    spread : engine.tolerance.Spread, optional
+    spread : bandsketch.engine.advise.tolerance.Spread, optional
         A spread the app already ran (with the designer's tolerances), to report as is.
 
     Returns

@@ -7,7 +7,7 @@ import scipy.linalg as la
 import scipy.sparse as sp
 import scipy.sparse.linalg as spla
 
-from .errors import CircuitError
+from ..core.errors import CircuitError
 
 DENSE_LIMIT = 60
 """Up to this many unknowns a batched dense solve beats a sparse LU per frequency."""
@@ -21,7 +21,7 @@ def frequency_response(system, freqs_hz) -> np.ndarray:
 
     Parameters
     ----------
-    system : engine.mna.MnaSystem
+    system : bandsketch.engine.solve.mna.MnaSystem
         Assembled equations.
     freqs_hz : array_like
         Frequencies in Hz.

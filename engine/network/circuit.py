@@ -6,8 +6,8 @@ from types import MappingProxyType
 
 from .devices import RESOLVERS, Block, expand
 from .elements import CCCS, CCVS, VCCS, VCVS, Capacitor, Inductor, ISource, Resistor, VSource
-from .errors import CircuitError
-from .values import parse_value
+from ..core.errors import CircuitError
+from ..core.values import parse_value
 
 GROUND_NAMES = {"0", "gnd", "ground"}
 
@@ -50,7 +50,7 @@ class Circuit:
 
     @property
     def blocks(self):
-        """Name -> resolved :class:`~engine.devices.Block` with its small-signal ``values``."""
+        """Name -> resolved :class:`~bandsketch.engine.network.devices.Block` with its small-signal ``values``."""
         return MappingProxyType(self._blocks)
 
     def nodes(self) -> list[str]:

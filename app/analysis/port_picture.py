@@ -1,7 +1,7 @@
 """An element's test picture drawn over the sheet: how the resistance it sees is found.
 
 The engine says which elements are shorted, opened and zeroed and which two nodes the test
-source joins (:meth:`engine.analysis.Analysis.test_picture`). :func:`picture_geometry`
+source joins (:meth:`bandsketch.engine.solve.analysis.Analysis.port_picture`). :func:`picture_geometry`
 places that on the sheet (plain tuples, no Qt), and :class:`PictureOverlay` draws it: the
 element under test replaced by a test-source glyph with its label, open elements faded with
 a gap cut through them, shorted elements and zeroed voltage sources bridged by a bold wire.
@@ -16,7 +16,7 @@ from PySide6.QtCore import QLineF, QPointF, QRectF, Qt
 from PySide6.QtGui import QColor, QFont, QFontMetricsF, QPainterPath, QPen
 from PySide6.QtWidgets import QGraphicsItem
 
-from engine.plotdata import element_label, part_of
+from bandsketch.engine.present.plotdata import element_label, part_of
 
 from .style import ViewColours, view_colours
 
@@ -139,11 +139,11 @@ def picture_geometry(doc, nets, analysis, element: str) -> PictureGeometry | Non
 
     Parameters
     ----------
-    doc : engine.document.Document
+    doc : bandsketch.engine.design.document.Document
         The design that was analysed.
-    nets : engine.netlist.Netlist
+    nets : bandsketch.engine.design.netlist.Netlist
         Its nets.
-    analysis : engine.analysis.Analysis
+    analysis : bandsketch.engine.solve.analysis.Analysis
     element : str
         A capacitor or inductor of the analysis (``Cin``, ``Q1.cmu``).
 
@@ -154,7 +154,7 @@ def picture_geometry(doc, nets, analysis, element: str) -> PictureGeometry | Non
     """
     if element not in analysis.elements or part_of(element) not in doc.parts:
         return None
-    picture = analysis.test_picture(element)
+    picture = analysis.port_picture(element)
     if picture is None:
         return None
     result = analysis.elements[element]

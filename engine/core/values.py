@@ -11,7 +11,7 @@ import math
 import re
 import unicodedata
 
-from engine.errors import BadValueError
+from .errors import BadValueError
 
 _EXPONENTS = {"f": -15, "p": -12, "n": -9, "µ": -6, "m": -3, "k": 3, "M": 6, "G": 9, "T": 12}
 

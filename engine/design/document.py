@@ -13,7 +13,7 @@ from dataclasses import dataclass, field, replace
 from types import MappingProxyType
 from typing import Mapping
 
-from .events import Signal
+from ..core.events import Signal
 from .parts import KINDS, ROTATIONS, pin_positions
 
 NAME_RE = re.compile(r"[A-Za-z][A-Za-z0-9_]*")
@@ -33,7 +33,7 @@ class Part:
     Parameters
     ----------
     kind : str
-        Key into :data:`engine.parts.KINDS`.
+        Key into :data:`bandsketch.engine.design.parts.KINDS`.
     name : str
         Unique name on the sheet (``R1``, ``Q2``, ``Cin``).
     x, y : int

@@ -3,8 +3,8 @@
 Every primitive element carries one number (a resistance, a capacitance, a g_m ...). The
 sensitivity, tolerance and what-if code all vary those numbers, so this module says once
 which numbers there are (:func:`part_values`) and how each one enters G and C
-(:func:`parametric_system`). The stamps themselves stay in :mod:`engine.mna`: each element's
-pattern is read back from two :func:`engine.mna.build_system` calls that differ only in
+(:func:`parametric_system`). The stamps themselves stay in :mod:`bandsketch.engine.solve.mna`: each element's
+pattern is read back from two :func:`bandsketch.engine.solve.mna.build_system` calls that differ only in
 that element's value, which is exact because every stamp is linear in its coefficient.
 """
 
@@ -14,9 +14,9 @@ from dataclasses import dataclass, replace
 
 import numpy as np
 
-from .elements import CCCS, CCVS, VCCS, VCVS, Capacitor, Inductor, Resistor
-from .mna import build_system
-from .parts import KINDS
+from ..network.elements import CCCS, CCVS, VCCS, VCVS, Capacitor, Inductor, Resistor
+from ..solve.mna import build_system
+from ..design.parts import KINDS
 
 _VALUE_ATTR = {Resistor: ("value", "Ω"), Capacitor: ("value", "F"), Inductor: ("value", "H"),
                VCCS: ("gm", "S"), VCVS: ("gain", "V/V"), CCCS: ("gain", "A/A"), CCVS: ("r", "Ω")}
@@ -83,7 +83,7 @@ def part_values(circuit) -> tuple:
 
     Parameters
     ----------
-    circuit : engine.circuit.Circuit
+    circuit : bandsketch.engine.network.circuit.Circuit
 
     Returns
     -------
@@ -141,7 +141,7 @@ class ParametricSystem:
     coefficients : numpy.ndarray
         (k,) nominal stamp coefficients.
     b, c : numpy.ndarray
-        Input excitation and output selector, as in :class:`engine.mna.MnaSystem`.
+        Input excitation and output selector, as in :class:`bandsketch.engine.solve.mna.MnaSystem`.
     """
 
     names: tuple
@@ -173,15 +173,15 @@ class ParametricSystem:
 
 
 def parametric_system(circuit, names, states=None) -> ParametricSystem:
-    """Read each named element's stamp pattern out of :func:`engine.mna.build_system`.
+    """Read each named element's stamp pattern out of :func:`bandsketch.engine.solve.mna.build_system`.
 
     Parameters
     ----------
-    circuit : engine.circuit.Circuit
+    circuit : bandsketch.engine.network.circuit.Circuit
     names : sequence of str
         Elements to vary (each must carry a value; see :func:`part_values`).
     states : Mapping[str, str], optional
-        Shorted or opened reactances, as for :func:`engine.mna.build_system`. A varied
+        Shorted or opened reactances, as for :func:`bandsketch.engine.solve.mna.build_system`. A varied
         element that is shorted or opened gets a zero pattern.
 
     Returns
@@ -213,7 +213,7 @@ def coefficients_for(system: ParametricSystem, circuit, factors: np.ndarray) -> 
     Parameters
     ----------
     system : ParametricSystem
-    circuit : engine.circuit.Circuit
+    circuit : bandsketch.engine.network.circuit.Circuit
         The circuit the system was read from (to know which elements are resistors).
     factors : numpy.ndarray
         (m, k) value multipliers (1 = nominal), one row per sample.

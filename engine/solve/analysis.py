@@ -1,10 +1,10 @@
 """The time-constant analysis of a stage: bands, estimated corners, exact corners, warnings.
 
 :func:`analyze` sorts every capacitor and inductor into the low band, the high band or
-neither by the short/open gain test (:mod:`engine.bands`), finds the resistive mid-band
+neither by the short/open gain test (:mod:`bandsketch.engine.solve.bands`), finds the resistive mid-band
 gain, the open-circuit time constants of the high band and the short-circuit time
-constants of the low band from one factorisation each (:mod:`engine.timeconstants`),
-and the exact corners of the full network (:mod:`engine.corners`).
+constants of the low band from one factorisation each (:mod:`bandsketch.engine.solve.timeconstants`),
+and the exact corners of the full network (:mod:`bandsketch.engine.solve.corners`).
 """
 
 from __future__ import annotations
@@ -20,13 +20,13 @@ import numpy as np
 from .bands import (BANDS, HIGH, IN_BAND_DB, LOW, NEUTRAL, NEUTRAL_DB, band_tests, fixed_elements,
                     parallel_capacitance, parallel_groups)
 from .corners import brackets, corner, first_span, midband_guess, points_per_decade, second_order_corner, wide_sweep
-from .elements import Capacitor, Inductor, ISource, VSource
-from .errors import CircuitError
+from ..network.elements import Capacitor, Inductor, ISource, VSource
+from ..core.errors import CircuitError
 from .mna import OPEN, SHORT, build_system
 from .response import frequency_response, poles, zeros
 from .timeconstants import FULL_MATRIX_LIMIT, factorize, open_circuit, port_columns, port_weights, short_circuit
-from .validate import validate
-from .values import format_value
+from ..network.validate import validate
+from ..core.values import format_value
 
 MAX_ROUNDS = 6
 """Classification rounds before the analysis gives up waiting for the bands to settle."""
@@ -44,7 +44,7 @@ right-half-plane warning); beyond it they cost too much and are left to ``Analys
 
 
 @dataclass(frozen=True)
-class TestPicture:
+class PortPicture:
     """How an element's resistance is found, for drawing it.
 
     Attributes
@@ -232,10 +232,10 @@ class Analysis:
 
     def midband_states(self) -> dict[str, str]:
         """Name -> ``"short"`` or ``"open"``: the resistive mid-band network, for
-        :func:`engine.mna.build_system`."""
+        :func:`bandsketch.engine.solve.mna.build_system`."""
         return {r.name: r.state for r in self.elements.values()}
 
-    def test_picture(self, name: str) -> TestPicture | None:
+    def port_picture(self, name: str) -> PortPicture | None:
         """How ``name``'s resistance is found; None for a neutral element (it has none)."""
         el = self.elements[name]
         if el.band == NEUTRAL:
@@ -244,7 +244,7 @@ class Analysis:
         for other in self.elements.values():
             if other.name != name:
                 (shorted if other.state == SHORT else opened).append(other.name)
-        return TestPicture(name, el.nodes, tuple(shorted), tuple(opened), self.sources)
+        return PortPicture(name, el.nodes, tuple(shorted), tuple(opened), self.sources)
 
 
 def midband_state(el, band) -> str:
@@ -260,7 +260,7 @@ def midband_state(el, band) -> str:
 
 
 def midband_states(reactive, bands) -> dict[str, str]:
-    """States of the resistive mid-band network, as :func:`engine.mna.build_system` takes them.
+    """States of the resistive mid-band network, as :func:`bandsketch.engine.solve.mna.build_system` takes them.
 
     Parameters
     ----------
@@ -354,7 +354,7 @@ def _low_band(c, low, states):
     The network has the low-band elements at zero value (capacitors open, inductors
     0-V branches) and every other element at its mid-band state in ``states``. Parallel
     capacitors are one port of their total capacitance: shorting one would short the
-    others. Returns the :class:`~engine.timeconstants.ShortCircuit` and name -> port.
+    others. Returns the :class:`~bandsketch.engine.solve.timeconstants.ShortCircuit` and name -> port.
     """
     low_names = {el.name for el in low}
     zero_value = {el.name: OPEN for el in low if isinstance(el, Capacitor)}
@@ -377,7 +377,7 @@ def analyze(c, bands=None, *, per_decade: int | None = None, full_matrix_limit: 
 
     Parameters
     ----------
-    c : engine.circuit.Circuit
+    c : bandsketch.engine.network.circuit.Circuit
         The stage, with its input and output chosen.
     bands : Mapping[str, str], optional
         Element name -> ``"low"``, ``"high"`` or ``"neutral"``: pins that override the

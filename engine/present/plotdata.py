@@ -17,7 +17,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .values import format_value
+from ..core.values import format_value
 
 HALF_POWER_DB = 20 * math.log10(math.sqrt(2))
 """The −3 dB corner lies this many dB (3.0103) below the mid-band gain."""
@@ -283,7 +283,7 @@ def sweep_range(analysis) -> tuple:
 
     Parameters
     ----------
-    analysis : engine.analysis.Analysis
+    analysis : bandsketch.engine.solve.analysis.Analysis
 
     Returns
     -------
@@ -401,7 +401,7 @@ def bode_data(analysis) -> BodeData:
 
     Parameters
     ----------
-    analysis : engine.analysis.Analysis
+    analysis : bandsketch.engine.solve.analysis.Analysis
 
     Returns
     -------
@@ -550,7 +550,7 @@ def verdict_data(analysis) -> VerdictData:
 
     Parameters
     ----------
-    analysis : engine.analysis.Analysis
+    analysis : bandsketch.engine.solve.analysis.Analysis
     """
     bars = bar_data(analysis)
     limits = []
@@ -623,9 +623,9 @@ def _nice_step(span: float, most: int) -> float:
 
 
 def histogram_axis(hist) -> HistogramAxis:
-    """Span and tick labels for the value axis of ``hist`` (an :class:`engine.tolerance.Histogram`).
+    """Span and tick labels for the value axis of ``hist`` (an :class:`bandsketch.engine.advise.tolerance.Histogram`).
 
-    Labels use :func:`engine.values.format_value` with as many digits as it takes for
+    Labels use :func:`bandsketch.engine.core.values.format_value` with as many digits as it takes for
     neighbouring ticks to read differently.
     """
     marks = [float(hist.edges[0]), float(hist.edges[-1])] + [v for v, _ in hist.target_lines]

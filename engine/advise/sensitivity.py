@@ -26,12 +26,12 @@ from typing import Mapping
 
 import numpy as np
 
-from .analysis import midband_states
-from .bands import HIGH, LOW
-from .elements import Capacitor, Inductor, Resistor
-from .mna import build_system
+from ..solve.analysis import midband_states
+from ..solve.bands import HIGH, LOW
+from ..network.elements import Capacitor, Inductor, Resistor
+from ..solve.mna import build_system
 from .partvalues import PartValue, parametric_system, part_values
-from .timeconstants import port_columns, port_weights
+from ..solve.timeconstants import port_columns, port_weights
 
 FIGURES = ("high_exact", "high_estimate", "low_exact", "low_estimate", "gain")
 """The figures a :class:`Sensitivity` row holds, by attribute name."""
@@ -177,8 +177,8 @@ def sensitivities(circuit, analysis) -> Sensitivities:
 
     Parameters
     ----------
-    circuit : engine.circuit.Circuit
-    analysis : engine.analysis.Analysis
+    circuit : bandsketch.engine.network.circuit.Circuit
+    analysis : bandsketch.engine.solve.analysis.Analysis
         Its analysis (bands, exact corners).
 
     Returns

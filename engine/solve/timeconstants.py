@@ -18,8 +18,8 @@ import scipy.linalg as la
 import scipy.sparse as sp
 import scipy.sparse.linalg as spla
 
-from .elements import Capacitor, Inductor
-from .errors import CircuitError
+from ..network.elements import Capacitor, Inductor
+from ..core.errors import CircuitError
 
 FULL_MATRIX_LIMIT = 1000
 """Up to this many ports the whole port matrix is formed (b2, exact time constants);
@@ -34,7 +34,7 @@ def port_columns(system, elements) -> sp.csc_matrix:
 
     Parameters
     ----------
-    system : engine.mna.MnaSystem
+    system : bandsketch.engine.solve.mna.MnaSystem
         Equations in which every capacitor named is left out (open) and every inductor
         named is a branch (it is not opened).
     elements : sequence of Capacitor or Inductor

@@ -17,7 +17,7 @@ from typing import Mapping
 import numpy as np
 import scipy.sparse as sp
 
-from .elements import CCCS, CCVS, VCCS, VCVS, Capacitor, Inductor, ISource, Resistor, VSource
+from ..network.elements import CCCS, CCVS, VCCS, VCVS, Capacitor, Inductor, ISource, Resistor, VSource
 
 SHORT, OPEN = "short", "open"
 
@@ -120,8 +120,8 @@ def build_system(circuit, states: Mapping[str, str] | None = None) -> MnaSystem:
 
     Parameters
     ----------
-    circuit : engine.circuit.Circuit
-        The network, already validated (see :func:`engine.validate.validate`).
+    circuit : bandsketch.engine.network.circuit.Circuit
+        The network, already validated (see :func:`bandsketch.engine.network.validate.validate`).
     states : Mapping[str, str], optional
         Capacitor or inductor name -> ``"short"`` (a 0-V branch) or ``"open"`` (left out).
         Elements not named keep their reactance.

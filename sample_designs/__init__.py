@@ -1,0 +1,1 @@
+"""The sample designs that ship with Bandsketch (invented scenarios; JSON design files)."""
