@@ -19,7 +19,7 @@ maximum resident set size, which includes the interpreter and numpy/scipy, about
   O(n) per point) with its error against the direct solve.
 - ``edit→view``: median time from a value edit to the bars, Bode plot and verdict showing the
   new analysis, on each sample and a generated 305-part design (tests/benchmarks/bench_views.py).
-- ``start-up``: ``python -m app SAMPLE --screenshot`` end to end (it waits 300 ms to settle
+- ``start-up``: ``python -m bandsketch SAMPLE --screenshot`` end to end (it waits 300 ms to settle
   before grabbing), and the time from launching the interpreter to the window's first paint.
 """
 
@@ -278,8 +278,8 @@ def main(argv) -> int:
         best, peak = float("inf"), 0.0
         for _ in range(1 if "--quick" in argv else 3):
             t0 = time.perf_counter()
-            proc = subprocess.run([sys.executable, "-c", "import resource, runpy, sys; sys.argv = ['app'] + sys.argv[1:];"
-                                   "\ntry:\n    runpy.run_module('app', run_name='__main__')\nexcept SystemExit as e:\n"
+            proc = subprocess.run([sys.executable, "-c", "import resource, runpy, sys; sys.argv = ['bandsketch'] + sys.argv[1:];"
+                                   "\ntry:\n    runpy.run_module('bandsketch', run_name='__main__')\nexcept SystemExit as e:\n"
                                    "    print(resource.getrusage(resource.RUSAGE_SELF).ru_maxrss, file=sys.stderr);"
                                    " raise", sample, "--screenshot", str(shot)],
                                   cwd=ROOT, env=env, capture_output=True, text=True, timeout=300)
@@ -288,7 +288,7 @@ def main(argv) -> int:
                 raise RuntimeError(f"screenshot failed: {proc.stderr[-2000:]}")
             best = min(best, took)
             peak = max(peak, int(proc.stderr.strip().splitlines()[-1]) / 1024)
-        row("start-up: python -m app SAMPLE --screenshot", SAMPLES[0].stem, fmt_s(best),
+        row("start-up: python -m bandsketch SAMPLE --screenshot", SAMPLES[0].stem, fmt_s(best),
             "to the PNG written, incl. 300 ms settle", peak)
         r = run_child("paint", sample, f"{time.time():.6f}")
         row("start-up: launch to first paint", SAMPLES[0].stem, fmt_s(r["seconds"]),
