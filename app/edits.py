@@ -307,6 +307,12 @@ def edit_field(doc: Document, name: str, key: str, text: str) -> Patch:
     return Patch(parts={name: (p, p.with_params(**{key: text}))})
 
 
+def set_sourcing(doc: Document, name: str, **changes: str) -> Patch:
+    """Set a part's knob status, E series or tolerance text (``knob=``, ``series=``, ``tolerance=``)."""
+    p = doc.parts[name]
+    return Patch(parts={name: (p, p.with_sourcing(**changes))})
+
+
 def set_input(doc: Document, name: str | None) -> Patch:
     """Choose the source that carries the signal (or none)."""
     return Patch(meta={"input_source": (doc.input_source, name)})

@@ -9,7 +9,8 @@ from PySide6.QtCore import QEvent, QMimeData, Qt
 from PySide6.QtGui import QAction, QGuiApplication, QKeySequence, QUndoStack
 from PySide6.QtWidgets import QDockWidget, QLabel, QMainWindow, QScrollArea, QSplitter, QTabWidget, QWidget
 
-from bandsketch.engine.design.designfile import document_from_dict, document_to_dict, load_design, save_design
+from bandsketch.engine.design.designfile import (FORMAT_VERSION, document_from_dict, document_to_dict, load_design,
+                                                 save_design)
 from bandsketch.engine.design.document import Document
 from bandsketch.engine.core.errors import DesignFileError
 from bandsketch.engine.design.parts import GRID
@@ -424,6 +425,10 @@ class MainWindow(QMainWindow):
                                f"{exc}\n\nThe design on screen has not been changed.")
             return False
         self.set_document(doc, str(path))
+        if doc.read_version is not None and doc.read_version < FORMAT_VERSION:
+            self.statusBar().showMessage(
+                f"Read {Path(path).name}, a version {doc.read_version} design file; it reads unchanged, "
+                f"and saving writes version {FORMAT_VERSION} (which older Bandsketch cannot open)", 10000)
         preferences.add_recent(str(path))
         if self.keeper:
             self.keeper.discard()

@@ -14,6 +14,9 @@ from PySide6.QtWidgets import (QCheckBox, QComboBox, QFormLayout, QGroupBox, QLa
 from bandsketch.engine.design.designfile import MAX_TEXT
 from bandsketch.engine.design.document import Change, Document
 from bandsketch.engine.design.parts import KINDS, Field
+from bandsketch.engine.design.sourcing import DEFAULT_SERIES, SERIES_NAMES, tolerance_fraction
+from bandsketch.engine.advise.knobs import has_device_fields, is_design_choice
+from bandsketch.engine.advise.tolerance import DEFAULT_TOLERANCES
 from bandsketch.engine.core.values import format_value
 
 from . import edits
@@ -185,7 +188,7 @@ class PropertiesPanel(QWidget):
         p = self.doc.parts[self.part_name]
         sensed = (tuple(sorted(self.doc.parts)), p.params.get("sensed")) if p.kind in ("cccs", "ccvs") else ()
         return ("part", p.kind, p.params.get("mode"), p.params.get("polarity"), sensed,
-                self.doc.input_source == p.name, self.doc.band_pins.get(p.name))
+                self.doc.input_source == p.name, self.doc.band_pins.get(p.name), p.sourcing)
 
     def _rebuild(self) -> None:
         if self._body is not None:
@@ -285,12 +288,70 @@ class PropertiesPanel(QWidget):
             band.currentIndexChanged.connect(lambda i: self.editor.patch(
                 edits.pin_band(self.doc, self.part_name, band.itemData(i)), "Pin band"))
             form.addRow("Sets band", band)
+        self._sourcing_group(part, outer)
         if part.kind in ("bjt", "mosfet"):
             group = QGroupBox("Derived (read-only)")
             self._derived = QFormLayout(group)
             outer.addWidget(group)
             self._refresh_derived()
         outer.addStretch(1)
+
+    def _sourcing_group(self, part, outer) -> None:
+        """Whether the advisor may change the part, its E series and its tolerance."""
+        numeric = [f for f in KINDS[part.kind].fields if f.unit not in ("choice", "name", "net")]
+        if not numeric:
+            return
+        group = QGroupBox("Advisor and tolerance")
+        form = QFormLayout(group)
+        outer.addWidget(group)
+        chosen = any(is_design_choice(part.kind, f.key) for f in numeric)
+        options = [("", "Yes: a value I choose" if chosen else "No: the device is given")]
+        if has_device_fields(part.kind):
+            options.append(("yes", "Yes: I can choose another device"))
+        options.append(("no", "No: hold it fixed (given to me)"))
+        knob = QComboBox()
+        knob.setObjectName("sourcing_knob")
+        knob.setToolTip("Whether the advisor may suggest another value for this part. Device physics "
+                        "(β, V_A, f_T, C_μ, A₀ ...) is offered only if you can choose another device.")
+        for key, text in options:
+            knob.addItem(text, key)
+        knob.setCurrentIndex(max(0, knob.findData(part.sourcing.knob)))
+        knob.currentIndexChanged.connect(lambda i: self._set_sourcing("knob", knob.itemData(i), "knob status"))
+        form.addRow("Advisor may change it", knob)
+        if part.kind in DEFAULT_SERIES:
+            series = QComboBox()
+            series.setObjectName("sourcing_series")
+            series.addItem(f"{DEFAULT_SERIES[part.kind]} (default for the kind)", "")
+            for name in SERIES_NAMES:
+                series.addItem(name, name)
+            series.setCurrentIndex(max(0, series.findData(part.sourcing.series)))
+            series.currentIndexChanged.connect(lambda i: self._set_sourcing("series", series.itemData(i), "E series"))
+            form.addRow("Bought from", series)
+        if len(numeric) == 1:
+            default = DEFAULT_TOLERANCES.get((part.kind, numeric[0].key))
+            entry = _Entry(part.sourcing.tolerance, self._set_tolerance, self.theme)
+            entry.setObjectName("sourcing_tolerance")
+            entry.edit.setPlaceholderText(f"±{default[0]:.0%} by kind" if default else "0 % (ideal)")
+            entry.show_verdict(True, "")
+            form.addRow("Tolerance ±", entry)
+        elif part.kind in ("bjt", "mosfet", "opamp"):
+            note = QLabel("Its values keep their tolerances by kind (the report lists each with its source).")
+            note.setWordWrap(True)
+            form.addRow(note)
+
+    def _set_sourcing(self, key: str, value: str, what: str) -> None:
+        part = self.doc.parts[self.part_name]
+        if getattr(part.sourcing, key) != value:
+            self.editor.patch(edits.set_sourcing(self.doc, part.name, **{key: value}), f"Set {part.name} {what}")
+
+    def _set_tolerance(self, entry: _Entry, text: str) -> None:
+        try:
+            frac = tolerance_fraction(text, self.part_name)
+        except ValueError as exc:
+            entry.show_verdict(False, getattr(exc, "message", str(exc)))
+            return
+        entry.show_verdict(True, "" if frac is None else f"±{100 * frac:g} %")
+        self._set_sourcing("tolerance", text.strip(), "tolerance")
 
     def _choice(self, part, f: Field) -> QComboBox:
         box = QComboBox()

@@ -1,11 +1,11 @@
 """IEC 60063 preferred values (the E series) and the standard value nearest a wanted one.
 
-IEC 60063:2015 lists, per decade, 12 values for the E12 series, 24 for E24, 48 for E48 and
-96 for E96. E12 and E24 are historic two-digit tables that the rule below does not
-reproduce (2.7, 3.3, 3.9, 4.7, 8.2 ... are not 10^(i/N) rounded), so they are written out.
-E48 and E96 follow the rule "10^(i/N) rounded to three significant figures" throughout;
-the one exception the standard makes to that rule is in E192 (9.20 where the rule gives
-9.19), a series this module does not offer. The tables here were written from memory and
+IEC 60063:2015 lists, per decade, 3 values for the E3 series, 6 for E6, 12 for E12, 24 for
+E24, 48 for E48, 96 for E96 and 192 for E192. E3 to E24 are historic two-digit tables that
+the rule below does not reproduce (2.7, 3.3, 3.9, 4.7, 8.2 ... are not 10^(i/N) rounded),
+so they are written out; E3 and E6 are every fourth and every second E12 value. E48, E96
+and E192 follow the rule "10^(i/N) rounded to three significant figures" throughout, but
+for the one exception the standard makes, in E192 (9.20 where the rule gives 9.19). The tables here were written from memory and
 cross-checked against several independent public copies of the standard's lists; the
 standard's own text was not at hand.
 """
@@ -37,11 +37,11 @@ E96 = (1.00, 1.02, 1.05, 1.07, 1.10, 1.13, 1.15, 1.18, 1.21, 1.24, 1.27, 1.30,
 E48 = E96[::2]
 """The E48 series (±2 % parts): every other E96 value, as IEC 60063:2015 lists it."""
 
-SERIES = {"E12": E12, "E24": E24, "E48": E48, "E96": E96}
-"""Series name -> one decade of mantissas in [1, 10), ascending."""
+E6 = E12[::2]
+"""The E6 series (±20 % parts): every other E12 value, as IEC 60063:2015 lists it."""
 
-SERIES_TOLERANCE = {"E12": 0.10, "E24": 0.05, "E48": 0.02, "E96": 0.01}
-"""The tolerance each series is usually bought with (fraction); IEC 60063:2015 pairs them."""
+E3 = E12[::4]
+"""The E3 series (above ±20 %): every fourth E12 value, as IEC 60063:2015 lists it."""
 
 
 def rule_values(n: int) -> tuple:
@@ -59,6 +59,16 @@ def rule_values(n: int) -> tuple:
     """
     # Integers in hundredths avoid a float landing a hair below a rounding boundary.
     return tuple(int(math.floor(100 * 10 ** (i / n) + 0.5)) / 100 for i in range(n))
+
+
+E192 = tuple(9.20 if v == 9.19 else v for v in rule_values(192))
+"""The E192 series (±0.5 % parts and better): the rule with the standard's one exception."""
+
+SERIES = {"E3": E3, "E6": E6, "E12": E12, "E24": E24, "E48": E48, "E96": E96, "E192": E192}
+"""Series name -> one decade of mantissas in [1, 10), ascending."""
+
+SERIES_TOLERANCE = {"E3": 0.40, "E6": 0.20, "E12": 0.10, "E24": 0.05, "E48": 0.02, "E96": 0.01, "E192": 0.005}
+"""The tolerance each series is usually bought with (fraction); IEC 60063:2015 pairs them."""
 
 
 def _mantissas(series: str) -> np.ndarray:
@@ -79,7 +89,7 @@ def values_between(series: str, lo: float, hi: float) -> np.ndarray:
     Parameters
     ----------
     series : str
-        ``"E12"``, ``"E24"``, ``"E48"`` or ``"E96"``.
+        ``one of :data:`SERIES`.
     lo, hi : float
         The range, in the part's unit (Ω, F, H ...); both positive.
     """
@@ -105,7 +115,7 @@ def nearest(value: float, series: str) -> float:
     value : float
         Positive value in SI units.
     series : str
-        ``"E12"``, ``"E24"``, ``"E48"`` or ``"E96"``.
+        ``one of :data:`SERIES`.
 
     Returns
     -------
@@ -126,7 +136,7 @@ def nearest_meeting(value: float, series: str, meets: Callable[[float], bool], d
     value : float
         The exact value that just meets the target (SI units).
     series : str
-        ``"E12"``, ``"E24"``, ``"E48"`` or ``"E96"``.
+        ``one of :data:`SERIES`.
     meets : callable
         ``meets(x) -> bool``: whether the design with this part at ``x`` meets the target.
     direction : int

@@ -17,12 +17,11 @@ from scipy.optimize import brentq
 
 from . import eseries
 from ..solve.analysis import analyze
-from ..design.netlist import given_from_params
 from ..design.document import Document
 from ..core.errors import BadValueError, Cancelled, CircuitError
-from ..design.netlist import NO_ELEMENT, design_to_circuit
-from ..design.parts import KINDS
+from ..design.netlist import design_to_circuit
 from ..core.values import format_value, parse_value
+from .knobs import Knob, knobs
 
 DEFAULT_GAIN_TOLERANCE_DB = 1.0
 """The gain window when a gain target has no tolerance: ±1 dB (common practice, no source)."""
@@ -292,71 +291,6 @@ SEARCH_DECADES = 2.0
 """How far a part's value is searched: from 1/100 to 100 times its present value."""
 _ROOT_XTOL = 1e-5
 """brentq's tolerance on ln(value): the root is found to 0.001 %."""
-_STANDARD_FIELDS = {"resistor": "Ω", "capacitor": "F", "inductor": "H"}
-"""Kinds whose value is bought from an IEC 60063 series."""
-_SKIP_FIELDS = {"temp"}
-"""Fields that are conditions of use, not a design choice (the temperature)."""
-_PARSER_UNITS = {"Ω", "F", "H", "S", "V/V", "A/A", "V", "A", "Hz", "K"}
-
-
-@dataclass(frozen=True)
-class Knob:
-    """A field of a part that the designer can set to a number.
-
-    Attributes
-    ----------
-    part : str
-        The part's name.
-    key : str
-        The field's key (``"value"``, ``"ic"``, ``"gm"`` ...).
-    label : str
-        How a table names it (``"RC"``, ``"Q1 I_C"``).
-    unit : str
-        The field's unit (``"Ω"``, ``"A"``, ``""`` for β).
-    nominal : float
-        The value the field holds now, SI units (signed for a gain).
-    standard : bool
-        Whether the value is bought from an E series (resistors, capacitors, inductors).
-    """
-
-    part: str
-    key: str
-    label: str
-    unit: str
-    nominal: float
-    standard: bool
-
-
-def knobs(doc) -> tuple:
-    """Every numeric field of ``doc`` that holds a usable value and that a design can change.
-
-    Transistor blocks offer the fields of their chosen model mode; empty optional fields
-    (an absent r_o) and the temperature are left out.
-    """
-    out = []
-    for part in doc.parts.values():
-        if part.kind in NO_ELEMENT:
-            continue
-        kind = KINDS[part.kind]
-        active = given_from_params(part.kind, part.params) if part.kind in ("bjt", "mosfet", "opamp") else part.params
-        for f in kind.fields:
-            if f.unit in ("choice", "name", "net") or f.key in _SKIP_FIELDS or f.key not in active:
-                continue
-            text = part.params.get(f.key, "").strip()
-            if not text:
-                continue
-            try:
-                value = parse_value(text, unit=f.unit if f.unit in _PARSER_UNITS else None, part=part.name,
-                                    field=f.label, allow_negative=f.allow_negative, allow_zero=True)
-            except BadValueError:
-                continue
-            if value == 0 or not math.isfinite(value):
-                continue
-            label = part.name if f.key == "value" else f"{part.name} {f.label}"
-            out.append(Knob(part.name, f.key, label, f.unit, value, part.kind in _STANDARD_FIELDS))
-    return tuple(out)
-
-
 def with_field(doc, part: str, key: str, text: str):
     """A copy of ``doc`` with one field's text changed (the original is not touched)."""
     copy = Document(doc.title)
@@ -498,7 +432,7 @@ def _rounded_toward(x: float, passes) -> str | None:
     return None
 
 
-def values_that_meet(doc, target: str, targets: Targets, series: str = "E24", *,
+def values_that_meet(doc, target: str, targets: Targets, series: str | None = None, *,
                      progress=None, cancel=None) -> tuple:
     """For each field of the design, the single value that alone meets one failing target.
 
@@ -510,9 +444,9 @@ def values_that_meet(doc, target: str, targets: Targets, series: str = "E24", *,
         ``"f_high_min"``, ``"f_low_max"`` or ``"gain"``.
     targets : Targets
         The design's targets (:func:`parse_targets`).
-    series : str
-        The IEC 60063 series to pick resistors, capacitors and inductors from
-        (``"E12"``, ``"E24"``, ``"E48"``, ``"E96"``).
+    series : str, optional
+        The IEC 60063 series to pick every resistor, capacitor and inductor from
+        (``"E12"``, ``"E24"`` ...); by default each part's own (its sourcing's, or by kind).
     progress : callable, optional
         ``progress(done, total)`` after each field.
     cancel : callable, optional
@@ -556,14 +490,14 @@ def _remedy(doc, knob: Knob, target: str, targets: Targets, series: str) -> Reme
 
     standard, used = None, None
     if knob.standard:
-        used = series
+        used = series or knob.series
         if target == "gain":
-            near = eseries.nearest(exact, series)
+            near = eseries.nearest(exact, used)
             standard = near if passes(near) else None
         else:
             # Which side of the root meets the target: the side g grows into for f_H, falls into for f_L.
             up = fig.ok(fig.g(exact * 1.001, False))
-            standard = eseries.nearest_meeting(exact, series, passes, +1 if up else -1)
+            standard = eseries.nearest_meeting(exact, used, passes, +1 if up else -1)
         apply_value = standard
     else:
         apply_value = _rounded_toward(exact, passes)
@@ -572,6 +506,6 @@ def _remedy(doc, knob: Knob, target: str, targets: Targets, series: str) -> Reme
         f"the estimate would say {value_text(estimate, knob.unit)}"
     text = f"{knob.label} = {value_text(exact, knob.unit, 4)} meets it ({est_text})"
     if knob.standard:
-        text += (f"; {series}: {value_text(standard, knob.unit)}" if standard is not None
-                 else f"; no {series} value near it meets it")
+        text += (f"; {used}: {value_text(standard, knob.unit)}" if standard is not None
+                 else f"; no {used} value near it meets it")
     return Remedy(target, knob, exact, estimate, standard, used, apply_text, text)

@@ -32,6 +32,7 @@ from ..solve.analysis import analyze, midband_states
 from ..network.elements import Capacitor, Inductor
 from ..core.errors import Cancelled, CircuitError
 from ..design.netlist import design_to_circuit
+from ..design.sourcing import tolerance_fraction
 from .partvalues import PartValue, coefficients_for, parametric_system, part_values
 from .targets import Targets, parse_targets
 from ..core.values import format_value
@@ -125,11 +126,39 @@ def default_tolerances(circuit, overrides: Mapping[str, float] | None = None) ->
     for pv in part_values(circuit):
         tol, source = DEFAULT_TOLERANCES.get((pv.kind, pv.key), (0.0, IDEAL_SOURCE))
         if pv.element in overrides:
-            tol, source = float(overrides[pv.element]), "set by the designer"
+            tol, source = float(overrides[pv.element]), "set for this part"
         if not (0 <= tol < 1):
             raise ValueError(f"{pv.label}: a tolerance of {tol:.0%} is not usable; give 0 to 99 %")
         out.append(Tolerance(pv, tol, source))
     return tuple(out)
+
+
+def design_tolerances(doc, circuit) -> tuple:
+    """The tolerances of a design: each part's own where its sourcing gives one, else by kind.
+
+    Parameters
+    ----------
+    doc : bandsketch.engine.design.document.Document
+    circuit : bandsketch.engine.network.circuit.Circuit
+        ``doc`` as a circuit (:func:`bandsketch.engine.design.netlist.design_to_circuit`).
+
+    Returns
+    -------
+    tuple of Tolerance
+        A part's tolerance applies to its one value (a resistor's resistance ...); a
+        transistor's or op-amp's values keep their defaults by kind.
+
+    Raises
+    ------
+    BadValueError
+        A part's tolerance text is not a percentage; the message names the part.
+    """
+    overrides = {}
+    for part in doc.parts.values():
+        frac = tolerance_fraction(part.sourcing.tolerance, part.name)
+        if frac is not None and part.name in circuit.elements:
+            overrides[part.name] = frac
+    return default_tolerances(circuit, overrides)
 
 
 def _midband_states(circuit, analysis) -> dict:
@@ -533,11 +562,11 @@ def spread_to_dict(spread: Spread) -> dict:
 
 
 def spread_of_design(doc, samples: int = 10_000, seed: int = 1, **kw) -> Spread:
-    """:func:`monte_carlo` of a design document with its targets and default tolerances."""
+    """:func:`monte_carlo` of a design document with its targets and its parts' tolerances."""
     circuit = design_to_circuit(doc)
     analysis = analyze(circuit, bands=dict(doc.band_pins))
-    return monte_carlo(circuit, analysis, samples=samples, seed=seed, targets=parse_targets(doc.targets),
-                       gain_unit=analysis.gain_unit, **kw)
+    return monte_carlo(circuit, analysis, design_tolerances(doc, circuit), samples=samples, seed=seed,
+                       targets=parse_targets(doc.targets), gain_unit=analysis.gain_unit, **kw)
 
 
 def spread_summary(doc, samples: int = 10_000, seed: int = 1) -> dict:

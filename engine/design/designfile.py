@@ -1,13 +1,20 @@
 """Reading and writing design files: JSON data only, checked whole before anything is used.
 
-Format (``"format": "bandsketch-design"``, ``"version": 1``)::
+Format (``"format": "bandsketch-design"``, ``"version": 2``)::
 
-    {"format": "bandsketch-design", "version": 1,
+    {"format": "bandsketch-design", "version": 2,
      "title": "...", "description": "...",
      "parts": [{"kind": "resistor", "name": "R1", "x": 0, "y": 0,
-                "rotation": 0, "mirror": false, "params": {"value": "4k7"}}],
+                "rotation": 0, "mirror": false, "params": {"value": "4k7"},
+                "sourcing": {"series": "E96", "tolerance": "1 %"}}],
      "wires": [{"points": [[0, 40], [0, 80], [60, 80]]}],
      "input": "Vsig", "bands": {"Ce": "low"}, "targets": {"f_high_min": "1M"}}
+
+Version 2 added each part's ``sourcing`` (knob status, E series, tolerance; see
+:mod:`bandsketch.engine.design.sourcing`), written only where it differs from the defaults.
+A version 1 file has none and reads unchanged, every part at its defaults; the document
+records the version it was read from (:attr:`Document.read_version`) so the window can say
+that saving writes version 2.
 
 A file is either loaded intact or refused with a :class:`DesignFileError` naming what is
 wrong; a partly loaded document never reaches the caller. Saving writes a temporary file
@@ -26,9 +33,11 @@ from pathlib import Path
 from .document import BANDS, NAME_RE, TARGET_KEYS, Document, Part, Wire
 from ..core.errors import DesignFileError
 from .parts import KINDS, ROTATIONS
+from .sourcing import KNOB_CHOICES, SERIES_NAMES, Sourcing, tolerance_fraction
+from ..core.errors import BadValueError
 
 FORMAT_NAME = "bandsketch-design"
-FORMAT_VERSION = 1
+FORMAT_VERSION = 2
 MAX_FILE_BYTES = 8 * 1024 * 1024
 """Larger files are refused before parsing: no hand-sized design comes near it."""
 MAX_PARTS = 20000
@@ -43,16 +52,39 @@ def document_to_dict(doc: Document) -> dict:
         "version": FORMAT_VERSION,
         "title": doc.title,
         "description": doc.description,
-        "parts": [
-            {"kind": p.kind, "name": p.name, "x": p.x, "y": p.y, "rotation": p.rotation,
-             "mirror": p.mirror, "params": dict(p.params)}
-            for p in doc.parts.values()
-        ],
+        "parts": [_part_dict(p) for p in doc.parts.values()],
         "wires": [{"points": [list(pt) for pt in w.points]} for w in doc.wires.values()],
         "input": doc.input_source,
         "bands": dict(doc.band_pins),
         "targets": dict(doc.targets),
     }
+
+
+def _part_dict(p: Part) -> dict:
+    out = {"kind": p.kind, "name": p.name, "x": p.x, "y": p.y, "rotation": p.rotation,
+           "mirror": p.mirror, "params": dict(p.params)}
+    if not p.sourcing.is_default():
+        out["sourcing"] = {k: v for k, v in (("knob", p.sourcing.knob), ("series", p.sourcing.series),
+                                             ("tolerance", p.sourcing.tolerance)) if v}
+    return out
+
+
+def _sourcing(raw, where: str, version: int) -> Sourcing:
+    if version < 2:
+        raise _fail(where, "has sourcing, which version 1 files do not hold; set the version to 2")
+    raw = _object(raw, f"{where} sourcing", {"knob", "series", "tolerance"}, set())
+    knob = _text(raw.get("knob", ""), f"{where} sourcing knob")
+    if knob not in KNOB_CHOICES:
+        raise _fail(where, f"sourcing knob {knob!r} is not one of {', '.join(repr(k) for k in KNOB_CHOICES)}")
+    series = _text(raw.get("series", ""), f"{where} sourcing series")
+    if series and series not in SERIES_NAMES:
+        raise _fail(where, f"sourcing series {series!r} is not one of {', '.join(SERIES_NAMES)}")
+    tolerance = _text(raw.get("tolerance", ""), f"{where} sourcing tolerance")
+    try:
+        tolerance_fraction(tolerance)
+    except BadValueError as exc:
+        raise _fail(where, exc.message) from None
+    return Sourcing(knob, series, tolerance)
 
 
 def _fail(where: str, what: str) -> DesignFileError:
@@ -97,9 +129,9 @@ def _object(value, where: str, keys: set, required: set) -> dict:
     return value
 
 
-def _part(raw, i: int) -> Part:
+def _part(raw, i: int, version: int) -> Part:
     where = f"part {i + 1}"
-    raw = _object(raw, where, {"kind", "name", "x", "y", "rotation", "mirror", "params"},
+    raw = _object(raw, where, {"kind", "name", "x", "y", "rotation", "mirror", "params", "sourcing"},
                   {"kind", "name", "x", "y"})
     kind = _text(raw["kind"], f"{where} kind")
     if kind not in KINDS:
@@ -123,8 +155,9 @@ def _part(raw, i: int) -> Part:
             raise _fail(where, f"{KINDS[kind].title} has no field {key!r}")
         _text(value, f"{where} field {key}")
     full = {**KINDS[kind].default_params(), **params}
+    sourcing = _sourcing(raw["sourcing"], where, version) if "sourcing" in raw else Sourcing()
     return Part(kind, name, _int(raw["x"], f"{where} x"), _int(raw["y"], f"{where} y"),
-                rotation, mirror, full)
+                rotation, mirror, full, sourcing)
 
 
 def document_from_dict(data, source: str = "design") -> Document:
@@ -157,6 +190,7 @@ def _document_from_dict(data) -> Document:
     if version < 1:
         raise _fail("version", f"{version} is not a valid version")
     doc = Document(_text(data.get("title", "Untitled design"), "title"))
+    doc.read_version = version
     doc.description = _text(data.get("description", ""), "description")
     parts = data["parts"]
     if not isinstance(parts, list):
@@ -164,7 +198,7 @@ def _document_from_dict(data) -> Document:
     if len(parts) > MAX_PARTS:
         raise _fail("parts", f"more than {MAX_PARTS} parts")
     for i, raw in enumerate(parts):
-        part = _part(raw, i)
+        part = _part(raw, i, version)
         problem = doc.name_problem(part.name)
         if problem:
             raise _fail(f"part {i + 1}", problem)

@@ -15,6 +15,7 @@ from typing import Mapping
 
 from ..core.events import Signal
 from .parts import KINDS, ROTATIONS, pin_positions
+from .sourcing import Sourcing
 
 NAME_RE = re.compile(r"[A-Za-z][A-Za-z0-9_]*")
 """What a part name may look like (whole, with ``fullmatch``): a letter, then letters, digits or _."""
@@ -44,6 +45,8 @@ class Part:
         Flipped left-to-right before rotating.
     params : Mapping[str, str]
         Field texts exactly as the user typed them (``"4k7"``); parsed only when analysed.
+    sourcing : Sourcing
+        Whether the advisor may change the part, its E series and its tolerance.
     """
 
     kind: str
@@ -53,6 +56,7 @@ class Part:
     rotation: int = 0
     mirror: bool = False
     params: Mapping[str, str] = field(default_factory=dict)
+    sourcing: Sourcing = Sourcing()
 
     def __post_init__(self):
         if self.kind not in KINDS:
@@ -64,6 +68,10 @@ class Part:
     def with_params(self, **changes: str) -> "Part":
         """A copy with some field texts changed."""
         return replace(self, params={**self.params, **changes})
+
+    def with_sourcing(self, **changes: str) -> "Part":
+        """A copy with some sourcing choices changed (``knob``, ``series``, ``tolerance``)."""
+        return replace(self, sourcing=replace(self.sourcing, **changes))
 
     def pins(self) -> dict:
         """Pin name -> sheet position (x, y) in scene units."""
@@ -110,6 +118,8 @@ class Document:
         self.input_source: str | None = None
         self._band_pins: dict[str, str] = {}
         self._targets: dict[str, str] = {}
+        self.read_version: int | None = None
+        """The design-file format version the design was read from (None: not read from a file)."""
 
     # -- reading -------------------------------------------------------------
     @property
@@ -249,6 +259,7 @@ class Document:
         self.input_source = other.input_source
         self._band_pins = dict(other._band_pins)
         self._targets = dict(other._targets)
+        self.read_version = other.read_version
         self.changed.emit(Change("reset"))
 
     def finish_edit(self) -> None:

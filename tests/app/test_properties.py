@@ -137,3 +137,24 @@ def test_design_notes_longer_than_a_file_holds_are_refused_with_the_reason(qtbot
     notes.setFocus()
     notes.setPlainText("x" * 201)
     assert window.doc.description == "" and "200 characters" in notes.note.text()
+
+
+def test_sourcing_is_edited_in_properties_as_undoable_steps(qtbot, window):
+    from bandsketch.app.properties import _Entry
+
+    r = place(qtbot, window, "Resistor", 100, 100)
+    box = window.properties.findChild(_Entry, "sourcing_tolerance")
+    _type(qtbot, box.edit, "1 %")
+    assert window.doc.parts[r].sourcing.tolerance == "1 %"
+    box = window.properties.findChild(_Entry, "sourcing_tolerance")
+    _type(qtbot, box.edit, "five")
+    assert box.invalid and "not a percentage" in box.note.text()
+    assert window.doc.parts[r].sourcing.tolerance == "1 %"
+    series = window.properties.findChild(QComboBox, "sourcing_series")
+    series.setCurrentIndex(series.findData("E96"))
+    knob = window.properties.findChild(QComboBox, "sourcing_knob")
+    knob.setCurrentIndex(knob.findData("no"))
+    assert (window.doc.parts[r].sourcing.series, window.doc.parts[r].sourcing.knob) == ("E96", "no")
+    for expected in (("E96", ""), ("", "")):
+        window.stack.undo()
+        assert (window.doc.parts[r].sourcing.series, window.doc.parts[r].sourcing.knob) == expected
