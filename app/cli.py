@@ -10,6 +10,7 @@ only for the window, so the analysis runs where no Qt is installed or wanted.
 from __future__ import annotations
 
 import argparse
+from dataclasses import replace
 import json
 import os
 import sys
@@ -51,11 +52,16 @@ def _analyze_parser() -> argparse.ArgumentParser:
 def _analyze(args) -> int:
     from bandsketch.engine import analyze
     from bandsketch.engine.design.designfile import load_design
-    from bandsketch.engine.design.netlist import design_to_circuit
+    from bandsketch.engine.design.netlist import design_to_circuit, shorted_parts
     from bandsketch.engine.present.summary import analysis_to_dict, format_table, write_sweep_csv
 
     doc = load_design(args.design)
     analysis = analyze(design_to_circuit(doc), bands=dict(doc.band_pins))
+    notices = tuple(p.message for p in shorted_parts(doc))
+    for notice in notices:
+        print(f"bandsketch: {args.design}: {notice}", file=sys.stderr)
+    # The sheet's notices lead the analysis's own warnings, in the table and the JSON alike.
+    analysis = replace(analysis, _warnings=notices + tuple(analysis.warnings))
     if args.json:
         print(json.dumps(analysis_to_dict(analysis), indent=1, ensure_ascii=False))
     else:

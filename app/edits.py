@@ -265,11 +265,66 @@ def _transformed(doc: Document, moved: dict) -> Patch:
 
 
 def add_part(doc: Document, part: Part) -> Patch:
-    """Place a part; the first signal source placed becomes the design's signal input."""
+    """Place a part; the first signal source placed becomes the design's signal input.
+
+    A two-pin part put down with both pins on one wire goes in series: the wire is cut
+    between the pins (see :func:`_insert_in_series`), since joining both pins to it would
+    short the part.
+    """
     patch = Patch(parts={part.name: (None, part)})
     if part.kind in ("vsource", "isource") and doc.input_source is None:
         patch.meta["input_source"] = (None, part.name)
+    pins = tuple(part.pins().values())
+    if len(pins) == 2:
+        _insert_in_series(doc, pins, patch)
     return patch
+
+
+def _along(points, pt: Point) -> float | None:
+    """How far along the polyline ``points`` the point ``pt`` lies (scene units), or None."""
+    run = 0
+    for a, b in zip(points, points[1:]):
+        inside = (a[0] == b[0] == pt[0] and min(a[1], b[1]) <= pt[1] <= max(a[1], b[1])) or \
+                 (a[1] == b[1] == pt[1] and min(a[0], b[0]) <= pt[0] <= max(a[0], b[0]))
+        if inside:
+            return run + abs(pt[0] - a[0]) + abs(pt[1] - a[1])
+        run += abs(b[0] - a[0]) + abs(b[1] - a[1])
+    return None
+
+
+def _cut(points, start: float, end: float) -> tuple:
+    """The part of the polyline ``points`` between distances ``start`` and ``end`` along it."""
+    out, run = [], 0
+    for a, b in zip(points, points[1:]):
+        length = abs(b[0] - a[0]) + abs(b[1] - a[1])
+        lo, hi = max(start, run), min(end, run + length)
+        if lo <= hi and length:
+            ux, uy = (b[0] - a[0]) // length, (b[1] - a[1]) // length
+            for t in (lo, hi):
+                pt = (a[0] + ux * (t - run), a[1] + uy * (t - run))
+                if not out or out[-1] != pt:
+                    out.append(pt)
+        run += length
+    return tuple(out)
+
+
+def _insert_in_series(doc: Document, pins, patch: Patch) -> None:
+    """Cut each wire that both ``pins`` lie on between them, leaving each pin on a wire end."""
+    wid = doc.new_wire_id()
+    for w in doc.wires.values():
+        t = [_along(w.points, pin) for pin in pins]
+        if None in t or t[0] == t[1]:
+            continue
+        lo, hi = sorted(t)
+        total = sum(abs(b[0] - a[0]) + abs(b[1] - a[1]) for a, b in zip(w.points, w.points[1:]))
+        pieces = [p for p in (_cut(w.points, 0, lo), _cut(w.points, hi, total)) if len(p) >= 2]
+        keep = [Wire(w.id, pieces[0])] if pieces else []
+        for piece in pieces[1:]:
+            keep.append(Wire(wid, piece))
+            wid += 1
+        patch.wires[w.id] = (w, keep[0] if keep else None)
+        for extra in keep[1:]:
+            patch.wires[extra.id] = (None, extra)
 
 
 def delete(doc: Document, names, wire_ids) -> Patch:

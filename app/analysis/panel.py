@@ -9,10 +9,11 @@ drawn on the sheet. A band pin, from the bars or the canvas, is an undoable edit
 from __future__ import annotations
 
 import shiboken6
-from PySide6.QtCore import QEvent, QObject, Qt
+from PySide6.QtCore import QEvent, QObject, QRectF, Qt
 from PySide6.QtWidgets import (QFileDialog, QHBoxLayout, QLabel, QMenu, QScrollArea, QSplitter,
                                QToolButton, QVBoxLayout, QWidget)
 
+from bandsketch.engine.design.netlist import Problem
 from bandsketch.engine.present.plotdata import part_of, write_curves_csv
 
 from .. import edits
@@ -104,7 +105,7 @@ class AnalysisPanel(QWidget):
         self.bars.element_clicked.connect(self.select_element)
         self.bars.pin_requested.connect(self.pin_band)
         self.bode.hovered.connect(self.hover_readout.setText)
-        self.banner.show_requested.connect(self._select_problem_parts)
+        self.banner.show_requested.connect(self.show_problem)
         self._context = _CanvasMenus(self)
         window.view.viewport().installEventFilter(self._context)
         self.refresh()
@@ -118,9 +119,9 @@ class AnalysisPanel(QWidget):
         self.outcome = outcome
         # Empty axes say nothing; the bars and the plot appear with the first result.
         self.split.setVisible(outcome.ok or outcome.problem is not None and self.good is not None)
+        self._list_problems(outcome)
         if outcome.ok:
             self.good = outcome
-            self.banner.show_problem(None)
             self.bars.show_bars(outcome.bars)
             self.bode.show_response(outcome.bode)
             self.verdict.show_verdict(outcome.verdict)
@@ -128,13 +129,10 @@ class AnalysisPanel(QWidget):
         elif outcome.problem is None:
             # An empty sheet: nothing to say and nothing to keep.
             self.good = None
-            self.banner.show_problem(None)
             self.bars.show_bars(None)
             self.bode.show_response(None)
             self.verdict.show_verdict(None)
         else:
-            self.banner.show_problem(outcome.problem, can_show=bool(outcome.problem_parts),
-                                     greyed=self.good is not None)
             for view in (self.bars, self.bode, self.verdict):
                 view.set_stale(True)
         self._follow_selection()
@@ -209,9 +207,25 @@ class AnalysisPanel(QWidget):
             if focus is not None else None
         self.overlay.show_picture(geometry, self.scene.content_rect(), self.scene.occupied())
 
-    def _select_problem_parts(self) -> None:
-        if self.outcome is not None:
-            self.scene.select([p for p in self.outcome.problem_parts if p in self.doc.parts])
+    def _list_problems(self, outcome: Outcome) -> None:
+        """Put every problem of the sheet in the banner, the one that stops the analysis first."""
+        listed = [] if outcome.doc.is_empty() else self.scene.problems
+        found = [p for p in listed if p.stops] + [p for p in listed if not p.stops]
+        if outcome.problem is not None and outcome.problem not in [p.message for p in found]:
+            found.insert(0, Problem(outcome.problem, outcome.problem_parts, outcome.problem_points))
+        self.banner.show_problems(found, greyed=outcome.problem is not None and self.good is not None)
+
+    def show_problem(self, problem: Problem) -> None:
+        """Select a problem's parts and bring it into view on the canvas."""
+        names = [p for p in problem.parts if p in self.doc.parts]
+        self.scene.select(names)
+        rect = QRectF()
+        for name in names:
+            rect = rect.united(self.scene.part_item(name).sceneBoundingRect())
+        for x, y in problem.points:
+            rect = rect.united(QRectF(x - 10, y - 10, 20, 20))
+        if not rect.isEmpty():
+            self.window.view.ensureVisible(rect, 40, 40)
 
     # -- pins -----------------------------------------------------------------------------
     def pin_band(self, name: str, band: str) -> None:

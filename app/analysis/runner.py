@@ -101,12 +101,8 @@ def analyse_design(doc: Document, generation: int = 0) -> Outcome:
     try:
         circuit = design_to_circuit(doc)
     except CircuitError:
-        problems = connectivity_problems(doc)
-        first = problems[0]
-        more = f" (and {len(problems) - 1} more problem{'s' if len(problems) > 2 else ''})" \
-            if len(problems) > 1 else ""
-        return _problem_outcome(generation, doc, nets, first.message + more, first.parts,
-                                first.points, started)
+        first = connectivity_problems(doc)[0]
+        return _problem_outcome(generation, doc, nets, first.message, first.parts, first.points, started)
     try:
         analysis = analyze(circuit, bands=dict(doc.band_pins))
     except CircuitError as exc:

@@ -4,7 +4,7 @@ and the warnings; and the banner that says why a circuit as drawn cannot be anal
 from __future__ import annotations
 
 from PySide6.QtCore import Qt, Signal
-from PySide6.QtWidgets import QFrame, QGridLayout, QHBoxLayout, QLabel, QPushButton
+from PySide6.QtWidgets import QFrame, QGridLayout, QHBoxLayout, QLabel, QSizePolicy, QToolButton, QVBoxLayout, QWidget
 
 from bandsketch.engine.present.plotdata import VerdictData
 
@@ -71,56 +71,120 @@ class VerdictStrip(Restyles, QFrame):
         self.warnings.setStyleSheet(f"color: {(c.stale if self._stale else c.selection).name()};")
 
 
+class _ProblemLine(QLabel):
+    """One listed problem; a click asks to be shown it on the sheet."""
+
+    clicked = Signal()
+
+    def __init__(self, text: str, parent=None):
+        super().__init__(text, parent)
+        self.setWordWrap(True)
+        self.setCursor(Qt.CursorShape.PointingHandCursor)
+        self.setToolTip("Show this on the sheet")
+        self.setSizePolicy(QSizePolicy.Policy.Preferred, QSizePolicy.Policy.Maximum)
+
+    def mousePressEvent(self, event):
+        if event.button() == Qt.MouseButton.LeftButton:
+            self.clicked.emit()
+        super().mousePressEvent(event)
+
+
 class ProblemBanner(QFrame):
-    """Why the circuit as drawn cannot be analysed, naming the part or node; hidden when it can.
+    """Every problem of the circuit as drawn, naming the part or node; hidden when there is none.
+
+    Collapsed, it shows the first problem and how many more there are; expanded, it lists
+    each one, and a click on one shows it on the sheet.
 
     Signals
     -------
-    show_requested()
-        The user asked to see the faulty parts on the canvas.
+    show_requested(object)
+        The user asked to see a problem (a :class:`bandsketch.engine.design.netlist.Problem`)
+        on the canvas.
     """
 
-    show_requested = Signal()
+    show_requested = Signal(object)
 
     def __init__(self, parent=None):
         super().__init__(parent)
         self._colours: ViewColours = view_colours()
-        layout = QHBoxLayout(self)
+        self._problems: list = []
+        self._note = ""
+        layout = QVBoxLayout(self)
         layout.setContentsMargins(8, 6, 8, 6)
-        self.message = QLabel()
-        self.message.setWordWrap(True)
-        self.message.setTextInteractionFlags(Qt.TextInteractionFlag.TextSelectableByMouse)
-        layout.addWidget(self.message, 1)
-        self.where = QPushButton("Show")
-        self.where.setToolTip("Select the parts at fault on the canvas")
-        self.where.clicked.connect(self.show_requested)
-        layout.addWidget(self.where)
+        layout.setSpacing(3)
+        top = QHBoxLayout()
+        self.message = _ProblemLine("")
+        self.message.setAlignment(Qt.AlignmentFlag.AlignLeft | Qt.AlignmentFlag.AlignTop)
+        self.message.clicked.connect(self._show_first)
+        top.addWidget(self.message, 1)
+        self.toggle = QToolButton()
+        self.toggle.setCheckable(True)
+        self.toggle.setToolTip("List every problem")
+        self.toggle.toggled.connect(self._fill)
+        top.addWidget(self.toggle, 0, Qt.AlignmentFlag.AlignTop)
+        layout.addLayout(top)
+        self.lines = QWidget()
+        self._lines = QVBoxLayout(self.lines)
+        self._lines.setContentsMargins(12, 0, 0, 0)
+        self._lines.setSpacing(2)
+        layout.addWidget(self.lines)
+        self.setSizePolicy(QSizePolicy.Policy.Preferred, QSizePolicy.Policy.Maximum)
         self._restyle()
         self.hide()
 
-    def show_problem(self, message: str | None, *, can_show: bool = False, greyed: bool = False) -> None:
-        """Show ``message`` (None hides the banner).
+    def _show_first(self) -> None:
+        if self._problems and not self.toggle.isChecked():
+            self.show_requested.emit(self._problems[0])
+
+    def show_problems(self, problems, *, greyed: bool = False) -> None:
+        """List ``problems`` (an empty list hides the banner).
 
         Parameters
         ----------
-        message : str or None
-            What is wrong, naming the part or node.
-        can_show : bool
-            Offer to select the parts at fault.
+        problems : list of Problem
+            What is wrong, each naming its parts and sheet points; the first is shown
+            when the banner is collapsed.
         greyed : bool
             Say that the last good result is still shown, in grey.
         """
-        if message is None:
+        self._problems = list(problems)
+        self._note = "The last result that could be analysed is shown in grey." if greyed else ""
+        if not self._problems:
             self.hide()
             return
-        note = "\nThe last result that could be analysed is shown in grey." if greyed else ""
-        self.message.setText(message + note)
-        self.where.setVisible(can_show)
+        self._fill()
         self.show()
 
+    def _fill(self) -> None:
+        n, expanded = len(self._problems), self.toggle.isChecked()
+        if expanded:
+            head = f"{n} problems; click one to see it on the sheet:"
+        else:
+            more = f" (and {n - 1} more problem{'s' if n > 2 else ''})" if n > 1 else ""
+            head = self._problems[0].message + more
+        self.message.setText(head + (f"\n{self._note}" if self._note else ""))
+        self.message.setWordWrap(not expanded)  # a wrapped label keeps a taller height
+        self.toggle.setVisible(n > 1)
+        self.toggle.setText("Hide list" if expanded else f"All {n}")
+        while self._lines.count():
+            old = self._lines.takeAt(0).widget()
+            old.hide()
+            old.deleteLater()
+        for problem in self._problems if expanded else ():
+            line = _ProblemLine(f"• {problem.message}")
+            line.clicked.connect(lambda p=problem: self.show_requested.emit(p))
+            self._lines.addWidget(line)
+        self.lines.setVisible(expanded and n > 1)
+
+    def entries(self) -> list:
+        """The problems listed, first one first."""
+        return list(self._problems)
+
     def text(self) -> str:
-        """The message shown (empty when hidden)."""
-        return "" if self.isHidden() else self.message.text()
+        """Every problem listed, one a line, and the note (empty when hidden)."""
+        if self.isHidden():
+            return ""
+        return "\n".join([p.message for p in self._problems] + ([self._note] if self._note else []))
 
     def set_colours(self, colours: ViewColours) -> None:
         """Redraw in ``colours`` (the theme changed)."""

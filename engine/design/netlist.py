@@ -181,6 +181,8 @@ class Problem:
     message: str
     parts: tuple = ()
     points: tuple = ()
+    stops: bool = True
+    """Whether it stops the analysis (False: a notice; the analysis runs and says it too)."""
 
 
 def _circuit_and_errors(doc):
@@ -239,6 +241,24 @@ def connectivity_problems(doc) -> list[Problem]:
         points = tuple(pt for node in exc.nodes for pt in nets.net_points.get(node, ()))
         parts = tuple(p for p in exc.parts if p in doc.parts)
         out.append(Problem(exc.message, parts, points))
+    return out + shorted_parts(doc, nets)
+
+
+def shorted_parts(doc, nets: Netlist | None = None) -> list[Problem]:
+    """Parts whose pins all sit on one net: each does nothing in the circuit, which is
+    almost never what was meant, so each is a notice (the analysis still runs)."""
+    nets = nets or build_netlist(doc)
+    out = []
+    for part in doc.parts.values():
+        pins = part.pins()
+        if part.kind in NO_ELEMENT or len(pins) < 2:
+            continue
+        on = {nets.pin_net[(part.name, pin)] for pin in pins}
+        if len(on) == 1:
+            which = "both pins" if len(pins) == 2 else "all its pins"
+            out.append(Problem(f"{part.name} is shorted: {which} on net {on.pop()}; "
+                               "move a pin to another net or delete the part.",
+                               (part.name,), tuple(pins.values()), stops=False))
     return out
 
 
