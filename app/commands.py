@@ -95,11 +95,17 @@ class Editor:
 
     def push(self, command: QUndoCommand, *, finished: bool = True) -> None:
         """Do ``command`` as an undoable step; ``finished=False`` while a drag is still going."""
-        if isinstance(command, PatchCommand) and command.patch.is_empty():
+        if isinstance(command, PatchCommand) and command.patch.is_empty() and not self._continues(command):
             return
         self.stack.push(command)
         if finished:
             self.doc.finish_edit()
+
+    def _continues(self, command) -> bool:
+        """Whether ``command`` is a later piece of the run on top of the stack: an empty piece
+        (a drag back to its start) must still merge, so the run comes back to nothing."""
+        top = self.stack.command(self.stack.index() - 1)
+        return isinstance(command, RunCommand) and isinstance(top, RunCommand) and top.run == command.run
 
     def patch(self, patch: Patch, text: str) -> None:
         """Do a complete gesture described by ``patch``."""

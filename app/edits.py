@@ -334,10 +334,16 @@ def delete(doc: Document, names, wire_ids) -> Patch:
                   wires={w: (doc.wires[w], None) for w in wire_ids})
     if doc.input_source in names:
         patch.meta["input_source"] = (doc.input_source, None)
-    for element, band in doc.band_pins.items():
-        if element in names:
-            patch.bands[element] = (band, None)
+    for element, band in band_pins_of(doc, names).items():
+        patch.bands[element] = (band, None)
     return patch
+
+
+def band_pins_of(doc: Document, names) -> dict:
+    """The band pins (element -> band) of parts ``names``: a part's own, and those of the
+    elements inside a block (``Q2.cmu`` belongs to ``Q2``)."""
+    names = set(names)
+    return {e: b for e, b in doc.band_pins.items() if e.split(".", 1)[0] in names}
 
 
 def add_wire(doc: Document, points) -> Patch:
@@ -428,6 +434,10 @@ def paste(doc: Document, fragment: Document, dx: int, dy: int) -> Patch:
                 params[f.key] = names[params[f.key]]
         new = replace(p, name=names[p.name], x=p.x + dx, y=p.y + dy, params=params)
         patch.parts[new.name] = (None, new)
+    for element, band in band_pins_of(fragment, names).items():
+        owner, dot, inner = element.partition(".")
+        pasted = names[owner] + dot + inner
+        patch.bands[pasted] = (doc.band_pins.get(pasted), band)
     wid = doc.new_wire_id()
     for w in fragment.wires.values():
         patch.wires[wid] = (None, Wire(wid, tuple((x + dx, y + dy) for x, y in w.points)))
@@ -442,4 +452,6 @@ def fragment_of(doc: Document, names, wire_ids) -> Document:
         frag.add_part(doc.parts[n])
     for wid in wire_ids:
         frag.add_wire(Wire(frag.new_wire_id(), doc.wires[wid].points))
+    for element, band in band_pins_of(doc, names).items():
+        frag.set_band_pin(element, band)
     return frag

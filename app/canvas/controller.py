@@ -54,6 +54,7 @@ class _Drag:
     names: list
     wire_ids: list
     delta: tuple = (0, 0)
+    moved: bool = False
 
 
 def _copy(doc: Document) -> Document:
@@ -235,9 +236,11 @@ class CanvasController(QObject):
             self.mode_changed.emit(self.mode)
             return True
         if self._drag is not None:
-            moved = self._drag.delta != (0, 0)
+            self._drag_to(pos)  # the part ends where the pointer came up
+            moved = self._drag.moved
             self._drag = None
             if moved:
+                # Out and back is a finished edit too: views saw the part leave.
                 self.editor.finish()
             return True
         if self._band_start is not None:
@@ -313,6 +316,7 @@ class CanvasController(QObject):
         if delta == d.delta:
             return
         d.delta = delta
+        d.moved = True
         patch = edits.move(d.base, d.names, d.wire_ids, *delta)
         self.editor.push(RunCommand(self.doc, patch, "Move", d.serial), finished=False)
 

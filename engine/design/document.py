@@ -193,8 +193,9 @@ class Document:
             self._parts = {(part.name if k == name else k): v for k, v in self._parts.items()}
             del self._lower[name.lower()]
             self._lower[part.name.lower()] = part.name
-            if name in self._band_pins:
-                self._band_pins[part.name] = self._band_pins.pop(name)
+            # A block's pins name its inner elements ("Q2.cmu"): they follow the block too.
+            for element in [e for e in self._band_pins if e.split(".", 1)[0] == name]:
+                self._band_pins[part.name + element[len(name):]] = self._band_pins.pop(element)
             if self.input_source == name:
                 self.input_source = part.name
         self._parts[part.name] = part

@@ -205,7 +205,8 @@ def _circuit_and_errors(doc):
     if len(probes) > 1:
         errors.append(CircuitError(f"There are {len(probes)} output probes ({', '.join(p.name for p in probes)}): "
                                    "keep one.", parts=[p.name for p in probes]))
-    elif probes:
+    if probes:
+        # With several probes the first stands in, so no check also says "no output is chosen".
         c.output(nets.pin_net[(probes[0].name, "p")])
     return c, nets, errors
 

@@ -110,3 +110,13 @@ def test_analyze_reports_a_short_in_the_table_the_json_and_on_stderr(tmp_path, c
     assert cli.main(["analyze", str(path), "--json"]) == 0
     out, _ = capsys.readouterr()
     assert any(w.startswith(message) for w in json.loads(out)["warnings"])
+
+
+def test_two_output_probes_give_one_consistent_message(qtbot, window):
+    top, bottom = two_resistors_joined(qtbot, window)
+    place(qtbot, window, "Output probe", 100, 60)
+    place(qtbot, window, "Output probe", 100, 340)
+    window.analysis_panel.runner.wait()
+    text = window.analysis_panel.banner.text()
+    assert "keep one" in text
+    assert "No output" not in text
