@@ -24,6 +24,7 @@ from ..network.elements import Capacitor, Inductor, ISource, VSource
 from ..core.errors import CircuitError
 from .mna import OPEN, SHORT, build_system
 from .response import frequency_response, poles, zeros
+from . import step
 from .timeconstants import FULL_MATRIX_LIMIT, factorize, open_circuit, port_columns, port_weights, short_circuit
 from ..network.validate import validate
 from ..core.values import format_value
@@ -229,6 +230,17 @@ class Analysis:
     def zeros(self) -> np.ndarray:
         """Exact finite zeros from input to output (rad/s, complex; computed on first use)."""
         return zeros(self._system) if self._zeros is None else self._zeros
+
+    def step_response(self, t_stop: float | None = None, points: int = 2000, **options) -> step.StepResponse:
+        """The exact response to a unit input step and its figures beside their estimates
+        (:func:`bandsketch.engine.solve.step.step_response`; ``t_stop`` in s)."""
+        return step.step_response(self, t_stop, points, **options)
+
+    def pulse_response(self, width: float, t_stop: float | None = None, points: int = 2000,
+                       **options) -> step.PulseResponse:
+        """The response to a unit input pulse of ``width`` s, with its sag
+        (:func:`bandsketch.engine.solve.step.pulse_response`)."""
+        return step.pulse_response(self, width, t_stop, points, **options)
 
     def midband_states(self) -> dict[str, str]:
         """Name -> ``"short"`` or ``"open"``: the resistive mid-band network, for
