@@ -160,3 +160,8 @@ def main(argv: list[str] | None = None) -> int:
     except OSError as exc:
         print(f"bandsketch: {exc.filename or ''}: {exc.strerror or exc}", file=sys.stderr)
         return 2
+    except Exception as exc:  # the last guard: no traceback reaches the user
+        from .guard import REPORT_HINT, unexpected
+
+        print(f"bandsketch: unexpected failure ({unexpected(exc)}). {REPORT_HINT}", file=sys.stderr)
+        return 1

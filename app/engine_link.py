@@ -8,18 +8,13 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-from bandsketch.engine.design import netlist
+from bandsketch.engine.design import netlist, schema
 from bandsketch.engine.network import devices
-from bandsketch.engine.design.document import NAME_RE, Document, Part
+from bandsketch.engine.design.document import Document, Part
 from bandsketch.engine.core.errors import BadValueError, CircuitError
 from bandsketch.engine.design.parts import KINDS, Field
-from bandsketch.engine.core.values import format_value, parse_value
-
-_PARSER_UNITS = {"Ω", "F", "H", "S", "A/V", "V/V", "A/A", "V", "A", "Hz", "K", "", "1/V"}
-"""Units the value parser knows; other numeric fields (°C) are parsed unit-free."""
-
-NUMERIC_SKIP = {"choice", "name", "net"}
-"""Field units that hold text, not a number."""
+from bandsketch.engine.core.values import format_value
+from bandsketch.engine.design.schema import is_numeric, parse_field
 
 
 @dataclass(frozen=True)
@@ -30,61 +25,33 @@ class FieldCheck:
     shown: str
 
 
-def is_numeric(f: Field) -> bool:
-    """Whether a field holds a number (rather than a choice or a name)."""
-    return f.unit not in NUMERIC_SKIP
-
-
-def parse_field(part_name: str, f: Field, text: str) -> float:
-    """The value of a numeric field's text, raising BadValueError naming part and field."""
-    return parse_value(
-        text,
-        unit=f.unit if f.unit in _PARSER_UNITS else None,
-        part=part_name,
-        field=f.label,
-        allow_zero=f.allow_negative or f.optional,
-        allow_negative=f.allow_negative,
-    )
-
-
 def check_field(doc: Document, part: Part, f: Field, text: str) -> FieldCheck:
     """Whether ``text`` is acceptable for field ``f`` of ``part``, and what to show for it.
 
+    The design schema judges first (what a design file can hold); then what this sheet says:
+    a sensed source must be a voltage source on it, and a block's own model has the last word.
     The empty text is accepted only for optional fields (it leaves the element out).
     """
+    problem = schema.field_problem(part.name, f, text)
+    if problem:
+        return FieldCheck(False, problem)
     text = text.strip()
-    where = f"{part.name} {f.label}"
     if not text:
-        if f.optional:
-            return FieldCheck(True, "not used")
-        return FieldCheck(False, f"{where} needs a value")
-    if f.unit == "choice":
-        if text in f.choices:
-            return FieldCheck(True, text)
-        return FieldCheck(False, f"{where} must be one of {', '.join(f.choices)}")
+        return FieldCheck(True, "not used")
     if f.unit == "name":
         other = doc.parts.get(text)
         if other is None or other.kind != "vsource":
-            return FieldCheck(False, f"{where}: '{text}' is not a voltage source on this sheet; "
+            return FieldCheck(False, f"{part.name} {f.label}: '{text}' is not a voltage source on this sheet; "
                                      "name the source whose current is sensed")
+    if not is_numeric(f):
         return FieldCheck(True, text)
-    if f.unit == "net":
-        if not NAME_RE.fullmatch(text):
-            return FieldCheck(False, f"{where}: '{text}' is not a usable net name; start with a "
-                                     "letter, then letters, digits or _")
-        return FieldCheck(True, text)
-    try:
-        value = parse_field(part.name, f, text)
-        if part.kind in devices.RESOLVERS:
-            # The block's own model has the last word on its fields (what may be zero ...).
-            try:
-                netlist.derived_values(part.with_params(**{f.key: text}))
-            except BadValueError as exc:
-                if exc.field == f.key:
-                    raise
-    except BadValueError as exc:
-        return FieldCheck(False, exc.message)
-    return FieldCheck(True, _formatted(value, f))
+    if part.kind in devices.RESOLVERS:
+        try:
+            netlist.derived_values(part.with_params(**{f.key: text}))
+        except BadValueError as exc:
+            if exc.field == f.key:
+                return FieldCheck(False, exc.message)
+    return FieldCheck(True, _formatted(parse_field(part.name, f, text), f))
 
 
 def shown_value(part: Part, f: Field, *, unit: bool = True) -> str:

@@ -33,6 +33,21 @@ def _quiet_offscreen_notices() -> None:
     qInstallMessageHandler(handler)
 
 
+def _report_unexpected_in(window) -> None:
+    """Show any exception a slot lets through in a dialog (Qt then carries on); the design stays."""
+    from . import dialogs
+    from .guard import REPORT_HINT, unexpected
+
+    def hook(kind, exc, tb):
+        line = unexpected(exc)
+        print(f"bandsketch: unexpected failure ({line})", file=sys.stderr)
+        dialogs.show_error(window, "Something went wrong",
+                           f"Bandsketch met an unexpected failure ({line}). Your design is still open; "
+                           f"save it under a new name to be safe. {REPORT_HINT}")
+
+    sys.excepthook = hook
+
+
 def run_gui(design_path: str | None = None, screenshot: str | None = None,
             size: tuple[int, int] | None = None, select: str | None = None) -> int:
     """Open the main window, optionally on a design; with ``screenshot``, save a picture and exit.
@@ -99,6 +114,7 @@ def run_gui(design_path: str | None = None, screenshot: str | None = None,
     window = MainWindow()
     window.resize(*(size or DEFAULT_SIZE))
     window.show()
+    _report_unexpected_in(window)
 
     def start():
         # Work recovered from a crash comes first; the design named on the command line

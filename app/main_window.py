@@ -24,11 +24,12 @@ from .canvas.controller import CanvasController, Mode
 from .canvas.inplace import InplaceEditor, main_field
 from .canvas.scene import SchematicScene
 from .canvas.view import SchematicView
+from .guard import REPORT_HINT, unexpected
 from .commands import Editor
 from .help import HelpPanel
 from .palette import GROUPS, PartsPalette
 from .properties import PropertiesPanel
-from .recovery import RecoveryKeeper
+from .recovery import SET_ASIDE_NAME, RecoveryKeeper
 from .theme import system_theme
 
 APP_NAME = "Bandsketch"
@@ -381,11 +382,21 @@ class MainWindow(QMainWindow):
 
     # -- files ---------------------------------------------------------------------------------
     def set_document(self, doc: Document, path: str | None, *, unsaved: bool = False) -> None:
-        """Show ``doc`` (opened from ``path``) in place of the current design; fresh undo history."""
+        """Show ``doc`` (opened from ``path``) in place of the current design; fresh undo history.
+
+        All or nothing: should a view fail to show ``doc``, the design on screen, its undo
+        history and its path are put back as they were and the exception goes on to the caller.
+        """
         self.controller.set_mode(Mode.SELECT)
         self.scene.clearSelection()
+        previous = Document()
+        previous.replace_all(self.doc)
+        try:
+            self.doc.replace_all(doc)
+        except Exception:
+            self.doc.replace_all(previous)
+            raise
         self.stack.clear()
-        self.doc.replace_all(doc)
         self.stack.setClean()
         self.path = path
         self._restored_unsaved = unsaved
@@ -420,11 +431,16 @@ class MainWindow(QMainWindow):
                 return False
         try:
             doc = load_design(path)
+            self.set_document(doc, str(path))
         except DesignFileError as exc:
             dialogs.show_error(self, "Cannot open design",
                                f"{exc}\n\nThe design on screen has not been changed.")
             return False
-        self.set_document(doc, str(path))
+        except Exception as exc:  # a view failing on a file the loader passed is our fault, not the file's
+            dialogs.show_error(self, "Cannot open design",
+                               f"{Path(path).name}: Bandsketch could not show it ({unexpected(exc)}).\n\n"
+                               f"The design on screen has not been changed. {REPORT_HINT}")
+            return False
         if doc.read_version is not None and doc.read_version < FORMAT_VERSION:
             self.statusBar().showMessage(
                 f"Read {Path(path).name}, a version {doc.read_version} design file; it reads unchanged, "
@@ -478,13 +494,23 @@ class MainWindow(QMainWindow):
         if self.keeper is None:
             return False
         found = self.keeper.left_over()
+        if isinstance(found, str):
+            dialogs.show_error(self, "Unsaved work could not be restored", found)
+            return False
         if found is None:
             return False
         name = Path(found.path).name if found.path else "an untitled design"
         if not dialogs.ask_restore(self, found.when(), name):
             self.keeper.set_aside()
             return False
-        self.set_document(found.doc, found.path, unsaved=True)
+        try:
+            self.set_document(found.doc, found.path, unsaved=True)
+        except Exception as exc:  # never a crash at start: keep the file for a report instead
+            self.keeper.set_aside()
+            dialogs.show_error(self, "Unsaved work could not be restored",
+                               f"The recovery file could not be shown ({unexpected(exc)}); it is kept as "
+                               f"{self.keeper.folder / SET_ASIDE_NAME}. {REPORT_HINT}")
+            return False
         self.keeper.write()
         return True
 

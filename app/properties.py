@@ -11,7 +11,7 @@ from PySide6.QtGui import QKeySequence, QTextCursor
 from PySide6.QtWidgets import (QCheckBox, QComboBox, QFormLayout, QGroupBox, QLabel, QLineEdit,
                                QPlainTextEdit, QVBoxLayout, QWidget)
 
-from bandsketch.engine.design.designfile import MAX_TEXT
+from bandsketch.engine.design.schema import sourcing_problem, text_problem
 from bandsketch.engine.design.document import Change, Document
 from bandsketch.engine.design.parts import KINDS, Field
 from bandsketch.engine.design.sourcing import DEFAULT_SERIES, SERIES_NAMES, tolerance_fraction
@@ -32,7 +32,6 @@ DERIVED_UNITS = {"gm": "S", "rpi": "Ω", "ro": "Ω", "cpi": "F", "cmu": "F", "cc
 DERIVED_LABELS = {"vt": "V_T", "fp": "f_p"}
 NOTES_LINES = 6
 """How many lines of the design's notes show without scrolling."""
-TOO_LONG = f"Keep this under {MAX_TEXT} characters (what a design file holds)"
 
 
 def caption(label: str) -> str:
@@ -101,8 +100,9 @@ class _NotesBox(QPlainTextEdit):
         text = self.toPlainText()
         if text == self.doc.description:
             return
-        if len(text) > MAX_TEXT:
-            self.note.setText(TOO_LONG)
+        problem = text_problem(text)
+        if problem:
+            self.note.setText(f"Notes: {problem}")
             self.note.setStyleSheet(f"color: {self._theme.problem.name()};")
             return
         self.note.setText("")
@@ -345,11 +345,12 @@ class PropertiesPanel(QWidget):
             self.editor.patch(edits.set_sourcing(self.doc, part.name, **{key: value}), f"Set {part.name} {what}")
 
     def _set_tolerance(self, entry: _Entry, text: str) -> None:
-        try:
-            frac = tolerance_fraction(text, self.part_name)
-        except ValueError as exc:
-            entry.show_verdict(False, getattr(exc, "message", str(exc)))
+        held = self.doc.parts[self.part_name].sourcing
+        problem = sourcing_problem(held.knob, held.series, text.strip(), self.part_name)
+        if problem:
+            entry.show_verdict(False, problem)
             return
+        frac = tolerance_fraction(text, self.part_name)
         entry.show_verdict(True, "" if frac is None else f"±{100 * frac:g} %")
         self._set_sourcing("tolerance", text.strip(), "tolerance")
 
@@ -395,8 +396,9 @@ class PropertiesPanel(QWidget):
             self.editor.push(RenameCommand(self.doc, self.part_name, text))
 
     def _set_title(self, entry: _Entry, text: str) -> None:
-        if len(text) > MAX_TEXT:
-            entry.show_verdict(False, TOO_LONG)
+        problem = text_problem(text)
+        if problem:
+            entry.show_verdict(False, f"Title: {problem}")
             return
         entry.show_verdict(True, "")
         if text != self.doc.title:

@@ -123,21 +123,25 @@ class RecoveryKeeper(QObject):
         self._period.stop()
         self._calm.stop()
 
-    def left_over(self) -> Recovered | None:
-        """What an unexpectedly ended session left behind, or None.
+    def left_over(self) -> Recovered | str | None:
+        """What an unexpectedly ended session left behind, or None if nothing.
 
-        A recovery file that cannot be read is set aside (never deleted) and ignored.
+        A recovery file that cannot be read is set aside (never deleted), and the message to
+        show about it is returned instead.
         """
         if not self.path.exists():
             return None
         try:
             data = json.loads(self.path.read_text(encoding="utf-8"))
+            if not isinstance(data, dict) or "design" not in data:
+                raise DesignFileError("it holds no design")
             doc = document_from_dict(data["design"], "recovered design")
             path = data.get("saved_path")
             return Recovered(doc, path if isinstance(path, str) else None, _timestamp(data.get("written")))
-        except (OSError, ValueError, KeyError, TypeError, DesignFileError, RecursionError):
+        except (OSError, ValueError, DesignFileError, RecursionError) as exc:
             self.set_aside()
-            return None
+            return (f"The last session left unsaved work behind, but its recovery file cannot be read "
+                    f"({exc}). It is kept as {self.folder / SET_ASIDE_NAME}; nothing was restored.")
 
     def set_aside(self) -> None:
         """Keep the recovery file under another name, out of the way of the next session."""

@@ -22,6 +22,7 @@ from pathlib import Path
 import pytest
 
 import bandsketch.engine.design.designfile as designfile
+from bandsketch.engine.design import schema
 from bandsketch.engine.design.designfile import MAX_FILE_BYTES, load_design
 from bandsketch.engine.core.errors import DesignFileError
 
@@ -36,7 +37,7 @@ FORBIDDEN_ATTRIBUTES = {"system", "popen", "spawnl", "spawnv", "execv", "execl",
 REVIEWED = {("document.py", "setattr")}
 """Sites read and found safe: Document.set_meta checks the attribute name against a fixed tuple
 before its setattr, and the loader never calls it."""
-ALLOWED_IMPORTS = {"__future__", "json", "math", "os", "tempfile", "pathlib", "re", "dataclasses",
+ALLOWED_IMPORTS = {"__future__", "json", "math", "os", "stat", "tempfile", "unicodedata", "pathlib", "re", "dataclasses",
                    "types", "typing", "collections", "functools"}
 
 
@@ -179,11 +180,11 @@ def test_moderate_nesting_is_refused_by_shape_not_by_crash(tmp_path):
     # Nesting json can parse (here 500 levels) still cannot hide in a design: every level is typed.
     path = tmp_path / "nested.json"
     path.write_text(json.dumps(header(targets={"f_high_min": json.loads("[" * 500 + "]" * 500)})))
-    with pytest.raises(DesignFileError, match="targets f_high_min: expected text, found list"):
+    with pytest.raises(DesignFileError, match="target f_high_min: expected text, found list"):
         load_design(path)
 
 
 def test_the_loader_has_named_limits():
     assert designfile.MAX_FILE_BYTES == 8 * 1024 * 1024
     assert designfile.MAX_PARTS >= 1000
-    assert designfile.MAX_TEXT >= 100
+    assert schema.MAX_TEXT >= 100

@@ -25,6 +25,7 @@ from bandsketch.engine.design.document import Document
 from bandsketch.engine.core.errors import Cancelled, CircuitError
 from bandsketch.engine.present.plotdata import histogram_axis
 from bandsketch.engine.advise.sensitivity import FIGURE_TITLES, sensitivities
+from bandsketch.engine.design.schema import target_problem
 from bandsketch.engine.advise.targets import TARGET_LABELS, check_targets, parse_targets, value_text, values_that_meet
 from bandsketch.engine.advise.tolerance import spread_of_design
 from bandsketch.engine.core.values import format_value
@@ -181,6 +182,11 @@ class AdvisorPanel(QWidget):
 
     def _target_edited(self, key: str) -> None:
         text = self.target_edits[key].text().strip()
+        problem = target_problem(key, text)
+        if problem:
+            # Refused where it was typed: the entry keeps the text, the reason shows under it.
+            self.target_problem.setText(problem)
+            return
         if text != self.doc.targets.get(key, ""):
             self.set_target(key, text)
 

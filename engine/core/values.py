@@ -45,6 +45,12 @@ _QUANTITY = {symbol: symbol for symbol in _UNIT_NAMES} | {"S": "A/V"}
 
 _EXAMPLE = "write e.g. 4k7, 4.7k or 4700"
 _SMALLEST_NORMAL = 2.0**-1022
+SMALLEST = 1e-24
+LARGEST = 1e24
+"""The magnitudes a value may have (yocto to yotta; zero and, where allowed, infinity apart).
+Within them the engine's equations stay inside double precision for any mix of parts (the
+products it forms, such as ω·R·C over a sweep or b₂ = ΣCᵢCⱼ(ZᵢᵢZⱼⱼ − ZᵢⱼZⱼᵢ), neither overflow
+nor underflow); beyond them a value is refused where it is typed, not by a failing solve."""
 _LONGEST_SHOWN = 40  # characters of the user's text quoted in a message
 
 _UNIT_PATTERN = r"(?i:ohms?)|Ω|A/V|V/V|A/A|Hz|[FHSVAK]"
@@ -108,8 +114,9 @@ def parse_value(
     Raises
     ------
     BadValueError
-        If the text is not a value, is out of the range of a float, carries
-        the wrong unit, or is zero, negative or infinite when not allowed.
+        If the text is not a value, is finite but outside :data:`SMALLEST` to
+        :data:`LARGEST` in size, carries the wrong unit, or is zero, negative or
+        infinite when not allowed.
         The message names the part and field and says what to write.
     ValueError
         If `unit` is not one of the units listed above.
@@ -155,6 +162,9 @@ def parse_value(
         if not allow_zero:
             raise bad("must be greater than zero")
         return 0.0  # not -0.0, which would print as "-0"
+    if not math.isinf(value) and not SMALLEST <= abs(value) <= LARGEST:
+        raise bad(f"is outside {SMALLEST:g} to {LARGEST:g} in size, the range a value may have "
+                  "(beyond it the equations would leave what double precision carries)")
     return value
 
 

@@ -27,22 +27,21 @@ from __future__ import annotations
 import json
 import math
 import os
+import stat
 import tempfile
 from pathlib import Path
 
-from .document import BANDS, NAME_RE, TARGET_KEYS, Document, Part, Wire
+from . import schema
+from .document import Document, Part, Wire
 from ..core.errors import DesignFileError
-from .parts import KINDS, ROTATIONS
-from .sourcing import KNOB_CHOICES, SERIES_NAMES, Sourcing, tolerance_fraction
-from ..core.errors import BadValueError
+from .parts import KINDS
+from .sourcing import Sourcing
 
 FORMAT_NAME = "bandsketch-design"
 FORMAT_VERSION = 2
 MAX_FILE_BYTES = 8 * 1024 * 1024
 """Larger files are refused before parsing: no hand-sized design comes near it."""
 MAX_PARTS = 20000
-MAX_TEXT = 200
-MAX_COORD = 10**7
 
 
 def document_to_dict(doc: Document) -> dict:
@@ -73,17 +72,10 @@ def _sourcing(raw, where: str, version: int) -> Sourcing:
     if version < 2:
         raise _fail(where, "has sourcing, which version 1 files do not hold; set the version to 2")
     raw = _object(raw, f"{where} sourcing", {"knob", "series", "tolerance"}, set())
-    knob = _text(raw.get("knob", ""), f"{where} sourcing knob")
-    if knob not in KNOB_CHOICES:
-        raise _fail(where, f"sourcing knob {knob!r} is not one of {', '.join(repr(k) for k in KNOB_CHOICES)}")
-    series = _text(raw.get("series", ""), f"{where} sourcing series")
-    if series and series not in SERIES_NAMES:
-        raise _fail(where, f"sourcing series {series!r} is not one of {', '.join(SERIES_NAMES)}")
-    tolerance = _text(raw.get("tolerance", ""), f"{where} sourcing tolerance")
-    try:
-        tolerance_fraction(tolerance)
-    except BadValueError as exc:
-        raise _fail(where, exc.message) from None
+    knob, series, tolerance = (raw.get(key, "") for key in ("knob", "series", "tolerance"))
+    problem = schema.sourcing_problem(knob, series, tolerance)
+    if problem:
+        raise _fail(where, problem)
     return Sourcing(knob, series, tolerance)
 
 
@@ -91,30 +83,26 @@ def _fail(where: str, what: str) -> DesignFileError:
     return DesignFileError(f"{where}: {what}")
 
 
-def _text(value, where: str, *, allow_empty=True) -> str:
-    if not isinstance(value, str):
-        raise _fail(where, f"expected text, found {type(value).__name__}")
-    if len(value) > MAX_TEXT:
-        raise _fail(where, f"text longer than {MAX_TEXT} characters")
-    if not allow_empty and not value:
-        raise _fail(where, "is empty")
-    if not value.isascii():
-        try:
-            value.encode("utf-8")
-        except UnicodeEncodeError:
-            # A lone surrogate (JSON "\\ud800"): Python reads it, but no file can hold it.
-            raise _fail(where, "holds a broken character (an unpaired UTF-16 surrogate)") from None
+def _text(value, where: str) -> str:
+    problem = schema.text_problem(value)
+    if problem:
+        raise _fail(where, problem)
     return value
 
 
 def _int(value, where: str) -> int:
-    if isinstance(value, bool) or not isinstance(value, (int, float)):
-        raise _fail(where, f"expected a number, found {type(value).__name__}")
-    # abs() first: a huge JSON integer (10**400) cannot be turned into a float.
-    if abs(value) > MAX_COORD or not math.isfinite(value) or value != int(value):
-        shown = repr(value) if len(repr(value)) <= 30 else repr(value)[:27] + "..."
-        raise _fail(where, f"{shown} is not a whole number of scene units within ±{MAX_COORD}")
+    problem = schema.coordinate_problem(value)
+    if problem:
+        raise _fail(where, problem)
     return int(value)
+
+
+def _added(doc: Document, add, where: str) -> None:
+    """Make one change to the document being built; the schema's refusal becomes the file's."""
+    try:
+        add()
+    except ValueError as exc:
+        raise _fail(where, str(exc)) from None
 
 
 def _object(value, where: str, keys: set, required: set) -> dict:
@@ -136,28 +124,23 @@ def _part(raw, i: int, version: int) -> Part:
     kind = _text(raw["kind"], f"{where} kind")
     if kind not in KINDS:
         raise _fail(where, f"unknown kind {kind!r} (known: {', '.join(KINDS)})")
-    name = _text(raw["name"], f"{where} name", allow_empty=False)
-    if not NAME_RE.fullmatch(name):
-        raise _fail(where, f"{name!r} is not a usable part name")
-    where = f"part {name}"
-    rotation = _int(raw.get("rotation", 0), f"{where} rotation")
-    if rotation not in ROTATIONS:
-        raise _fail(where, f"rotation {rotation} is not one of {ROTATIONS}")
-    mirror = raw.get("mirror", False)
-    if not isinstance(mirror, bool):
-        raise _fail(where, "mirror must be true or false")
+    name = raw["name"]
+    problem = schema.name_problem(name)
+    if problem:
+        raise _fail(where, problem)
+    rotation, mirror = raw.get("rotation", 0), raw.get("mirror", False)
+    problem = schema.placement_problem(name, rotation, mirror)
+    if problem:
+        raise _fail(where, problem)
     params = raw.get("params", {})
     if not isinstance(params, dict):
-        raise _fail(where, "params must be an object")
-    known = {f.key for f in KINDS[kind].fields}
-    for key, value in params.items():
-        if key not in known:
-            raise _fail(where, f"{KINDS[kind].title} has no field {key!r}")
-        _text(value, f"{where} field {key}")
-    full = {**KINDS[kind].default_params(), **params}
-    sourcing = _sourcing(raw["sourcing"], where, version) if "sourcing" in raw else Sourcing()
-    return Part(kind, name, _int(raw["x"], f"{where} x"), _int(raw["y"], f"{where} y"),
-                rotation, mirror, full, sourcing)
+        raise _fail(f"part {name}", "params must be an object")
+    problem = schema.params_problem(kind, name, params)
+    if problem:
+        raise _fail(f"part {i + 1}", problem)
+    sourcing = _sourcing(raw["sourcing"], f"part {name}", version) if "sourcing" in raw else Sourcing()
+    return Part(kind, name, _int(raw["x"], f"part {name} x"), _int(raw["y"], f"part {name} y"),
+                rotation, mirror, {**KINDS[kind].default_params(), **params}, sourcing)
 
 
 def document_from_dict(data, source: str = "design") -> Document:
@@ -199,18 +182,15 @@ def _document_from_dict(data) -> Document:
         raise _fail("parts", f"more than {MAX_PARTS} parts")
     for i, raw in enumerate(parts):
         part = _part(raw, i, version)
-        problem = doc.name_problem(part.name)
-        if problem:
-            raise _fail(f"part {i + 1}", problem)
-        doc.add_part(part)
+        _added(doc, lambda: doc.add_part(part), f"part {i + 1}")
     wires = data.get("wires", [])
     if not isinstance(wires, list) or len(wires) > MAX_PARTS:
         raise _fail("wires", f"must be a list of at most {MAX_PARTS} wires")
     for i, raw in enumerate(wires):
         raw = _object(raw, f"wire {i + 1}", {"points"}, {"points"})
         points = raw["points"]
-        if not isinstance(points, list) or not 2 <= len(points) <= 1000:
-            raise _fail(f"wire {i + 1}", "points must be a list of 2 to 1000 [x, y] pairs")
+        if not isinstance(points, list) or not 2 <= len(points) <= schema.MAX_WIRE_POINTS:
+            raise _fail(f"wire {i + 1}", f"points must be a list of 2 to {schema.MAX_WIRE_POINTS} [x, y] pairs")
         pts = []
         for j, pt in enumerate(points):
             if not isinstance(pt, list) or len(pt) != 2:
@@ -227,16 +207,18 @@ def _document_from_dict(data) -> Document:
     if not isinstance(bands, dict):
         raise _fail("bands", "must be an object")
     for element, band in bands.items():
-        if band not in BANDS:
-            raise _fail(f"bands {element}", f"must be one of {BANDS}")
-        doc.set_band_pin(_text(element, "bands"), band)
+        problem = schema.band_problem(element, band)
+        if problem:
+            raise _fail("bands", problem)
+        doc.set_band_pin(element, band)
     targets = data.get("targets", {})
     if not isinstance(targets, dict):
         raise _fail("targets", "must be an object")
     for key, text in targets.items():
-        if key not in TARGET_KEYS:
-            raise _fail("targets", f"unknown target {key!r} (known: {', '.join(TARGET_KEYS)})")
-        doc.set_target(key, _text(text, f"targets {key}"))
+        problem = schema.target_problem(key, text)
+        if problem:
+            raise _fail("targets", problem)
+        doc.set_target(key, text)
     return doc
 
 
@@ -303,10 +285,17 @@ def save_design(doc: Document, path) -> None:
         The place cannot be written (read-only, full disk ...); the old file, if any, is intact.
     """
     path = Path(path)
-    text = json.dumps(document_to_dict(doc), indent=1, ensure_ascii=False) + "\n"
+    content = document_to_dict(doc)
+    try:
+        # What is written must read back: the loader's own checks judge it first.
+        _document_from_dict(content)
+    except DesignFileError as exc:
+        raise DesignFileError(f"{path.name}: could not be saved ({exc}); the design is still open "
+                              "and unsaved") from None
+    text = json.dumps(content, indent=1, ensure_ascii=False) + "\n"
     if len(text) > MAX_FILE_BYTES // 4:
         # Indented, each coordinate takes a line: a big design could outgrow what load_design reads.
-        text = json.dumps(document_to_dict(doc), separators=(",", ":"), ensure_ascii=False) + "\n"
+        text = json.dumps(content, separators=(",", ":"), ensure_ascii=False) + "\n"
     try:
         data = text.encode("utf-8")
     except UnicodeEncodeError as exc:
@@ -323,6 +312,7 @@ def save_design(doc: Document, path) -> None:
         with os.fdopen(fd, "wb") as fh:
             fh.write(data)
             fh.flush()
+            os.chmod(tmp, _mode_for(path))
             os.fsync(fh.fileno())
         os.replace(tmp, path)
         tmp = None
@@ -335,3 +325,13 @@ def save_design(doc: Document, path) -> None:
                 os.unlink(tmp)
             except OSError:
                 pass
+
+
+def _mode_for(path: Path) -> int:
+    """The permissions a saved file gets: the old file's, or what the umask leaves of 0666."""
+    try:
+        return stat.S_IMODE(path.stat().st_mode)
+    except OSError:
+        umask = os.umask(0)
+        os.umask(umask)
+        return 0o666 & ~umask

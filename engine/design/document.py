@@ -8,23 +8,15 @@ immutable values; an edit replaces one with another, which is what makes undo ex
 
 from __future__ import annotations
 
-import re
 from dataclasses import dataclass, field, replace
 from types import MappingProxyType
 from typing import Mapping
 
 from ..core.events import Signal
+from . import schema
 from .parts import KINDS, ROTATIONS, pin_positions
+from .schema import TARGET_KEYS
 from .sourcing import Sourcing
-
-NAME_RE = re.compile(r"[A-Za-z][A-Za-z0-9_]*")
-"""What a part name may look like (whole, with ``fullmatch``): a letter, then letters, digits or _."""
-
-BANDS = ("low", "high")
-"""Bands a user may pin an element to."""
-
-TARGET_KEYS = ("f_high_min", "f_low_max", "gain", "gain_tolerance")
-"""Design targets a document may hold (texts, parsed by the engine's value parser)."""
 
 
 @dataclass(frozen=True)
@@ -156,8 +148,9 @@ class Document:
 
     def name_problem(self, name: str, current: str | None = None) -> str | None:
         """Why ``name`` cannot be given to a part (now called ``current``), or None if it can."""
-        if not NAME_RE.fullmatch(name or ""):
-            return f"'{name}' is not a usable name: start with a letter, then letters, digits or _"
+        problem = schema.name_problem(name)
+        if problem:
+            return problem
         clash = self._lower.get(name.lower())
         if clash is not None and clash != current:
             return f"'{name}' is already the name of {clash}; choose another"
@@ -168,9 +161,10 @@ class Document:
         return self._next_wire
 
     # -- primitive changes (the undo commands call these) ---------------------
+    # Each refuses, with ValueError and the schema's reason, what a design file could not hold.
     def add_part(self, part: Part) -> None:
-        """Add a part whose name is free."""
-        problem = self.name_problem(part.name)
+        """Add a part whose name is free and whose every field the schema accepts."""
+        problem = schema.part_problem(part) or self.name_problem(part.name)
         if problem:
             raise ValueError(problem)
         self._parts[part.name] = part
@@ -186,6 +180,17 @@ class Document:
 
     def replace_part(self, name: str, part: Part) -> None:
         """Replace part ``name`` by ``part`` (which may carry a new name), keeping its place."""
+        old = self._parts[name]
+        # Only what changed is judged again, so a drag of many parts stays cheap.
+        changed = {k: v for k, v in part.params.items() if old.params.get(k) != v}
+        problem = (schema.params_problem(part.kind, part.name, changed) if part.kind == old.kind
+                   else schema.part_problem(part))
+        problem = problem or schema.coordinate_problem(part.x) or schema.coordinate_problem(part.y)
+        if not problem and part.sourcing != old.sourcing:
+            s = part.sourcing
+            problem = schema.sourcing_problem(s.knob, s.series, s.tolerance, part.name)
+        if problem:
+            raise ValueError(problem)
         if part.name != name:
             problem = self.name_problem(part.name, current=name)
             if problem:
@@ -205,6 +210,7 @@ class Document:
         """Add a wire whose id is unused."""
         if wire.id in self._wires:
             raise ValueError(f"wire id {wire.id} is taken")
+        _check(schema.wire_problem(wire.points))
         self._wires[wire.id] = wire
         self._next_wire = max(self._next_wire, wire.id + 1)
         self.changed.emit(Change("wire_added", wire.id))
@@ -219,6 +225,7 @@ class Document:
         """Replace the wire with the same id."""
         if wire.id not in self._wires:
             raise KeyError(wire.id)
+        _check(schema.wire_problem(wire.points))
         self._wires[wire.id] = wire
         self.changed.emit(Change("wire_changed", wire.id))
 
@@ -227,6 +234,8 @@ class Document:
         for key, value in changes.items():
             if key not in ("title", "description", "input_source"):
                 raise KeyError(key)
+            problem = None if value is None and key == "input_source" else schema.text_problem(value)
+            _check(problem and f"the {key} {problem}")
             setattr(self, key, value)
         self.changed.emit(Change("meta"))
 
@@ -234,10 +243,9 @@ class Document:
         """Pin ``element`` to ``"low"`` or ``"high"``, or unpin it with None."""
         if band is None:
             self._band_pins.pop(element, None)
-        elif band in BANDS:
-            self._band_pins[element] = band
         else:
-            raise ValueError(f"band must be one of {BANDS} or None, not {band!r}")
+            _check(schema.band_problem(element, band))
+            self._band_pins[element] = band
         self.changed.emit(Change("meta"))
 
     def set_target(self, key: str, text: str | None) -> None:
@@ -245,6 +253,7 @@ class Document:
         if key not in TARGET_KEYS:
             raise KeyError(key)
         if text:
+            _check(schema.target_problem(key, text))
             self._targets[key] = text
         else:
             self._targets.pop(key, None)
@@ -266,3 +275,8 @@ class Document:
     def finish_edit(self) -> None:
         """Announce that a user gesture is complete, so views may recompute."""
         self.edited.emit()
+
+
+def _check(problem: str | None) -> None:
+    if problem:
+        raise ValueError(problem)

@@ -133,7 +133,7 @@ def test_not_an_object():
     [
         (lambda p: p.update(kind="transformer"), ["unknown kind", "transformer"]),
         (lambda p: p.update(kind=5), ["kind", "expected text"]),
-        (lambda p: p.update(name="1bad"), ["not a usable part name"]),
+        (lambda p: p.update(name="1bad"), ["not a usable name"]),
         (lambda p: p.update(name=""), ["name", "empty"]),
         (lambda p: p.update(x="10"), ["Rs x", "expected a number"]),
         (lambda p: p.update(x=1.5), ["Rs x", "whole number"]),
@@ -143,9 +143,9 @@ def test_not_an_object():
         (lambda p: p.update(rotation=45), ["rotation"]),
         (lambda p: p.update(mirror="yes"), ["mirror"]),
         (lambda p: p.update(params=["600"]), ["params"]),
-        (lambda p: p.update(params={"value": 600}), ["field value", "expected text"]),
+        (lambda p: p.update(params={"value": 600}), ["Rs Resistance", "expected text"]),
         (lambda p: p.update(params={"colour": "red"}), ["no field", "colour"]),
-        (lambda p: p.update(params={"value": "x" * 1000}), ["longer than"]),
+        (lambda p: p.update(params={"value": "x" * 1000}), ["1000 characters is too long", "keep it to 200"]),
         (lambda p: p.pop("x"), ["missing", "x"]),
         (lambda p: p.update(wobble=1), ["unknown key", "wobble"]),
     ],
@@ -188,7 +188,7 @@ def test_bad_input_bands_targets():
     _refused(d, "input")
     d = _good()
     d["bands"] = {"Cin": "middle"}
-    _refused(d, "bands Cin")
+    _refused(d, "Cin is pinned")
     d = _good()
     d["bands"] = ["Cin"]
     _refused(d, "bands")
@@ -197,7 +197,7 @@ def test_bad_input_bands_targets():
     _refused(d, "unknown target", "speed")
     d = _good()
     d["targets"] = {"gain": 40}
-    _refused(d, "targets gain")
+    _refused(d, "target gain")
     d = _good()
     d["title"] = ["x"]
     _refused(d, "title")

@@ -12,6 +12,7 @@ from bandsketch.engine.solve.mna import build_system
 from bandsketch.engine.solve import response
 from bandsketch.engine.solve.response import frequency_response, poles, zeros
 from bandsketch.engine.network.validate import validate
+from bandsketch.engine.core.values import SMALLEST
 
 
 def _rc(r=4700.0, c=22e-9):
@@ -121,7 +122,7 @@ def networks(draw):
     vccs = []
     for _ in range(draw(st.integers(0, 3))):
         p, q, cp, cn = draw(node), draw(node), draw(node), draw(node)
-        vccs.append((p, q, cp, cn, draw(st.floats(-1e-2, 1e-2, allow_subnormal=False))))
+        vccs.append((p, q, cp, cn, draw(st.floats(-1e-2, 1e-2, allow_subnormal=False).map(lambda g: g if abs(g) >= SMALLEST else 0.0))))
     voltage_input = draw(st.booleans())
     r_in = draw(res)
     out = draw(st.integers(1, n))

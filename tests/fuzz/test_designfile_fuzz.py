@@ -30,7 +30,9 @@ from bandsketch.engine.design.designfile import (FORMAT_NAME, FORMAT_VERSION, MA
                                document_to_dict, load_design, save_design)
 from bandsketch.engine.core.errors import BadValueError, CircuitError, DesignFileError
 from bandsketch.engine.design.netlist import connectivity_problems, design_to_circuit
+from bandsketch.engine.design import schema
 from bandsketch.engine.design.parts import GRID, KINDS, ROTATIONS
+from bandsketch.engine.design.schema import MAX_TEXT
 from bandsketch.engine.core.values import parse_value
 
 FUZZ = settings.get_profile("bandsketch-fuzz")
@@ -107,6 +109,17 @@ field_texts = st.sampled_from(["4k7", "2.2n", "100", "1meg", "", "R47", "-3", "b
                                "npn", "pnp", "small_signal", "operating_point", "V1"]) | st.text(max_size=12)
 
 
+def schema_texts(f):
+    """Texts for catalogue field ``f`` that the design schema accepts: its choices, names, values
+    at the ends of the usable range, and any other text the schema lets through (else the default)."""
+    if f.unit == "choice":
+        return st.sampled_from(f.choices)
+    typed = names if f.unit in ("name", "net") else st.sampled_from(
+        ["4k7", "2.2n", "1e-24", "1e24", "-1e24", "0", " 47 ", "1meg", "R47", "-3"])
+    return (typed | field_texts | st.text(max_size=MAX_TEXT + 5)).map(
+        lambda text: text if schema.field_problem("P", f, text) is None else f.default)
+
+
 @st.composite
 def designs(draw):
     """A valid design as parsed JSON: unique names, grid positions, texts in known fields."""
@@ -116,8 +129,9 @@ def designs(draw):
         name = draw(names.filter(lambda n: n.lower() not in taken))
         taken.add(name.lower())
         kind = draw(st.sampled_from(sorted(KINDS)))
-        fields = [f.key for f in KINDS[kind].fields]
-        params = draw(st.dictionaries(st.sampled_from(fields), field_texts, max_size=len(fields))) if fields else {}
+        fields = KINDS[kind].fields
+        chosen = draw(st.sets(st.sampled_from(fields), max_size=len(fields))) if fields else ()
+        params = {f.key: draw(schema_texts(f)) for f in chosen}
         parts.append({"kind": kind, "name": name,
                       "x": GRID * draw(st.integers(-50, 50)), "y": GRID * draw(st.integers(-50, 50)),
                       "rotation": draw(st.sampled_from(ROTATIONS)), "mirror": draw(st.booleans()),
@@ -278,21 +292,21 @@ HOSTILE = {
     "coordinate too far": (json.dumps(header(parts=[resistor(y=-10**8)])), "part R1 y"),
     "unknown kind": (json.dumps(header(parts=[{**resistor(), "kind": "flux capacitor"}])), "unknown kind"),
     "unknown field": (json.dumps(header(parts=[resistor(params={"value": "1k", "colour": "red"})])), "colour"),
-    "value not text": (json.dumps(header(parts=[resistor(params={"value": 1000})])), "field value"),
+    "value not text": (json.dumps(header(parts=[resistor(params={"value": 1000})])), "expected text"),
     "mirror not bool": (json.dumps(header(parts=[resistor(mirror=1)])), "mirror"),
     "unknown top key": (json.dumps(header(extra_stuff=1)), "unknown key(s) extra_stuff"),
     "missing name": (json.dumps(header(parts=[{"kind": "resistor", "x": 0, "y": 0}])), "missing key(s) name"),
     "duplicate names": (json.dumps(header(parts=[resistor("R1"), resistor("R1")])), "already the name"),
     "names differing in case": (json.dumps(header(parts=[resistor("R1"), resistor("r1")])), "already the name"),
-    "unicode name": (json.dumps(header(parts=[resistor("Ω1")])), "not a usable part name"),
-    "name with newline": (json.dumps(header(parts=[resistor("R1\n")])), "not a usable part name"),
+    "unicode name": (json.dumps(header(parts=[resistor("Ω1")])), "not a usable name"),
+    "name with newline": (json.dumps(header(parts=[resistor("R1\n")])), "not a usable name"),
     "empty name": (json.dumps(header(parts=[resistor("")])), "is empty"),
-    "long title": (json.dumps(header(title="x" * 1000)), "longer than"),
+    "long title": (json.dumps(header(title="x" * 1000)), "characters is too long"),
     "lone surrogate": ('{"format": "bandsketch-design", "version": 1, "parts": [], "title": "\\ud800"}',
                        "title: holds a broken character"),
     "duplicate key": ('{"format": "bandsketch-design", "version": 1, "parts": [], "parts": []}', "the key 'parts' twice"),
     "input not a source": (json.dumps(header(parts=[resistor()], input="R1")), "input"),
-    "bad band": (json.dumps(header(bands={"C1": "middle"})), "bands C1"),
+    "bad band": (json.dumps(header(bands={"C1": "middle"})), "C1 is pinned"),
     "unknown target": (json.dumps(header(targets={"speed": "1"})), "unknown target"),
     "wire of one point": (json.dumps(header(wires=[{"points": [[0, 0]]}])), "wire 1"),
     "wire point not a pair": (json.dumps(header(wires=[{"points": [[0, 0], [1, 2, 3]]}])), "wire 1 point 2"),
