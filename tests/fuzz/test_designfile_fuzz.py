@@ -303,7 +303,7 @@ HOSTILE = {
     "empty name": (json.dumps(header(parts=[resistor("")])), "is empty"),
     "long title": (json.dumps(header(title="x" * 1000)), "characters is too long"),
     "lone surrogate": ('{"format": "bandsketch-design", "version": 1, "parts": [], "title": "\\ud800"}',
-                       "title: holds a broken character"),
+                       "title: a broken character"),
     "duplicate key": ('{"format": "bandsketch-design", "version": 1, "parts": [], "parts": []}', "the key 'parts' twice"),
     "input not a source": (json.dumps(header(parts=[resistor()], input="R1")), "input"),
     "bad band": (json.dumps(header(bands={"C1": "middle"})), "C1 is pinned"),
