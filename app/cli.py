@@ -3,7 +3,8 @@
 ``bandsketch [DESIGN] [--screenshot FILE.png] [--size WxH] [--select NAME]`` opens the window;
 ``bandsketch analyze DESIGN [--json] [--csv FILE]`` prints the analysis;
 ``bandsketch report DESIGN -o FILE.html`` writes the design report;
-``bandsketch spread DESIGN --samples N --seed S [--json]`` runs the tolerance spread. Qt is imported
+``bandsketch spread DESIGN --samples N --seed S [--json]`` runs the tolerance spread;
+``bandsketch advise DESIGN [--knobs R1,RC] [--json]`` prints the advisor's suggestions. Qt is imported
 only for the window, so the analysis runs where no Qt is installed or wanted.
 """
 
@@ -15,7 +16,7 @@ import json
 import os
 import sys
 
-SUBCOMMANDS = ("analyze", "report", "spread")
+SUBCOMMANDS = ("analyze", "report", "spread", "advise")
 
 
 def _size(text: str) -> tuple[int, int]:
@@ -78,8 +79,6 @@ def _report_parser() -> argparse.ArgumentParser:
     p.add_argument("-o", "--output", required=True, metavar="FILE.html", help="where to write the report")
     p.add_argument("--samples", type=_samples, default=10_000, help="Monte Carlo samples (default 10000)")
     p.add_argument("--seed", type=int, default=1, help="Monte Carlo seed (default 1)")
-    p.add_argument("--series", choices=("E12", "E24", "E48", "E96"), default="E24",
-                   help="IEC 60063 series for standard values (default E24)")
     return p
 
 
@@ -91,6 +90,39 @@ def _spread_parser() -> argparse.ArgumentParser:
     p.add_argument("--seed", type=int, default=1, help="seed; the same seed gives the same numbers (default 1)")
     p.add_argument("--json", action="store_true", help="print JSON instead of a summary")
     return p
+
+
+def _advise_parser() -> argparse.ArgumentParser:
+    p = argparse.ArgumentParser(
+        prog="bandsketch advise",
+        description="Suggest values that meet the design's targets: one knob at a time, each row with "
+                    "its whole effect (f_H, f_L, gain, every target), and with two or three --knobs "
+                    "also the best combination of them.")
+    p.add_argument("design", help="design file (.json) with targets set")
+    p.add_argument("--knobs", metavar="R1,RC", help="only these parts (comma-separated); with two or "
+                                                    "three, also search their combinations")
+    p.add_argument("--samples", type=_samples, default=1000,
+                   help="Monte Carlo samples behind each yield (default 1000)")
+    p.add_argument("--json", action="store_true", help="print JSON instead of a table")
+    return p
+
+
+def _advise(args) -> int:
+    from bandsketch.engine.design.designfile import load_design
+    from bandsketch.engine.present.advice import advice_table, advise_design, advice_to_dict
+
+    doc = load_design(args.design)
+    only = [k.strip() for k in args.knobs.split(",") if k.strip()] if args.knobs else None
+    try:
+        advice, found = advise_design(doc, only, samples=args.samples)
+    except ValueError as exc:
+        print(f"bandsketch: {args.design}: {getattr(exc, 'message', exc)}", file=sys.stderr)
+        return 2
+    if args.json:
+        print(json.dumps(advice_to_dict(advice, found), indent=1, ensure_ascii=False))
+    else:
+        print(advice_table(advice, found, title=doc.title))
+    return 0
 
 
 def _samples(text: str) -> int:
@@ -107,7 +139,7 @@ def _report(args) -> int:
     from bandsketch.engine.design.designfile import load_design
     from bandsketch.engine.present.report import write_report
 
-    write_report(load_design(args.design), args.output, samples=args.samples, seed=args.seed, series=args.series)
+    write_report(load_design(args.design), args.output, samples=args.samples, seed=args.seed)
     print(f"bandsketch: wrote {args.output}")
     return 0
 
@@ -145,6 +177,8 @@ def main(argv: list[str] | None = None) -> int:
             return _report(_report_parser().parse_args(argv[1:]))
         if argv and argv[0] == "spread":
             return _spread(_spread_parser().parse_args(argv[1:]))
+        if argv and argv[0] == "advise":
+            return _advise(_advise_parser().parse_args(argv[1:]))
         args = _gui_parser().parse_args(argv)
         from bandsketch.app.gui import run_gui
 

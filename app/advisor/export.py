@@ -42,7 +42,7 @@ PDF_PICTURE_WIDTH = 600
 with 15 mm margins as Qt lays it out at screen resolution."""
 
 
-def export_report(doc, path: str, pictures: Pictures | None = None, spread=None, series: str = "E24") -> None:
+def export_report(doc, path: str, pictures: Pictures | None = None, spread=None) -> None:
     """Write the report to ``path``: HTML for ``.html``/``.htm``, else PDF.
 
     Parameters
@@ -56,10 +56,8 @@ def export_report(doc, path: str, pictures: Pictures | None = None, spread=None,
         text engine does not draw the inline SVG the HTML falls back on.
     spread : bandsketch.engine.advise.tolerance.Spread, optional
         The spread the designer ran, reported as is.
-    series : str
-        IEC 60063 series for the standard values.
     """
-    text = build_report(doc, pictures=pictures, spread=spread, series=series)
+    text = build_report(doc, pictures=pictures, spread=spread)
     if path.lower().endswith((".html", ".htm")):
         with open(path, "w", encoding="utf-8") as fh:
             fh.write(text)

@@ -476,8 +476,7 @@ class AdvisorPanel(QWidget):
         from .export import export_report
 
         try:
-            export_report(snapshot(self.doc), path, self.pictures() if self.pictures else None, self.spread,
-                          self.meet_series.currentText())
+            export_report(snapshot(self.doc), path, self.pictures() if self.pictures else None, self.spread)
         except (CircuitError, OSError) as exc:
             message = f"The report was not written: {getattr(exc, 'message', None) or exc}"
         else:

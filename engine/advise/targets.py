@@ -421,6 +421,18 @@ def _root(fig: _Figure, estimate: bool) -> float | None:
     return None
 
 
+def exact_root(doc, knob: Knob, target: str, targets: Targets) -> float | None:
+    """The value of ``knob`` (SI, magnitude) at which the exact figure just meets ``target``.
+
+    The same search as :func:`values_that_meet` (within :data:`SEARCH_DECADES` decades
+    either way of the present value), without the estimate's answer or a standard value;
+    None when no value in reach meets the target.
+    """
+    fig = _Figure(doc, knob, target, targets)
+    t = _root(fig, estimate=False)
+    return None if t is None else abs(knob.nominal) * math.exp(t)
+
+
 def _rounded_toward(x: float, passes) -> str | None:
     """Three-figure text for ``x``: whichever neighbour at that rounding meets the target."""
     exponent = math.floor(math.log10(x)) - 2
@@ -465,13 +477,14 @@ def values_that_meet(doc, target: str, targets: Targets, series: str | None = No
     for i, knob in enumerate(all_knobs):
         if cancel is not None and cancel():
             raise Cancelled()
-        found.append(_remedy(doc, knob, target, targets, series))
+        found.append(remedy_for(doc, knob, target, targets, series))
         if progress is not None:
             progress(i + 1, len(all_knobs))
     return tuple(sorted(found, key=lambda r: (r.exact_value is None, r.change, r.knob.label)))
 
 
-def _remedy(doc, knob: Knob, target: str, targets: Targets, series: str) -> Remedy:
+def remedy_for(doc, knob: Knob, target: str, targets: Targets, series: str | None = None) -> Remedy:
+    """The value of one knob that alone meets ``target`` (see :func:`values_that_meet`)."""
     fig = _Figure(doc, knob, target, targets)
     x0 = abs(knob.nominal)
     what = TARGET_LABELS[target]

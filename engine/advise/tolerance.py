@@ -271,6 +271,35 @@ class _Evaluator:
         return fh, fl, batch.gain
 
 
+def exact_figures(circuit, analysis, elements, factors) -> tuple:
+    """Exact corners and mid-band gain of a design with some values scaled, for many rows at once.
+
+    Parameters
+    ----------
+    circuit : bandsketch.engine.network.circuit.Circuit
+    analysis : bandsketch.engine.solve.analysis.Analysis
+        Its nominal analysis: the bands and the corners every row's search starts from.
+    elements : sequence of str
+        The elements whose values are scaled (each one a part value, :func:`part_values`).
+    factors : numpy.ndarray
+        (m, k) multipliers of those values, one row per variant.
+
+    Returns
+    -------
+    (numpy.ndarray, numpy.ndarray, numpy.ndarray)
+        f_H and f_L (Hz; NaN where the row has no corner near the nominal one, or the
+        nominal has none) and A_m (signed, gain unit), each (m,).
+    """
+    by_element = {pv.element: pv for pv in part_values(circuit)}
+    evaluate = _Evaluator(circuit, analysis, [Tolerance(by_element[e], 0.0, IDEAL_SOURCE) for e in elements])
+    factors = np.asarray(factors, dtype=float)
+    out = [np.empty(len(factors)) for _ in range(3)]
+    for lo in range(0, len(factors), CHUNK):
+        for arr, part in zip(out, evaluate(factors[lo:lo + CHUNK])):
+            arr[lo:lo + CHUNK] = part
+    return tuple(out)
+
+
 def _positive(x) -> float | None:
     return float(x) if x is not None and math.isfinite(x) and x > 0 else None
 

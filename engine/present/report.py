@@ -24,7 +24,8 @@ from ..design.netlist import design_to_circuit
 from ..advise.partvalues import part_values
 from .plotdata import bar_data, bode_data, db_unit, verdict_data
 from ..advise.sensitivity import FIGURE_TITLES, sensitivities
-from ..advise.targets import check_targets, parse_targets, values_that_meet
+from ..advise.suggest import suggest, verdict_line
+from ..advise.targets import check_targets, parse_targets
 from ..advise.tolerance import spread_of_design
 from ..core.values import format_value
 
@@ -231,7 +232,11 @@ def _sensitivity_table(sens) -> str:
             'upper corner, then the lower.</p>')
 
 
-def _targets_section(targets, analysis, doc, series) -> str:
+REPORT_SUGGESTIONS = 8
+"""Suggestion rows the report lists (the best first); the app and the command line show all."""
+
+
+def _targets_section(targets, analysis, doc) -> str:
     if targets.is_empty():
         return "<p>The design sets no targets.</p>"
     checks = check_targets(targets, analysis, analysis.gain_unit)
@@ -240,18 +245,32 @@ def _targets_section(targets, analysis, doc, series) -> str:
         cls = "pass" if c.passed else "fail"
         out.append(f'<li><span class="{cls}">{"PASS" if c.passed else "FAIL"}</span> {_e(c.text)}</li>')
     out.append("</ul>")
-    for c in checks:
-        if c.passed:
-            continue
-        remedies = values_that_meet(doc, c.key, targets, series)
-        rows = [(r.knob.label, _fmt(r.knob.nominal, r.knob.unit, 4),
-                 _fmt(r.exact_value, r.knob.unit, 4), _fmt(r.estimate_value, r.knob.unit, 4),
-                 _fmt(r.standard_value, r.knob.unit) if r.series else "—", r.apply_text or "—", r.text)
-                for r in remedies]
-        out.append(f"<h3>The value that meets “{_e(c.target_text)}”, one part at a time</h3>")
-        out.append(_table(("field", "now", "exact answer", "estimate's answer", f"nearest {series} that meets it",
-                           "write", "in words"), rows, numeric=(1, 2, 3, 4)))
+    if all(c.passed for c in checks):
+        return "\n".join(out)
+    advice = suggest(doc, targets)
+    unit = analysis.gain_unit
+    chosen = next((s for s in advice.suggestions if s.meets_all), None)
+    if chosen is None:
+        out.append("<p>No single knob meets every target; search two or three knobs together in the advisor "
+                   "(or <code>bandsketch advise DESIGN --knobs A,B</code>).</p>")
+    else:
+        y = (f", with a yield of {100 * chosen.spread.fraction:.0f} % (±{100 * chosen.spread.standard_error:.1f} %, "
+             f"{chosen.spread.samples} samples) under the parts' tolerances" if chosen.spread else "")
+        out.append(f"<p><b>Chosen suggestion:</b> {_e(chosen.label)}: it meets every target{_e(y)}.</p>")
+    rows = [(s.label, _e_none(s.changes[0].lower, s.changes[0].upper, s.changes[0].knob),
+             _fmt(s.effect.f_high, "Hz"), _fmt(s.effect.f_low, "Hz"), _fmt(abs(s.effect.gain), unit),
+             f"{100 * s.spread.fraction:.0f} %" if s.spread else "—", verdict_line(s.effect))
+            for s in advice.suggestions[:REPORT_SUGGESTIONS]]
+    out.append("<h3>Suggestions, one knob at a time, each with its whole effect</h3>")
+    out.append(_table(("change", "exact value lies between", "f_H", "f_L", "|A_m|", "yield", "verdict"), rows,
+                      numeric=(2, 3, 4, 5)))
     return "\n".join(out)
+
+
+def _e_none(lower, upper, knob) -> str:
+    if lower is None:
+        return "—"
+    return f"{knob.series}: {_fmt(lower, knob.unit)} and {_fmt(upper, knob.unit)}"
 
 
 def _spread_section(spread, gain_unit) -> str:
@@ -294,7 +313,7 @@ def _spread_section(spread, gain_unit) -> str:
 
 
 def build_report(doc, *, pictures: Pictures | None = None, samples: int = SPREAD_SAMPLES, seed: int = 1,
-                 series: str = "E24", spread=None) -> str:
+                 spread=None) -> str:
     """The design report of ``doc`` as one HTML text.
 
     Parameters
@@ -305,8 +324,6 @@ def build_report(doc, *, pictures: Pictures | None = None, samples: int = SPREAD
         is noted.
     samples, seed : int
         Monte Carlo size and seed (ignored when ``spread`` is given).
-    series : str
-        IEC 60063 series for the standard values (``"E12"``, ``"E24"``, ``"E48"``, ``"E96"``).
     spread : bandsketch.engine.advise.tolerance.Spread, optional
         A spread the app already ran (with the designer's tolerances), to report as is.
 
@@ -333,7 +350,7 @@ def build_report(doc, *, pictures: Pictures | None = None, samples: int = SPREAD
             "<h2>Verdict</h2>",
             "<ul>" + "".join(f"<li>{_e(t)}</li>" for t in (verdict.gain_text, verdict.high_text, verdict.low_text,
                                                              verdict.dominant_text)) + "</ul>",
-            "<h2>Targets</h2>", _targets_section(targets, analysis, doc, series),
+            "<h2>Targets</h2>", _targets_section(targets, analysis, doc),
             "<h2>Bode plot</h2>",
             f"<figure>{_png(pictures.bode, 'Bode plot') if pictures.bode else _bode_svg(bode_data(analysis))}</figure>",
             "<h2>Time constants</h2>",
