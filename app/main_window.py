@@ -118,6 +118,7 @@ class MainWindow(QMainWindow):
         self.analysis_panel = install_analysis_views(self)
         self.advisor = AdvisorPanel(self.doc, self.editor, self.analysis_panel.runner)
         self.advisor.part_hovered.connect(self.scene.point_out)
+        self.advisor.applied.connect(self.analysis_panel.compare_with_before)
         self.advisor.pictures = self.report_pictures
         self.analysis_tabs.addTab(self.advisor, "Design advisor")
 
@@ -397,6 +398,7 @@ class MainWindow(QMainWindow):
             self.doc.replace_all(previous)
             raise
         self.stack.clear()
+        self.analysis_panel.compare_with_before(None)  # a curve of another design is no "before"
         self.stack.setClean()
         self.path = path
         self._restored_unsaved = unsaved

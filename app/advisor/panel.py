@@ -1,4 +1,4 @@
-"""The design advisor: targets, sensitivities, the value that meets a target, tolerance spread, report.
+"""The design advisor: targets, sensitivities, suggestions, tolerance spread, report.
 
 Every number shown comes from an engine result (:mod:`bandsketch.engine.advise.targets`,
 :mod:`bandsketch.engine.advise.sensitivity`, :mod:`bandsketch.engine.advise.tolerance`); the widgets only lay them out. The
@@ -17,7 +17,8 @@ import threading
 import numpy as np
 import pyqtgraph as pg
 from PySide6.QtCore import QObject, QThreadPool, Qt, Signal
-from PySide6.QtWidgets import (QComboBox, QFormLayout, QGridLayout, QHBoxLayout, QHeaderView, QLabel,
+from PySide6.QtGui import QColor
+from PySide6.QtWidgets import (QFormLayout, QGridLayout, QHBoxLayout, QHeaderView, QLabel,
                                QLineEdit, QProgressBar, QPushButton, QSpinBox, QTableWidget,
                                QTableWidgetItem, QTabWidget, QVBoxLayout, QWidget)
 
@@ -26,13 +27,26 @@ from bandsketch.engine.core.errors import Cancelled, CircuitError
 from bandsketch.engine.present.plotdata import histogram_axis
 from bandsketch.engine.advise.sensitivity import FIGURE_TITLES, sensitivities
 from bandsketch.engine.design.schema import target_problem
-from bandsketch.engine.advise.targets import TARGET_LABELS, check_targets, parse_targets, value_text, values_that_meet
+from bandsketch.engine.advise.search import search
+from bandsketch.engine.advise.suggest import suggest, verdict_line
+from bandsketch.engine.advise.targets import TARGET_LABELS, check_targets, parse_targets, value_text
+from bandsketch.engine.present.plotdata import bode_data
 from bandsketch.engine.advise.tolerance import spread_of_design
 from bandsketch.engine.core.values import format_value
 
 from .. import edits
 
-SERIES = ("E12", "E24", "E48", "E96")
+_SUGGEST_COLUMNS = (
+    ("Change", "The value(s) as applied"), ("Now", "The present value(s)"),
+    ("Exact lies between", "The part's E-series values either side of the exact value that just meets the target"),
+    ("f_H", "Exact upper corner with the change"), ("f_L", "Exact lower corner with the change"),
+    ("|A_m|", "Mid-band gain with the change"), ("Bias", "Each transistor's region, when biased from the sheet"),
+    ("Yield", "Share of the tolerance spread (1000 samples) meeting every target, for rows that meet them"),
+    ("Verdict", "Against every target; hover for each target's margin"))
+
+
+def _hz(f) -> str:
+    return format_value(f, "Hz") if f is not None and math.isfinite(f) and f > 0 else "none"
 _SPREAD_TITLES = {"f_high": "f_H", "f_low": "f_L", "gain": "|A_m|"}
 _TARGET_FIELDS = (("f_high_min", "Minimum f_H", "e.g. 1M"), ("f_low_max", "Maximum f_L", "e.g. 20"),
                   ("gain", "Mid-band gain", "e.g. 100 or 40 dB"), ("gain_tolerance", "Gain tolerance", "e.g. 10 % or 1 dB"))
@@ -102,7 +116,7 @@ def _item(text: str, tip: str = "", numeric: bool = False) -> QTableWidgetItem:
 
 
 class AdvisorPanel(QWidget):
-    """Targets, sensitivities, the value that meets a target, tolerance spread and report export.
+    """Targets, sensitivities, suggestions (one knob, or several together), tolerance spread, report.
 
     Parameters
     ----------
@@ -118,9 +132,13 @@ class AdvisorPanel(QWidget):
     -------
     part_hovered(str)
         A sensitivity row naming a part is under the mouse ("" when none is).
+    applied(object)
+        A suggestion was applied; carries the exact curve before it
+        (:class:`bandsketch.engine.present.plotdata.Curve`), for the Bode plot to keep.
     """
 
     part_hovered = Signal(str)
+    applied = Signal(object)
 
     def __init__(self, doc: Document, editor, runner, parent=None):
         super().__init__(parent)
@@ -129,11 +147,11 @@ class AdvisorPanel(QWidget):
         self.jobs.relay.done.connect(self._job_done)
         self.jobs.relay.progress.connect(self._job_progress)
         self.spread = None
-        self.remedies = ()
+        self.suggestions = ()
         self.tabs = QTabWidget()
         self.tabs.addTab(self._targets_tab(), "Targets")
         self.tabs.addTab(self._sensitivity_tab(), "Sensitivities")
-        self.tabs.addTab(self._meet_tab(), "Value that meets it")
+        self.tabs.addTab(self._suggest_tab(), "Suggestions")
         self.tabs.addTab(self._spread_tab(), "Tolerance spread")
         self._sens_source = self._sens_shown = None
         self.tabs.currentChanged.connect(self._refresh_sensitivities)
@@ -251,7 +269,6 @@ class AdvisorPanel(QWidget):
             why = outcome.problem or "the sheet is empty; draw a stage and give it an output probe."
             self.verdict_label.setText(f"No analysis yet: {why}")
             self.sens_table.setRowCount(0)
-            self._set_failing(())
             return
         self._show_verdict(targets, outcome.analysis)
         self._sens_source = outcome
@@ -275,7 +292,6 @@ class AdvisorPanel(QWidget):
     def _show_verdict(self, targets, analysis) -> None:
         if targets is None or targets.is_empty():
             self.verdict_label.setText("No targets set.")
-            self._set_failing(())
             return
         checks = check_targets(targets, analysis, analysis.gain_unit)
         lines = []
@@ -284,14 +300,6 @@ class AdvisorPanel(QWidget):
             word = "PASS" if c.passed else "FAIL"
             lines.append(f'<b style="color:{colour}">{word}</b> {c.text}')
         self.verdict_label.setText("<br>".join(lines))
-        self._set_failing([c for c in checks if not c.passed])
-
-    def _set_failing(self, checks) -> None:
-        """Offer the failing targets (none when there is no analysis) to the value search."""
-        self.meet_target.clear()
-        for c in checks:
-            self.meet_target.addItem(c.target_text, c.key)
-        self.meet_button.setEnabled(self.meet_target.count() > 0)
 
     def _show_sensitivities(self, sens) -> None:
         rows = sorted(sens.rows, key=lambda r: (-abs(r.high_exact or 0.0), -abs(r.low_exact or 0.0)))
@@ -303,85 +311,158 @@ class AdvisorPanel(QWidget):
             for j, v in enumerate((r.high_exact, r.high_estimate, r.low_exact, r.low_estimate, r.gain), 1):
                 self.sens_table.setItem(i, j, _item("—" if v is None else f"{v:+.3f}", numeric=True))
 
-    # -- the value that meets it ----------------------------------------------------------
-    def _meet_tab(self) -> QWidget:
+    # -- suggestions ----------------------------------------------------------------------
+    def _suggest_tab(self) -> QWidget:
         w = QWidget()
         v = QVBoxLayout(w)
         bar = QHBoxLayout()
-        self.meet_target = QComboBox()
-        self.meet_series = QComboBox()
-        self.meet_series.addItems(SERIES)
-        self.meet_series.setCurrentText("E24")
-        self.meet_button = QPushButton("Find values")
-        self.meet_button.clicked.connect(self.find_values)
+        self.suggest_button = QPushButton("Suggest values")
+        self.suggest_button.setToolTip("For each knob and failing target, the standard values either side of the "
+                                       "one that just meets it, each analysed again with every target")
+        self.suggest_button.clicked.connect(self.find_suggestions)
+        self.search_knobs = QLineEdit()
+        self.search_knobs.setPlaceholderText("knobs, e.g. RC, CE (empty: the advisor picks a pair)")
+        self.search_button = QPushButton("Meet all together")
+        self.search_button.setToolTip("Search every standard-value combination of two or three knobs for the one "
+                                      "that meets every target with the most margin")
+        self.search_button.clicked.connect(self.search_together)
         self.apply_button = QPushButton("Apply selected")
         self.apply_button.setEnabled(False)
         self.apply_button.clicked.connect(self.apply_selected)
-        bar.addWidget(QLabel("Failing target"))
-        bar.addWidget(self.meet_target, 1)
-        bar.addWidget(QLabel("Series"))
-        bar.addWidget(self.meet_series)
-        bar.addWidget(self.meet_button)
+        bar.addWidget(self.suggest_button)
+        bar.addSpacing(12)
+        bar.addWidget(self.search_knobs, 1)
+        bar.addWidget(self.search_button)
+        bar.addSpacing(12)
         bar.addWidget(self.apply_button)
         v.addLayout(bar)
-        self.meet_progress = QProgressBar()
-        self.meet_progress.setVisible(False)
-        v.addWidget(self.meet_progress)
-        self.meet_table = QTableWidget(0, 5)
-        self.meet_table.setHorizontalHeaderLabels(["Field", "Now", "Exact answer", "Estimate's answer", "Write"])
-        self.meet_table.horizontalHeader().setSectionResizeMode(QHeaderView.ResizeMode.Stretch)
-        self.meet_table.setSelectionBehavior(QTableWidget.SelectionBehavior.SelectRows)
-        self.meet_table.setSelectionMode(QTableWidget.SelectionMode.SingleSelection)
-        self.meet_table.itemSelectionChanged.connect(self._meet_selected)
-        self.meet_table.cellDoubleClicked.connect(lambda row, _c: self.apply_remedy(row))
-        v.addWidget(self.meet_table)
+        self.suggest_progress = QProgressBar()
+        self.suggest_progress.setVisible(False)
+        v.addWidget(self.suggest_progress)
+        self.suggest_label = QLabel("Knobs are the values you choose (resistors, capacitors, inductors); a "
+                                    "device's physics is offered only if you can choose another device "
+                                    "(Properties › Advisor may change it).")
+        self.suggest_label.setWordWrap(True)
+        self.suggest_label.setTextFormat(Qt.TextFormat.RichText)
+        v.addWidget(self.suggest_label)
+        self.suggest_table = QTableWidget(0, len(_SUGGEST_COLUMNS))
+        self.suggest_table.setHorizontalHeaderLabels([c for c, _ in _SUGGEST_COLUMNS])
+        for col, (_, tip) in enumerate(_SUGGEST_COLUMNS):
+            self.suggest_table.horizontalHeaderItem(col).setToolTip(tip)
+        header = self.suggest_table.horizontalHeader()
+        header.setSectionResizeMode(QHeaderView.ResizeMode.ResizeToContents)
+        header.setSectionResizeMode(len(_SUGGEST_COLUMNS) - 1, QHeaderView.ResizeMode.Stretch)
+        self.suggest_table.verticalHeader().setVisible(False)
+        self.suggest_table.setSelectionBehavior(QTableWidget.SelectionBehavior.SelectRows)
+        self.suggest_table.setSelectionMode(QTableWidget.SelectionMode.SingleSelection)
+        self.suggest_table.itemSelectionChanged.connect(self._suggestion_selected)
+        self.suggest_table.cellDoubleClicked.connect(lambda row, _c: self.apply_suggestion(row))
+        v.addWidget(self.suggest_table, 1)
         return w
 
-    def find_values(self) -> None:
-        """Search, on the worker thread, for the value of each field that meets the chosen target."""
-        key = self.meet_target.currentData()
-        if key is None:
+    def _targets_now(self):
+        targets = parse_targets(self.doc.targets)
+        if targets.is_empty():
+            self.suggest_label.setText("Set a target first (Targets page): there is nothing to meet.")
+            return None
+        return targets
+
+    def find_suggestions(self) -> None:
+        """Work out, on the worker thread, the suggestions for the design's targets."""
+        targets = self._targets_now()
+        if targets is None:
             return
-        doc, series = snapshot(self.doc), self.meet_series.currentText()
-        targets = parse_targets(doc.targets)
-        self.meet_button.setEnabled(False)
-        self.meet_progress.setVisible(True)
-        self.meet_progress.setValue(0)
-        self.jobs.start("meet", lambda progress, cancel: values_that_meet(
-            doc, key, targets, series, progress=progress, cancel=cancel))
+        doc = snapshot(self.doc)
+        self._busy(True)
+        self.jobs.start("suggest", lambda progress, cancel: suggest(doc, targets, progress=progress, cancel=cancel))
 
-    def _show_remedies(self, remedies) -> None:
-        self.remedies = remedies
-        self.meet_table.setRowCount(len(remedies))
-        for i, r in enumerate(remedies):
-            k = r.knob
-            self.meet_table.setItem(i, 0, _item(k.label, r.text))
-            self.meet_table.setItem(i, 1, _item(value_text(k.nominal, k.unit), numeric=True))
-            exact = "no single value can" if r.exact_value is None else value_text(r.exact_value, k.unit, 4)
-            self.meet_table.setItem(i, 2, _item(exact, r.text, numeric=True))
-            est = "—" if r.estimate_value is None else value_text(r.estimate_value, k.unit, 4)
-            self.meet_table.setItem(i, 3, _item(est, numeric=True))
-            write = r.apply_text or "—"
-            if r.series and r.standard_value is not None:
-                write = f"{r.apply_text} ({r.series})"
-            self.meet_table.setItem(i, 4, _item(write, numeric=True))
+    def search_together(self) -> None:
+        """Search, on the worker thread, the knobs typed (or a proposed pair) together."""
+        targets = self._targets_now()
+        if targets is None:
+            return
+        names = [n.strip() for n in self.search_knobs.text().replace(";", ",").split(",") if n.strip()] or None
+        doc = snapshot(self.doc)
+        self._busy(True)
+        self.jobs.start("search", lambda progress, cancel: search(doc, targets, names, progress=progress,
+                                                                  cancel=cancel))
 
-    def _meet_selected(self) -> None:
-        rows = self.meet_table.selectionModel().selectedRows()
-        self.apply_button.setEnabled(bool(rows) and bool(self.remedies[rows[0].row()].apply_text))
+    def _busy(self, on: bool) -> None:
+        for button in (self.suggest_button, self.search_button):
+            button.setEnabled(not on)
+        self.suggest_progress.setVisible(on)
+        self.suggest_progress.setValue(0)
+
+    def _show_suggestions(self, rows, head: str) -> None:
+        self.suggestions = tuple(rows)
+        self.suggest_label.setText(head)
+        self.suggest_table.setRowCount(len(rows))
+        good, bad = "#1a7f37", "#b3261e"
+        for i, s in enumerate(rows):
+            e = s.effect
+            unit = e.gain_unit
+            first = s.changes[0]
+            between = "" if first.lower is None or len(s.changes) > 1 else \
+                f"{first.knob.series}: {value_text(first.lower, first.knob.unit)} … {value_text(first.upper, first.knob.unit)}"
+            now = ", ".join(value_text(abs(c.knob.nominal), c.knob.unit) for c in s.changes)
+            cells = (s.label, now, between, _hz(e.f_high), _hz(e.f_low),
+                     format_value(abs(e.gain), unit) if math.isfinite(e.gain) else "—",
+                     ", ".join(d.text for d in e.devices) or "—",
+                     f"{100 * s.spread.fraction:.0f} %" if s.spread else "—", verdict_line(e))
+            for col, text in enumerate(cells):
+                item = _item(text, numeric=col in (3, 4, 5, 7))
+                if col == len(cells) - 1:
+                    item.setForeground(QColor(good if s.meets_all else bad))
+                    item.setToolTip("\n".join(c.text for c in e.checks))
+                if len(s.changes) > 1:
+                    font = item.font()
+                    font.setBold(True)
+                    item.setFont(font)
+                self.suggest_table.setItem(i, col, item)
+
+    def _show_advice(self, advice) -> None:
+        meeting = [s for s in advice.suggestions if s.meets_all]
+        if advice.before.meets_all:
+            head = "The design meets every target now; nothing to suggest."
+        elif meeting:
+            best = meeting[0]
+            y = f", yield {100 * best.spread.fraction:.0f} %" if best.spread else ""
+            head = (f"<b>{len(meeting)}</b> of {len(advice.suggestions)} single changes meet every target; "
+                    f"best first by yield: <b>{best.label}</b>{y}. Rows that break a target follow.")
+        else:
+            head = ("No single change meets every target (each row says what it misses). "
+                    "Try <b>Meet all together</b> with two or three knobs.")
+        for key in advice.unmet:
+            head += f"<br>No single knob in reach meets the {TARGET_LABELS[key]} target."
+        self._show_suggestions(advice.suggestions, head)
+
+    def _show_search(self, found) -> None:
+        rows = (found.best,) if found.best is not None else ()
+        colour = "#1a7f37" if found.found else "#b3261e"
+        self._show_suggestions(rows, f'<span style="color:{colour}">{found.text}</span>')
+
+    def _suggestion_selected(self) -> None:
+        rows = self.suggest_table.selectionModel().selectedRows()
+        self.apply_button.setEnabled(bool(rows))
 
     def apply_selected(self) -> None:
-        rows = self.meet_table.selectionModel().selectedRows()
+        rows = self.suggest_table.selectionModel().selectedRows()
         if rows:
-            self.apply_remedy(rows[0].row())
+            self.apply_suggestion(rows[0].row())
 
-    def apply_remedy(self, row: int) -> None:
-        """Write a suggested value into its field as one undoable edit."""
-        r = self.remedies[row]
-        if not r.apply_text or r.knob.part not in self.doc.parts:
+    def apply_suggestion(self, row: int) -> None:
+        """Write a suggestion's values into their fields as one undoable step, keeping the
+        present curve on the Bode plot to compare with."""
+        s = self.suggestions[row]
+        if any(c.knob.part not in self.doc.parts for c in s.changes):
             return
-        self.editor.patch(edits.edit_field(self.doc, r.knob.part, r.knob.key, r.apply_text),
-                          f"Set {r.knob.label} to {r.apply_text}")
+        outcome = self._sens_source
+        patch = edits.Patch()
+        for c in s.changes:
+            patch = patch.merged(edits.edit_field(self.doc, c.knob.part, c.knob.key, c.text))
+        if outcome is not None and outcome.ok:
+            self.applied.emit(bode_data(outcome.analysis).exact)
+        self.editor.patch(patch, f"Apply {s.label}")
 
     # -- tolerance spread -----------------------------------------------------------------
     def _spread_tab(self) -> QWidget:
@@ -407,8 +488,9 @@ class AdvisorPanel(QWidget):
         bar.addStretch(1)
         v.addLayout(bar)
         v.addWidget(self.spread_progress)
-        self.spread_label = QLabel("Part tolerances default by kind (resistors ±5 %, capacitors ±10 %, "
-                                   "transistor values ±10–30 %); the report lists each with its source.")
+        self.spread_label = QLabel("Each part's tolerance as set in Properties, else by kind (resistors ±5 %, "
+                                   "capacitors ±10 %, transistor values ±10–30 %); the report lists each with "
+                                   "its source.")
         self.spread_label.setWordWrap(True)
         v.addWidget(self.spread_label)
         grid = QGridLayout()
@@ -486,7 +568,7 @@ class AdvisorPanel(QWidget):
 
     # -- worker results -------------------------------------------------------------------
     def _job_progress(self, kind: str, done: int, total: int) -> None:
-        bar = self.spread_progress if kind == "spread" else self.meet_progress
+        bar = self.spread_progress if kind == "spread" else self.suggest_progress
         bar.setMaximum(total)
         bar.setValue(done)
 
@@ -498,10 +580,11 @@ class AdvisorPanel(QWidget):
                 self.spread_label.setText("Spread cancelled." if result == "cancelled" else result)
             else:
                 self._show_spread(result)
-        elif kind == "meet":
-            self.meet_button.setEnabled(True)
-            self.meet_progress.setVisible(False)
+        else:
+            self._busy(False)
             if isinstance(result, str):
-                self.target_problem.setText(result)
+                self.suggest_label.setText("Stopped." if result == "cancelled" else result)
+            elif kind == "suggest":
+                self._show_advice(result)
             else:
-                self._show_remedies(result)
+                self._show_search(result)

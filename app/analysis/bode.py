@@ -69,6 +69,9 @@ class BodePlot(Restyles, QWidget):
             plot.getViewBox().sigRangeChangedManually.connect(self._on_manual_range)
         self.phase.setLabel("bottom", "Frequency")
         self.curves = {key: (self.magnitude.plot(), self.phase.plot()) for key in ("exact", "high", "low")}
+        # The exact curve of the design before an applied suggestion, kept until dismissed.
+        self.before = (self.magnitude.plot(), self.phase.plot())
+        self._before_shown = False
         self.half_power = pg.InfiniteLine(angle=0, movable=False)
         self.magnitude.addItem(self.half_power, ignoreBounds=True)
         self.markers = {}
@@ -118,6 +121,17 @@ class BodePlot(Restyles, QWidget):
             self.fit()
         self._restyle()
 
+    def show_before(self, curve) -> None:
+        """Draw ``curve`` (a :class:`bandsketch.engine.present.plotdata.Curve`) as the design
+        before a change, under the present one; None dismisses it."""
+        self._before_shown = curve is not None
+        for item, values in zip(self.before, ("magnitude_db", "phase_deg")):
+            item.setData(curve.freq_hz if curve else [], getattr(curve, values) if curve else [])
+
+    def has_before(self) -> bool:
+        """Whether a "before" curve is shown."""
+        return self._before_shown
+
     def fit(self) -> None:
         """Show the whole sweep and the magnitude from the mid band down to the view depth."""
         self._zoomed = False
@@ -161,9 +175,10 @@ class BodePlot(Restyles, QWidget):
         """The key to the curves, in their colours, for a label beside the plot (a legend
         inside the plot would cover the corners it is there to show)."""
         c = self._colours
+        before = f" &nbsp; <span style='color:{c.muted.name()}'>┄ before the change</span>" if self._before_shown else ""
         return (f"<span style='color:{c.ink.name()}'>━ exact</span> &nbsp; "
                 f"<span style='color:{c.high.name()}'>╍ A_m/(1 + jω b1)</span> &nbsp; "
-                f"<span style='color:{c.low.name()}'>╍ A_m·s/(s + ω_L)</span>")
+                f"<span style='color:{c.low.name()}'>╍ A_m·s/(s + ω_L)</span>{before}")
 
     def _restyle(self) -> None:
         c = self._colours
@@ -180,6 +195,8 @@ class BodePlot(Restyles, QWidget):
         for key, (m, p) in self.curves.items():
             m.setPen(pens[key])
             p.setPen(pens[key])
+        for item in self.before:
+            item.setPen(pg.mkPen(c.muted, width=2, style=Qt.PenStyle.DotLine))
         self.half_power.setPen(pg.mkPen(c.muted, width=1, style=Qt.PenStyle.DotLine))
         for (corner, estimated), (lines, dot, label) in self.markers.items():
             colour = c.stale if grey else (c.band(corner) if estimated else c.ink)

@@ -70,6 +70,11 @@ class AnalysisPanel(QWidget):
         self.hover_readout = QLabel()
         self.hover_readout.setAlignment(Qt.AlignmentFlag.AlignRight | Qt.AlignmentFlag.AlignVCenter)
         tools.addWidget(self.hover_readout, 1)
+        self.dismiss_before = QToolButton(text="Hide before")
+        self.dismiss_before.setToolTip("Remove the dotted curve of the design before the applied suggestion")
+        self.dismiss_before.clicked.connect(lambda: self.compare_with_before(None))
+        self.dismiss_before.hide()
+        tools.addWidget(self.dismiss_before)
         fit = QToolButton(text="Fit")
         fit.setToolTip("Show the whole sweep again after zooming or panning")
         fit.clicked.connect(self.bode.fit)
@@ -111,6 +116,13 @@ class AnalysisPanel(QWidget):
         self.refresh()
 
     # -- analysis -------------------------------------------------------------------------
+    def compare_with_before(self, curve) -> None:
+        """Keep ``curve`` (the exact response before a change) on the Bode plot until dismissed
+        (None dismisses it)."""
+        self.bode.show_before(curve)
+        self.dismiss_before.setVisible(curve is not None)
+        self.legend.setText(self.bode.legend_html())
+
     def refresh(self) -> None:
         """Analyse the design as it is now (the runner decides on which thread)."""
         self.runner.request(self.doc)

@@ -1,5 +1,6 @@
-"""The advisor panel over a real design: targets as undo steps, sensitivity hover, the value
-that meets a failing target applied in one click (and undone), spread with cancel, report."""
+"""The advisor panel over a real design: targets as undo steps, sensitivity hover, a suggestion
+that meets every target applied in one click (and undone), the search over knobs together,
+spread with cancel, report."""
 
 from __future__ import annotations
 
@@ -43,7 +44,6 @@ def test_target_is_an_undo_step_and_the_verdict_follows(panel):
     panel.settle()
     assert panel.doc.targets["f_high_min"] == "300k"
     assert "FAIL" in panel.verdict_label.text()
-    assert panel.meet_target.count() == 1
     panel.editor.undo()
     panel.settle()
     assert "f_high_min" not in panel.doc.targets
@@ -89,25 +89,57 @@ def test_the_advisor_shows_the_runners_analysis(panel, window):
     assert "PASS" in panel.verdict_label.text()
 
 
-def test_done_when_find_apply_pass_undo(panel, qtbot):
-    # The issue's acceptance path on the two-stage sample: a missed f_H target, the part that
-    # matters most, its standard value applied in one click, the verdict turning to pass.
-    panel.set_target("f_high_min", "300k")
+def test_done_when_suggest_apply_pass_undo(panel, window):
+    # The issue's acceptance path on the two-stage sample: f_H, f_L and gain targets, the
+    # best standard-value change that meets all three applied in one click (with its yield
+    # shown), the verdict turning to pass, the previous curve kept on the Bode plot until
+    # dismissed, and one undo step taking it all back.
+    panel.set_target("f_high_min", "250k")
+    panel.set_target("f_low_max", "50")
+    panel.set_target("gain", "54 dB")
     panel.settle()
     targets = parse_targets(panel.doc.targets)
     assert not meets(targets, *_figures(panel.doc))["f_high_min"]
-    panel.find_values()
-    assert panel.jobs.wait(120000)
-    assert panel.meet_table.rowCount() == len(panel.remedies) > 0
-    row = next(i for i, r in enumerate(panel.remedies) if r.apply_text)
-    before = panel.doc.parts[panel.remedies[row].knob.part]
-    panel.meet_table.selectRow(row)
+    assert "FAIL" in panel.verdict_label.text()
+    panel.find_suggestions()
+    assert panel.jobs.wait(180000)
+    assert panel.suggest_table.rowCount() == len(panel.suggestions) > 0
+    best = panel.suggestions[0]
+    assert best.meets_all and best.spread is not None
+    assert f"yield {100 * best.spread.fraction:.0f} %" in panel.suggest_label.text()
+    assert panel.suggest_table.item(0, 8).text() == "meets every target"
+    # Rows that meet everything come first; a row that breaks another target says which.
+    flags = [s.meets_all for s in panel.suggestions]
+    assert flags == sorted(flags, reverse=True)
+    before = {c.knob.part: panel.doc.parts[c.knob.part] for c in best.changes}
+    steps = window.stack.count()
+    panel.suggest_table.selectRow(0)
     panel.apply_selected()
     panel.settle()
-    assert meets(targets, *_figures(panel.doc))["f_high_min"]
-    assert "PASS" in panel.verdict_label.text()
+    assert window.stack.count() == steps + 1
+    assert all(meets(targets, *_figures(panel.doc)).values())
+    assert "FAIL" not in panel.verdict_label.text()
+    bode = window.analysis_panel.bode
+    assert bode.has_before() and window.analysis_panel.dismiss_before.isVisibleTo(window.analysis_panel)
     panel.editor.undo()
-    assert panel.doc.parts[before.name] == before
+    assert all(panel.doc.parts[name] == part for name, part in before.items())
+    window.analysis_panel.dismiss_before.click()
+    assert not bode.has_before()
+
+
+def test_search_together_meets_or_says_it_cannot(panel):
+    panel.set_target("f_high_min", "300k")
+    panel.set_target("gain", "54 dB")
+    panel.settle()
+    panel.search_knobs.setText("RC2, CC")
+    panel.search_together()
+    assert panel.jobs.wait(180000)
+    text = panel.suggest_label.text()
+    assert "RC2" in text and ("meets every target" in text or "No combination of RC2, CC" in text)
+    panel.search_knobs.setText("Q1")
+    panel.search_together()
+    assert panel.jobs.wait(60000)
+    assert "not a value the advisor may change" in panel.suggest_label.text()
 
 
 def test_spread_runs_and_cancels(panel, qtbot):
