@@ -14,6 +14,8 @@ from dataclasses import dataclass, field, replace
 from bandsketch.engine.design.document import Document, Part, Wire
 from bandsketch.engine.design.parts import GRID, KINDS, ROTATIONS
 
+from .sheet_index import Lines, SheetIndex
+
 Point = tuple[int, int]
 
 
@@ -110,23 +112,7 @@ def _on_segment(pt: Point, a: Point, b: Point) -> bool:
 
 def junctions(doc: Document) -> list[Point]:
     """Points where three or more connections meet (pins, wire ends, wires passing through)."""
-    degree = pin_points(doc)
-    wires = list(doc.wires.values())
-    for w in wires:
-        pts = w.points
-        degree[pts[0]] += 1
-        degree[pts[-1]] += 1
-        for pt in pts[1:-1]:
-            degree[pt] += 2
-    # A wire end or a pin on the inside of a segment joins it (a T): that segment counts twice.
-    touching = [(w, pt) for w in wires for pt in (w.points[0], w.points[-1])]
-    touching += [(None, pt) for pt in pin_points(doc)]
-    for owner, pt in touching:
-        for other in wires:
-            if other is not owner and any(_on_segment(pt, a, b)
-                                          for a, b in zip(other.points, other.points[1:])):
-                degree[pt] += 2
-    return sorted(pt for pt, n in degree.items() if n >= 3)
+    return sorted(SheetIndex(doc).junctions)
 
 
 def simplify(points, keep=frozenset()) -> tuple:
@@ -201,13 +187,13 @@ def _follow(doc: Document, moved: dict, patch: Patch, skip_wires=frozenset(), ke
                 pts = _moved_end(pts, False, where[w.points[-1]])
         patch.wires[wid] = (w, Wire(wid, simplify(pts, keep)))
     still = Counter(pt for n, p in doc.parts.items() if n not in moved for pt in p.pins().values())
+    staying = {i: w.points for i, w in doc.wires.items() if i not in skip_wires}
+    lines, corners = Lines(staying.items()), {pt for pts in staying.values() for pt in pts}
     wid = doc.new_wire_id()
     for old, new in where.items():
         if old == new or old in ends:
             continue
-        on_wire = any(old in w.points or any(_on_segment(old, a, b) for a, b in zip(w.points, w.points[1:]))
-                      for i, w in doc.wires.items() if i not in skip_wires)
-        if on_wire or still[old]:
+        if old in corners or lines.through(old) or still[old]:
             bend = (new[0], old[1]) if leads[old] else (old[0], new[1])
             patch.wires[wid] = (None, Wire(wid, simplify([new, bend, old])))
             wid += 1

@@ -25,7 +25,7 @@ from PySide6.QtWidgets import (QFormLayout, QGridLayout, QHBoxLayout, QHeaderVie
 from bandsketch.engine.design.document import Document
 from bandsketch.engine.core.errors import Cancelled, CircuitError
 from bandsketch.engine.present.plotdata import histogram_axis
-from bandsketch.engine.advise.sensitivity import FIGURE_TITLES, sensitivities
+from bandsketch.engine.advise.sensitivity import FIGURE_TITLES, FIGURES, sensitivities
 from bandsketch.engine.design.schema import target_problem
 from bandsketch.engine.advise.search import search
 from bandsketch.engine.advise.suggest import suggest, verdict_line
@@ -238,6 +238,9 @@ class AdvisorPanel(QWidget):
         note.setWordWrap(True)
         v.addWidget(note)
         v.addWidget(self.sens_table)
+        self.sens_notes = QLabel()
+        self.sens_notes.setWordWrap(True)
+        v.addWidget(self.sens_notes)
         return w
 
     def eventFilter(self, obj, event):
@@ -308,8 +311,11 @@ class AdvisorPanel(QWidget):
             label = _item(r.value.label, f"{r.value.element} = {format_value(r.value.nominal, r.value.unit)}")
             label.setData(Qt.ItemDataRole.UserRole, r.value.part)
             self.sens_table.setItem(i, 0, label)
-            for j, v in enumerate((r.high_exact, r.high_estimate, r.low_exact, r.low_estimate, r.gain), 1):
-                self.sens_table.setItem(i, j, _item("—" if v is None else f"{v:+.3f}", numeric=True))
+            for j, figure in enumerate(FIGURES, 1):
+                v = getattr(r, figure)
+                self.sens_table.setItem(i, j, _item("—" if v is None else f"{v:+.3f}", sens.notes.get(figure, ""),
+                                                    numeric=True))
+        self.sens_notes.setText("\n".join(sens.notes.values()))
 
     # -- suggestions ----------------------------------------------------------------------
     def _suggest_tab(self) -> QWidget:

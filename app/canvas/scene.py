@@ -13,6 +13,7 @@ from bandsketch.engine.design.parts import GRID
 
 from .. import edits
 from ..engine_link import connectivity_problems
+from ..sheet_index import SheetIndex
 from ..theme import Theme
 from .items import JunctionItem, PartItem, ProblemItem, WireItem
 from .symbols import ResistorStyle
@@ -45,7 +46,8 @@ class SchematicScene(QGraphicsScene):
         self.setSceneRect(QRectF(-SHEET_HALF, -SHEET_HALF, 2 * SHEET_HALF, 2 * SHEET_HALF))
         self._parts: dict[str, PartItem] = {}
         self._wires: dict[int, WireItem] = {}
-        self._junctions: list[JunctionItem] = []
+        self._junctions: dict = {}  # point -> JunctionItem
+        self.index = SheetIndex(doc)
         self._problem_marks: list[ProblemItem] = []
         self._accents: dict[str, str | None] = {}
         self._pointed = ""
@@ -58,6 +60,7 @@ class SchematicScene(QGraphicsScene):
     # -- following the document -----------------------------------------------------
     def _on_change(self, change: Change) -> None:
         what, key = change.what, change.key
+        added, removed = self.index.follow(change)
         if what == "reset":
             self._rebuild()
             return
@@ -80,7 +83,7 @@ class SchematicScene(QGraphicsScene):
                 is_input = self.doc.input_source == name
                 if is_input != item.is_input:
                     item.show(item.part, is_input=is_input)
-        self._refresh_junctions()
+        self._show_junctions(added, removed)
 
     def _rebuild(self) -> None:
         for item in [*self._parts.values(), *self._wires.values()]:
@@ -91,7 +94,7 @@ class SchematicScene(QGraphicsScene):
             self._add_part(name)
         for wid in self.doc.wires:
             self._add_wire(wid)
-        self._refresh_junctions()
+        self._show_junctions(self.index.junctions - set(self._junctions), set(self._junctions) - self.index.junctions)
 
     def _add_part(self, name: str) -> None:
         item = PartItem(self.doc.parts[name], self.theme, self.style)
@@ -106,12 +109,13 @@ class SchematicScene(QGraphicsScene):
         self._wires[wid] = item
         self.addItem(item)
 
-    def _refresh_junctions(self) -> None:
-        for item in self._junctions:
-            self.removeItem(item)
-        self._junctions = [JunctionItem(pt, self.theme) for pt in edits.junctions(self.doc)]
-        for item in self._junctions:
-            self.addItem(item)
+    def _show_junctions(self, added, removed) -> None:
+        """Add and remove only the dots the index says changed."""
+        for pt in removed:
+            self.removeItem(self._junctions.pop(pt))
+        for pt in added:
+            self._junctions[pt] = JunctionItem(pt, self.theme)
+            self.addItem(self._junctions[pt])
 
     def refresh_problems(self) -> None:
         """Ask the engine what is wrong with the connections and mark it where it is."""

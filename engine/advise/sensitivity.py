@@ -20,7 +20,7 @@ the full analysis.
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from types import MappingProxyType
 from typing import Mapping
 
@@ -57,8 +57,9 @@ class Sensitivity:
         Of the exact upper corner, and of the open-circuit estimate 1/(2π b1).
     low_exact, low_estimate : float or None
         Of the exact lower corner, and of the short-circuit estimate ω_L/(2π).
-    gain : float
-        Of the resistive mid-band gain magnitude |A_m|.
+    gain : float or None
+        Of the resistive mid-band gain magnitude |A_m| (None only where it cannot be
+        computed; :attr:`Sensitivities.notes` says why).
     """
 
     value: PartValue
@@ -66,7 +67,7 @@ class Sensitivity:
     high_estimate: float | None
     low_exact: float | None
     low_estimate: float | None
-    gain: float
+    gain: float | None
 
 
 @dataclass(frozen=True)
@@ -77,9 +78,13 @@ class Sensitivities:
     ----------
     rows : tuple of Sensitivity
         In circuit order.
+    notes : Mapping[str, str]
+        Figure (one of :data:`FIGURES`) -> why none of its sensitivities could be computed
+        (the network it is worked out on is singular); its entries in ``rows`` are None.
     """
 
     rows: tuple
+    notes: Mapping[str, str] = field(default_factory=lambda: MappingProxyType({}))
 
     def ranked(self, figure: str = "high_exact") -> tuple:
         """Rows with a value for ``figure`` (one of :data:`FIGURES`), largest magnitude first."""
@@ -196,15 +201,45 @@ def sensitivities(circuit, analysis) -> Sensitivities:
     coef, sign = full_ps.coefficients, _coefficient_sign(circuit, names)
     high = [el for el in reactive if bands[el.name] == HIGH]
     low = [el for el in reactive if bands[el.name] == LOW]
-    hi_est = _high_estimate(mid_sys, mid_ps, high, coef, sign, names)
-    lo_est = _low_estimate(dc_sys, full_ps, low, coef, sign, names)
-    d_gain = _midband_gain_terms(mid_sys, mid_ps, coef, sign)
-    hi_ex = _corner_exact(dc_sys, full_ps, analysis.f_high_exact, d_gain, coef, sign)
-    lo_ex = _corner_exact(dc_sys, full_ps, analysis.f_low_exact, d_gain, coef, sign)
+    notes: dict = {}
+    hi_est = _guarded(notes, "high_estimate", lambda: _high_estimate(mid_sys, mid_ps, high, coef, sign, names))
+    lo_est = _guarded(notes, "low_estimate", lambda: _low_estimate(dc_sys, full_ps, low, coef, sign, names))
+    d_gain = _guarded(notes, "gain", lambda: _midband_gain_terms(mid_sys, mid_ps, coef, sign))
+    hi_ex = lo_ex = None
+    for figure, f_hz in (("high_exact", analysis.f_high_exact), ("low_exact", analysis.f_low_exact)):
+        if d_gain is None and f_hz is not None:
+            notes[figure] = f"{FIGURE_TITLES[figure]}: needs the gain's sensitivities, which could not be computed"
+            continue
+        value = _guarded(notes, figure, lambda f_hz=f_hz: _corner_exact(dc_sys, full_ps, f_hz, d_gain, coef, sign))
+        hi_ex, lo_ex = (value, lo_ex) if figure == "high_exact" else (hi_ex, value)
 
     def at(v, k):
         return None if v is None else float(v[k])
 
-    rows = tuple(Sensitivity(pv, at(hi_ex, k), at(hi_est, k), at(lo_ex, k), at(lo_est, k), float(d_gain[k]))
+    rows = tuple(Sensitivity(pv, at(hi_ex, k), at(hi_est, k), at(lo_ex, k), at(lo_est, k), at(d_gain, k))
                  for k, pv in enumerate(pvs))
-    return Sensitivities(rows)
+    return Sensitivities(rows, MappingProxyType(notes))
+
+
+_WORKED_ON = {"high_estimate": "the mid-band network seen by the high-band capacitors",
+              "low_estimate": "the network seen by the low-band capacitors",
+              "gain": "the resistive mid-band network",
+              "high_exact": "the full network at the upper corner",
+              "low_exact": "the full network at the lower corner"}
+
+
+def _guarded(notes: dict, figure: str, compute):
+    """``compute()``, or None with a note in ``notes`` where its network is singular or the
+    result is not a number (a figure that is zero, a flat response)."""
+    why = "gives a singular matrix (elements in parallel or in a loop act as one)"
+    try:
+        with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
+            value = compute()
+    except (np.linalg.LinAlgError, ZeroDivisionError):
+        value = None
+    else:
+        if value is None or np.all(np.isfinite(value)):
+            return value
+        why = "gives no finite derivative (the figure does not move with the values)"
+    notes[figure] = f"{FIGURE_TITLES[figure]}: {_WORKED_ON[figure]} {why}, so its sensitivities are not shown"
+    return None

@@ -11,6 +11,18 @@ from ..core.values import parse_value
 
 GROUND_NAMES = {"0", "gnd", "ground"}
 
+BLOCK_KEYWORDS = MappingProxyType({
+    "bjt": MappingProxyType({"small_signal": ("gm", "rpi", "ro", "cpi"),
+                             "operating_point": ("ic", "beta", "va", "ft", "temp"),
+                             "": ("rb", "cmu", "ccs")}),
+    "mosfet": MappingProxyType({"small_signal": ("gm", "ro"),
+                                "operating_point": ("id", "vov", "lam", "va"),
+                                "": ("gmb", "cgs", "cgd", "cdb", "csb")}),
+})
+"""Block kind -> model mode -> the value keywords :meth:`Circuit.bjt` and :meth:`Circuit.mosfet`
+take in that mode (``""``: in either). The part catalogue's fields carry the same keys and
+modes (a test holds the two together)."""
+
 
 def node_name(node) -> str:
     """Canonical node name: ``"0"`` for ground (``0``, ``gnd``, ``GND``, ``ground``)."""
@@ -63,6 +75,7 @@ class Circuit:
 
     # -- building ------------------------------------------------------------
     def _add(self, el):
+        _check_name(el.name)
         if el.name in self._elements or el.name in self._blocks:
             raise CircuitError(f"the name {el.name} is used twice; give each part its own name",
                                parts=(el.name,))
@@ -117,6 +130,9 @@ class Circuit:
                               self._value(name, "r", r, "Ω", allow_negative=True, allow_zero=True)))
 
     def _block(self, kind, name, pins, given):
+        _check_name(name)
+        if kind in BLOCK_KEYWORDS:
+            _check_keywords(kind, name, given)
         if name in self._elements or name in self._blocks:
             raise CircuitError(f"the name {name} is used twice; give each part its own name", parts=(name,))
         values = RESOLVERS[kind](name, {k: v for k, v in given.items() if v is not None})
@@ -173,3 +189,23 @@ class Circuit:
         other._blocks = dict(self._blocks)
         other.input_name, other.output_nodes = self.input_name, self.output_nodes
         return other
+
+
+def _check_name(name) -> None:
+    if not isinstance(name, str) or not name.strip():
+        raise CircuitError(f"a part is given the name {name!r}; give every part a name of its own, such as R1")
+
+
+def _check_keywords(kind: str, name: str, given: dict) -> None:
+    """Refuse a keyword the block does not take, and values of both model modes at once."""
+    modes = BLOCK_KEYWORDS[kind]
+    known = {key for keys in modes.values() for key in keys}
+    unknown = sorted(set(given) - known)
+    if unknown:
+        raise CircuitError(f"{name}: {kind}() takes no keyword {', '.join(map(repr, unknown))}; "
+                           f"it takes {', '.join(sorted(known))}", parts=(name,))
+    used = {mode: [k for k in keys if given.get(k) is not None] for mode, keys in modes.items() if mode}
+    if all(used.values()):
+        small, op = used["small_signal"], used["operating_point"]
+        raise CircuitError(f"{name}: give small-signal values ({', '.join(small)}) or an operating point "
+                           f"({', '.join(op)}), not both", parts=(name,))

@@ -229,7 +229,8 @@ def _sensitivity_table(sens) -> str:
                                    ("high_exact", "high_estimate", "low_exact", "low_estimate", "gain"))
     return (_table(head, rows, numeric=(1, 2, 3, 4, 5)) +
             '<p class="small">+1 means the figure rises in proportion to the value; ranked by the exact '
-            'upper corner, then the lower.</p>')
+            'upper corner, then the lower.</p>'
+            + "".join(f'<p class="small">{_e(note)}</p>' for note in sens.notes.values()))
 
 
 REPORT_SUGGESTIONS = 8

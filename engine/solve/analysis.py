@@ -442,9 +442,12 @@ def analyze(c, bands=None, *, per_decade: int | None = None, full_matrix_limit: 
         # largest node voltage the input drives, not against an exact zero.
         if abs(gain) <= UNREACHED_RATIO * np.abs(x_mid[:len(mid.node_index)]).max(initial=0.0):
             out = c.output_nodes[0] if c.output_nodes[1] == "0" else " − ".join(c.output_nodes)
+            pinned = ", ".join(f"{name} to the {band} band" for name, band in pins.items())
+            hint = (f"; it may be the band pins ({pinned}) that cut it off: unpin them to let the test decide"
+                    if pins else "")
             raise CircuitError(f"The output {out} does not respond to the input "
-                               f"{c.input_name} in the mid band: check the output probe and the signal path.",
-                               nodes=c.output_nodes)
+                               f"{c.input_name} in the mid band: check the output probe and the signal path{hint}.",
+                               nodes=c.output_nodes, parts=tuple(pins))
         low_bracket, high_bracket = brackets(freqs, H, f_m, abs(gain) / math.sqrt(2))
         if chosen == previous:
             break

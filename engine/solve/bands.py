@@ -27,6 +27,10 @@ NEUTRAL_DB = 0.01
 IN_BAND_DB = 1.0
 """An element both of whose states lower the gain by more than this (dB) acts inside the band."""
 ROUNDOFF = 1e-10
+CANCELLED = 1e-8
+"""Where 1 − t·z of the Sherman–Morrison update is this small, the element is nearly a short
+to the network it sees (a 1 F capacitor on a 1 TΩ node) and the difference has lost its digits:
+the network without it is solved directly instead (one more factorisation)."""
 """A state's gain below this fraction of the largest is rounding error of an exact zero."""
 
 
@@ -155,7 +159,8 @@ def band_tests(system, reactive, f_test: float, fixed) -> dict[str, BandTest]:
         Name -> :class:`BandTest`.
     """
     w = 2 * math.pi * f_test
-    lu = factorize(system.G + 1j * w * system.C, f"at the test frequency {f_test:g} Hz")
+    A = (system.G + 1j * w * system.C).tocsc()
+    lu = factorize(A, f"at the test frequency {f_test:g} Hz")
     x = lu.solve(system.b.astype(complex))
     y = lu.solve(system.c.astype(complex), trans="T")
     H = complex(system.c @ x)
@@ -173,7 +178,10 @@ def band_tests(system, reactive, f_test: float, fixed) -> dict[str, BandTest]:
         if el.name in fixed:
             out[el.name] = BandTest(el.name, abs(H), abs(H), abs(H), NEUTRAL, False, fixed[el.name])
             continue
-        removed = abs(H + t[k] * q[k] * p[k] / (1 - t[k] * z[k]))
+        if abs(1 - t[k] * z[k]) < CANCELLED:
+            removed = _removed_directly(system, A, U[:, [k]], t[k])
+        else:
+            removed = abs(H + t[k] * q[k] * p[k] / (1 - t[k] * z[k]))
         unbounded = abs(H - q[k] * p[k] / z[k])
         top = max(removed, unbounded, abs(H))
         removed, unbounded = (float(v) if v >= ROUNDOFF * top else 0.0 for v in (removed, unbounded))
@@ -184,3 +192,9 @@ def band_tests(system, reactive, f_test: float, fixed) -> dict[str, BandTest]:
         acts = abs(H) > 0 and _db(shorted) < lower and _db(opened) < lower
         out[el.name] = BandTest(el.name, shorted, opened, abs(H), band, bool(acts))
     return out
+
+
+def _removed_directly(system, A, u, t) -> float:
+    """|H| with the element of admittance ``t`` and port column ``u`` taken out of ``A``."""
+    x = factorize((A - t * (u @ u.T)).tocsc(), "with one element removed").solve(system.b.astype(complex))
+    return abs(complex(system.c @ x))
