@@ -16,7 +16,6 @@ from dataclasses import dataclass
 
 from ..core.errors import BadValueError
 from ..core.values import parse_value
-from ..design.netlist import NO_ELEMENT, given_from_params
 from ..design.parts import KINDS
 from ..design.sourcing import series_of
 
@@ -29,7 +28,6 @@ DESIGN_CHOICES = frozenset({
 
 _CONDITIONS = {"temp"}
 """Fields that are conditions of use, never a design choice (the temperature)."""
-_BLOCKS = ("bjt", "mosfet", "opamp")
 _PARSER_UNITS = {"Ω", "F", "H", "S", "V/V", "A/A", "V", "A", "Hz", "K"}
 
 
@@ -77,12 +75,13 @@ def is_design_choice(kind: str, key: str) -> bool:
 
 
 def _numeric_fields(part):
-    kind = KINDS[part.kind]
-    active = given_from_params(part.kind, part.params) if part.kind in _BLOCKS else part.params
-    for f in kind.fields:
-        if f.unit in ("choice", "name", "net") or f.key in _CONDITIONS or f.key not in active:
+    """The number fields of the part's chosen model mode (a block's other modes' fields do nothing)."""
+    mode = part.params.get("mode", "")
+    for f in KINDS[part.kind].fields:
+        if f.unit in ("choice", "name", "net") or f.key in _CONDITIONS or f.mode not in ("", mode):
             continue
-        yield f
+        if getattr(f, "knob", True):
+            yield f
 
 
 def knobs(doc, only=None) -> tuple:
@@ -102,7 +101,7 @@ def knobs(doc, only=None) -> tuple:
     """
     out = []
     for part in doc.parts.values():
-        if part.kind in NO_ELEMENT or part.sourcing.knob == "no":
+        if part.sourcing.knob == "no":
             continue
         for f in _numeric_fields(part):
             device = not is_design_choice(part.kind, f.key)
