@@ -258,7 +258,7 @@ def add_part(doc: Document, part: Part) -> Patch:
     short the part.
     """
     patch = Patch(parts={part.name: (None, part)})
-    if part.kind in ("vsource", "isource") and doc.input_source is None:
+    if KINDS[part.kind].signal and doc.input_source is None:
         patch.meta["input_source"] = (None, part.name)
     pins = tuple(part.pins().values())
     if len(pins) == 2:

@@ -45,7 +45,7 @@ def check_field(doc: Document, part: Part, f: Field, text: str) -> FieldCheck:
                                      "name the source whose current is sensed")
     if not is_numeric(f):
         return FieldCheck(True, text)
-    if part.kind in devices.RESOLVERS:
+    if part.kind in devices.MODELS:
         try:
             netlist.derived_values(part.with_params(**{f.key: text}))
         except BadValueError as exc:
@@ -91,5 +91,4 @@ def derived_values(part: Part) -> dict | str:
 
 def kind_fields(part: Part) -> tuple:
     """The fields of a part that apply now: a transistor block shows only its chosen mode's."""
-    mode = part.params.get("mode", "")
-    return tuple(f for f in KINDS[part.kind].fields if not f.mode or f.mode == mode)
+    return KINDS[part.kind].active_fields(part.params)

@@ -10,6 +10,8 @@ from PySide6.QtGui import QDrag, QIcon, QPainter, QPen, QPixmap
 from PySide6.QtWidgets import (QApplication, QGridLayout, QGroupBox, QSizePolicy, QToolButton, QVBoxLayout,
                                QWidget)
 
+from bandsketch.engine.design.parts import KINDS, PALETTE_GROUPS
+
 from .canvas.controller import Template
 from .canvas.symbols import ResistorStyle, build_symbol, frame_transform
 from .canvas.view import PART_MIME
@@ -25,33 +27,10 @@ class Entry:
     key: str = ""
 
 
-GROUPS = (
-    ("Passive", (
-        Entry("Resistor", Template("resistor"), "R"),
-        Entry("Capacitor", Template("capacitor"), "C"),
-        Entry("Inductor", Template("inductor"), "L"),
-    )),
-    ("Sources", (
-        Entry("Voltage source", Template("vsource"), "V"),
-        Entry("Current source", Template("isource"), "I"),
-        Entry("V-controlled I", Template("vccs")),
-        Entry("V-controlled V", Template("vcvs")),
-        Entry("I-controlled I", Template("cccs")),
-        Entry("I-controlled V", Template("ccvs")),
-    )),
-    ("Active", (
-        Entry("NPN transistor", Template("bjt", {"polarity": "npn"}), "Q"),
-        Entry("PNP transistor", Template("bjt", {"polarity": "pnp"})),
-        Entry("n-MOS transistor", Template("mosfet", {"polarity": "n"}), "M"),
-        Entry("p-MOS transistor", Template("mosfet", {"polarity": "p"})),
-        Entry("Op-amp", Template("opamp"), "U"),
-    )),
-    ("Connections", (
-        Entry("Ground", Template("ground"), "G"),
-        Entry("Net label", Template("label"), "N"),
-        Entry("Output probe", Template("output"), "O"),
-    )),
-)
+GROUPS = tuple(
+    (group, tuple(Entry(o.title, Template(kind.kind, dict(o.params)), o.key)
+                  for kind in KINDS.values() for o in kind.offers if o.group == group))
+    for group in PALETTE_GROUPS)
 """The palette's contents, in order; the keys are the canvas's single-key part shortcuts."""
 
 ICON_SIZE = 36

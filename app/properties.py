@@ -186,7 +186,8 @@ class PropertiesPanel(QWidget):
         if self.part_name is None:
             return ("doc", self._selection, tuple(sorted(self.doc.parts)), self.doc.input_source)
         p = self.doc.parts[self.part_name]
-        sensed = (tuple(sorted(self.doc.parts)), p.params.get("sensed")) if p.kind in ("cccs", "ccvs") else ()
+        senses = any(f.unit == "name" for f in KINDS[p.kind].fields)
+        sensed = (tuple(sorted(self.doc.parts)), p.params.get("sensed")) if senses else ()
         return ("part", p.kind, p.params.get("mode"), p.params.get("polarity"), sensed,
                 self.doc.input_source == p.name, self.doc.band_pins.get(p.name), p.sourcing)
 
@@ -238,7 +239,7 @@ class PropertiesPanel(QWidget):
         sources = QComboBox()
         sources.addItem("(none)", None)
         for p in self.doc.parts.values():
-            if p.kind in ("vsource", "isource"):
+            if KINDS[p.kind].signal:
                 sources.addItem(p.name, p.name)
         sources.setCurrentIndex(max(0, sources.findData(self.doc.input_source)))
         sources.currentIndexChanged.connect(
@@ -274,13 +275,13 @@ class PropertiesPanel(QWidget):
             verdict = check_field(self.doc, part, f, entry.edit.text())
             entry.show_verdict(verdict.ok, verdict.shown)
             form.addRow(caption(f.label), entry)
-        if part.kind in ("vsource", "isource"):
+        if KINDS[part.kind].signal:
             check = QCheckBox("Carries the input signal")
             check.setChecked(self.doc.input_source == part.name)
             check.toggled.connect(lambda on: self.editor.patch(
                 edits.set_input(self.doc, self.part_name if on else None), "Choose signal input"))
             form.addRow("Signal", check)
-        if part.kind == "capacitor":
+        if KINDS[part.kind].banded:
             band = QComboBox()
             for key, text in BAND_NAMES.items():
                 band.addItem(text, key)
@@ -289,7 +290,7 @@ class PropertiesPanel(QWidget):
                 edits.pin_band(self.doc, self.part_name, band.itemData(i)), "Pin band"))
             form.addRow("Sets band", band)
         self._sourcing_group(part, outer)
-        if part.kind in ("bjt", "mosfet"):
+        if any(f.mode for f in KINDS[part.kind].fields):
             group = QGroupBox("Derived (read-only)")
             self._derived = QFormLayout(group)
             outer.addWidget(group)

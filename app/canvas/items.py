@@ -7,6 +7,7 @@ so painting only draws what is already laid out.
 
 from __future__ import annotations
 
+import re
 from dataclasses import dataclass
 
 from PySide6.QtCore import QPointF, QRectF, Qt
@@ -15,6 +16,7 @@ from PySide6.QtGui import (QBrush, QColor, QFont, QFontMetricsF, QPainterPath, Q
 from PySide6.QtWidgets import QGraphicsItem, QStyle
 
 from bandsketch.engine.design.document import Part, Wire
+from bandsketch.engine.design.parts import KINDS
 
 from ..engine_link import kind_fields, shown_value
 from ..theme import Theme
@@ -44,41 +46,19 @@ def value_font() -> QFont:
     return f
 
 
-def _field_caption(label: str) -> str:
-    # Catalogue labels mark subscripts with "_" (r_π); on the sheet the plain run reads better.
-    return label.replace("_", "")
+_SUMMARY_FIELD = re.compile(r"\{(\w+)(:bare)?\}")
 
 
 def value_lines(part: Part) -> list[str]:
-    """The value text shown beside a part, one entry a line (empty for parts with none)."""
-    kind = part.kind
+    """The value text shown beside a part, one entry a line, from its catalogue ``summary``."""
     fields = {f.key: f for f in kind_fields(part)}
-    if kind in ("resistor", "capacitor", "inductor"):
-        return [shown_value(part, fields["value"])]
-    if kind == "vccs":
-        return [f"gm {shown_value(part, fields['gm'])}"]
-    if kind == "vcvs":
-        return [f"×{shown_value(part, fields['gain'], unit=False)}"]
-    if kind == "cccs":
-        return [f"×{shown_value(part, fields['gain'], unit=False)} · I({part.params.get('sensed', '')})"]
-    if kind == "ccvs":
-        return [f"{shown_value(part, fields['r'])} · I({part.params.get('sensed', '')})"]
-    if kind in ("bjt", "mosfet"):
-        keys = {("bjt", "small_signal"): ("gm", "rpi"), ("bjt", "operating_point"): ("ic", "beta"),
-                ("mosfet", "small_signal"): ("gm", "ro"), ("mosfet", "operating_point"): ("id", "vov")}
-        shown = []
-        for key in keys[kind, part.params.get("mode", "small_signal")]:
-            if part.params.get(key, "").strip():
-                shown.append(f"{_field_caption(fields[key].label)} {shown_value(part, fields[key])}")
-        return shown
-    if kind == "opamp":
-        return [f"A₀ {shown_value(part, fields['a0'], unit=False)}", f"fᵤ {shown_value(part, fields['fu'])}"]
-    return []
-
-
-def shows_name(kind: str) -> bool:
-    """Whether a part's name is written beside it (ground's and a label's would be clutter)."""
-    return kind not in ("ground", "label")
+    lines = []
+    for template in KINDS[part.kind].summary:
+        keys = [m.group(1) for m in _SUMMARY_FIELD.finditer(template)]
+        if all(k in fields and part.params.get(k, "").strip() for k in keys):
+            lines.append(_SUMMARY_FIELD.sub(
+                lambda m: shown_value(part, fields[m.group(1)], unit=not m.group(2)), template))
+    return lines
 
 
 @dataclass(frozen=True)
@@ -179,17 +159,18 @@ class PartItem(_Lit, QGraphicsItem):
             self._is_input = is_input
         self.setPos(part.x, part.y)
         nf, vf = QFontMetricsF(name_font()), QFontMetricsF(value_font())
-        text_width = nf.horizontalAdvance(part.params.get("net", "")) if part.kind == "label" else 0.0
+        inside = KINDS[part.kind].inside
+        text_width = nf.horizontalAdvance(part.params.get(inside, "")) if inside else 0.0
         own = build_symbol(part.kind, part.params, self._style, text_width)
         self._symbol: Symbol = own.mapped(frame_transform(part.rotation, part.mirror))
         self._texts: list[_Text] = []
         self._badge: QRectF | None = None
         blocked = _blocked(self._symbol, [(x - part.x, y - part.y) for x, y in part.pins().values()])
         rects = []
-        if part.kind == "label":
-            self._place_net_name(own, part, nf)
+        if inside:
+            self._place_inside(part.params.get(inside, ""), nf)
         else:
-            lines = ([(part.name, True)] if shows_name(part.kind) else []) + \
+            lines = ([(part.name, True)] if KINDS[part.kind].named else []) + \
                     [(t, False) for t in value_lines(part)]
             if lines:
                 rects.append(self._place_lines(lines, blocked, nf, vf))
@@ -224,9 +205,8 @@ class PartItem(_Lit, QGraphicsItem):
             y += m.height()
         return spot
 
-    def _place_net_name(self, own: Symbol, part: Part, nf: QFontMetricsF) -> None:
-        # The name sits inside the tag, upright whichever way the tag points.
-        text = part.params.get("net", "")
+    def _place_inside(self, text: str, nf: QFontMetricsF) -> None:
+        # The text sits inside the tag, upright whichever way the tag points.
         body = self._symbol.body
         w = nf.horizontalAdvance(text)
         c = body.center()

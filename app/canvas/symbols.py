@@ -10,6 +10,7 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 from enum import Enum
+from typing import Mapping
 
 from PySide6.QtCore import QPointF, QRectF
 from PySide6.QtGui import QPainterPath, QTransform
@@ -108,10 +109,33 @@ class _Pen:
 G = GRID
 
 
-def _resistor(p: _Pen, style: ResistorStyle):
+@dataclass(frozen=True)
+class Look:
+    """What a drawing may depend on: the part's field texts, the resistor style, the width
+    of a name it writes (scene units)."""
+
+    params: Mapping
+    style: ResistorStyle
+    text_width: float = 0.0
+
+
+SYMBOLS: dict = {}
+"""Symbol drawings by the catalogue's ``symbol`` key: ``draw(pen, look)`` draws into the pen
+and returns the body's bounds (without leads)."""
+
+
+def _draws(key: str):
+    def register(draw):
+        SYMBOLS[key] = draw
+        return draw
+    return register
+
+
+@_draws("resistor")
+def _resistor(p: _Pen, look: Look):
     p.line((0, -2 * G), (0, -G))
     p.line((0, G), (0, 2 * G))
-    if style is ResistorStyle.BOX:
+    if look.style is ResistorStyle.BOX:
         p.lines.addRect(QRectF(-6, -G, 12, 2 * G))
     else:
         zig = [(0, -G)]
@@ -122,7 +146,8 @@ def _resistor(p: _Pen, style: ResistorStyle):
     return QRectF(-8, -G, 16, 2 * G)
 
 
-def _capacitor(p: _Pen):
+@_draws("capacitor")
+def _capacitor(p: _Pen, look: Look):
     p.line((0, -2 * G), (0, -4))
     p.line((0, 4), (0, 2 * G))
     p.bar((-12, -4), (12, -4))
@@ -130,7 +155,8 @@ def _capacitor(p: _Pen):
     return QRectF(-12, -6, 24, 12)
 
 
-def _inductor(p: _Pen):
+@_draws("inductor")
+def _inductor(p: _Pen, look: Look):
     p.line((0, -2 * G), (0, -G))
     p.line((0, G), (0, 2 * G))
     p.lines.moveTo(0, -G)
@@ -146,14 +172,16 @@ def _source_ring(p: _Pen, cx=0.0, r=16.0):
     return QRectF(cx - r, -r, 2 * r, 2 * r)
 
 
-def _vsource(p: _Pen):
+@_draws("vsource")
+def _vsource(p: _Pen, look: Look):
     body = _source_ring(p)
     p.plus(0, -7)
     p.minus(0, 8)
     return body
 
 
-def _isource(p: _Pen):
+@_draws("isource")
+def _isource(p: _Pen, look: Look):
     body = _source_ring(p)
     # The source pushes current out of its top pin ("into" the net there).
     p.arrow((0, 10), (0, -10))
@@ -175,14 +203,16 @@ def _control_port(p: _Pen):
     p.minus(-G - 12, G - 9, 3)
 
 
-def _vccs(p: _Pen):
+@_draws("vccs")
+def _vccs(p: _Pen, look: Look):
     _control_port(p)
     body = _diamond(p, G)
     p.arrow((G, -9), (G, 9))
     return body.united(QRectF(-2 * G, -G, G, 2 * G))
 
 
-def _vcvs(p: _Pen):
+@_draws("vcvs")
+def _vcvs(p: _Pen, look: Look):
     _control_port(p)
     body = _diamond(p, G)
     p.plus(G, -6, 3.5)
@@ -190,20 +220,24 @@ def _vcvs(p: _Pen):
     return body.united(QRectF(-2 * G, -G, G, 2 * G))
 
 
-def _cccs(p: _Pen):
+@_draws("cccs")
+def _cccs(p: _Pen, look: Look):
     body = _diamond(p, 0)
     p.arrow((0, -9), (0, 9))
     return body
 
 
-def _ccvs(p: _Pen):
+@_draws("ccvs")
+def _ccvs(p: _Pen, look: Look):
     body = _diamond(p, 0)
     p.plus(0, -6, 3.5)
     p.minus(0, 7, 3.5)
     return body
 
 
-def _bjt(p: _Pen, pnp: bool):
+@_draws("bjt")
+def _bjt(p: _Pen, look: Look):
+    pnp = look.params.get("polarity") == "pnp"
     p.circle(4, 0, 22)
     p.line((-2 * G, 0), (-8, 0))
     p.bar((-8, -13), (-8, 13))
@@ -221,7 +255,9 @@ def _bjt(p: _Pen, pnp: bool):
     return QRectF(-18, -22, 44, 44)
 
 
-def _mosfet(p: _Pen, pmos: bool):
+@_draws("mosfet")
+def _mosfet(p: _Pen, look: Look):
+    pmos = look.params.get("polarity") == "p"
     p.line((-2 * G, 0), (-14, 0))
     p.bar((-14, -14), (-14, 14))
     for y0, y1 in ((-17, -9), (-4, 4), (9, 17)):
@@ -238,7 +274,8 @@ def _mosfet(p: _Pen, pmos: bool):
     return QRectF(-16, -18, 38, 36)
 
 
-def _opamp(p: _Pen):
+@_draws("opamp")
+def _opamp(p: _Pen, look: Look):
     p.line((-2 * G, -G), (-24, -G))
     p.line((-2 * G, G), (-24, G))
     p.line((26, 0), (2 * G, 0))
@@ -248,7 +285,8 @@ def _opamp(p: _Pen):
     return QRectF(-24, -30, 50, 60)
 
 
-def _ground(p: _Pen):
+@_draws("ground")
+def _ground(p: _Pen, look: Look):
     p.line((0, 0), (0, 8))
     p.line((-12, 8), (12, 8))
     p.line((-7, 13), (7, 13))
@@ -256,15 +294,17 @@ def _ground(p: _Pen):
     return QRectF(-12, 6, 24, 14)
 
 
-def _output(p: _Pen):
+@_draws("output")
+def _output(p: _Pen, look: Look):
     p.line((0, 0), (12, 0))
     p.circle(16, 0, 4)
     return QRectF(12, -4, 8, 8)
 
 
-def _label(p: _Pen, text_width: float):
+@_draws("label")
+def _label(p: _Pen, look: Look):
     """A tag pointing at its pin, wide enough for the net name."""
-    w = text_width + 12
+    w = look.text_width + 12
     p.line((0, 0), (7, -8), (7 + w, -8), (7 + w, 8), (7, 8), (0, 0))
     return QRectF(0, -8, 7 + w, 16)
 
@@ -281,26 +321,8 @@ def build_symbol(kind: str, params, style: ResistorStyle, text_width: float = 0.
     style : ResistorStyle
         Resistor drawing preference.
     text_width : float
-        Width of the net name, for a net label's tag.
+        Width of the net name (scene units), for a part that writes its name (a net label).
     """
-    if kind not in KINDS:
-        raise KeyError(kind)
     p = _Pen()
-    if kind == "resistor":
-        body = _resistor(p, style)
-    elif kind == "bjt":
-        body = _bjt(p, params.get("polarity") == "pnp")
-    elif kind == "mosfet":
-        body = _mosfet(p, params.get("polarity") == "p")
-    elif kind == "label":
-        body = _label(p, text_width)
-    else:
-        body = _SIMPLE[kind](p)
+    body = SYMBOLS[KINDS[kind].symbol](p, Look(params, style, text_width))
     return p.done(body)
-
-
-_SIMPLE = {
-    "capacitor": _capacitor, "inductor": _inductor, "vsource": _vsource, "isource": _isource,
-    "vccs": _vccs, "vcvs": _vcvs, "cccs": _cccs, "ccvs": _ccvs, "opamp": _opamp,
-    "ground": _ground, "output": _output,
-}

@@ -26,8 +26,6 @@ DESIGN_CHOICES = frozenset({
 })
 """(kind, field key) pairs a designer chooses; every other numeric field is device physics."""
 
-_CONDITIONS = {"temp"}
-"""Fields that are conditions of use, never a design choice (the temperature)."""
 _PARSER_UNITS = {"Ω", "F", "H", "S", "V/V", "A/A", "V", "A", "Hz", "K"}
 
 
@@ -75,13 +73,8 @@ def is_design_choice(kind: str, key: str) -> bool:
 
 
 def _numeric_fields(part):
-    """The number fields of the part's chosen model mode (a block's other modes' fields do nothing)."""
-    mode = part.params.get("mode", "")
-    for f in KINDS[part.kind].fields:
-        if f.unit in ("choice", "name", "net") or f.key in _CONDITIONS or f.mode not in ("", mode):
-            continue
-        if getattr(f, "knob", True):
-            yield f
+    # The fields the part's model mode uses; conditions of use (a temperature) are no knob.
+    return [f for f in KINDS[part.kind].active_fields(part.params) if f.numeric and f.knob]
 
 
 def knobs(doc, only=None) -> tuple:
@@ -101,7 +94,7 @@ def knobs(doc, only=None) -> tuple:
     """
     out = []
     for part in doc.parts.values():
-        if part.sourcing.knob == "no":
+        if KINDS[part.kind].build is None or part.sourcing.knob == "no":
             continue
         for f in _numeric_fields(part):
             device = not is_design_choice(part.kind, f.key)
@@ -126,5 +119,4 @@ def knobs(doc, only=None) -> tuple:
 
 def has_device_fields(kind: str) -> bool:
     """Whether a part of ``kind`` has any numeric field that is device physics."""
-    return any(f.unit not in ("choice", "name", "net") and f.key not in _CONDITIONS
-               and not is_design_choice(kind, f.key) for f in KINDS[kind].fields)
+    return any(f.numeric and f.knob and not is_design_choice(kind, f.key) for f in KINDS[kind].fields)

@@ -200,7 +200,7 @@ def _document_from_dict(data) -> Document:
     source = data.get("input")
     if source is not None:
         source = _text(source, "input")
-        if source not in doc.parts or doc.parts[source].kind not in ("vsource", "isource"):
+        if source not in doc.parts or not KINDS[doc.parts[source].kind].signal:
             raise _fail("input", f"{source!r} is not a voltage or current source of this design")
     doc.input_source = source
     bands = data.get("bands", {})

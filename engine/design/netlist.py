@@ -15,14 +15,10 @@ from types import MappingProxyType
 from typing import Mapping
 
 from ..network.circuit import Circuit
-from ..network.devices import RESOLVERS
+from ..network.devices import MODELS
 from .parts import KINDS
 from ..core.errors import BadValueError, CircuitError
 from ..network.validate import problems as circuit_problems
-
-NO_ELEMENT = ("ground", "label", "output")
-"""Part kinds that mark the sheet but add no element."""
-
 
 class _Union:
     def __init__(self):
@@ -107,12 +103,10 @@ def build_netlist(doc) -> Netlist:
                     uf.join(wkey, key)
     labels = defaultdict(list)
     for part in doc.parts.values():
-        if part.kind == "label":
-            net = part.params.get("net", "").strip()
-            if net:  # a blank label names nothing, so it joins nothing
-                labels[net].append(("pin", part.name, "p"))
-        elif part.kind == "ground":
-            labels["0"].append(("pin", part.name, "g"))
+        joins = KINDS[part.kind].joins
+        net = joins(part.params) if joins else None
+        if net:  # a blank label names nothing, so it joins nothing
+            labels[net].extend(("pin", part.name, pin) for pin in KINDS[part.kind].pins)
     for name, keys in labels.items():
         for k in keys[1:]:
             uf.join(keys[0], k)
@@ -124,7 +118,7 @@ def build_netlist(doc) -> Netlist:
     order = {name: i for i, name in enumerate(doc.parts)}
     for key in sorted(pin_pos, key=lambda k: (order[k[1]], k[2])):
         part = doc.parts[key[1]]
-        if part.kind not in NO_ELEMENT:
+        if KINDS[part.kind].build is not None:
             names.setdefault(uf.find(key), f"{key[1]}.{key[2]}")
     for key in pin_pos:
         names.setdefault(uf.find(key), f"{key[1]}.{key[2]}")
@@ -136,32 +130,6 @@ def build_netlist(doc) -> Netlist:
     return Netlist(MappingProxyType(pin_net),
                    MappingProxyType({k: tuple(v) for k, v in net_points.items()}),
                    MappingProxyType(wire_net))
-
-
-def _add_part(c: Circuit, part, net) -> None:
-    n, p, k = part.name, part.params, part.kind
-    if k in ("resistor", "capacitor", "inductor"):
-        getattr(c, k)(n, net("a"), net("b"), p["value"])
-    elif k == "vsource":
-        c.vsource(n, net("p"), net("n"))
-    elif k == "isource":
-        c.isource(n, net("into"), net("out_of"))
-    elif k == "vccs":
-        c.vccs(n, net("p"), net("n"), net("cp"), net("cn"), p["gm"])
-    elif k == "vcvs":
-        c.vcvs(n, net("p"), net("n"), net("cp"), net("cn"), p["gain"])
-    elif k == "cccs":
-        c.cccs(n, net("p"), net("n"), p["sensed"].strip(), p["gain"])
-    elif k == "ccvs":
-        c.ccvs(n, net("p"), net("n"), p["sensed"].strip(), p["r"])
-    elif k == "bjt":
-        c.bjt(n, collector=net("collector"), base=net("base"), emitter=net("emitter"),
-              **given_from_params(k, p))
-    elif k == "mosfet":
-        c.mosfet(n, drain=net("drain"), gate=net("gate"), source=net("source"),
-                 **given_from_params(k, p))
-    elif k == "opamp":
-        c.opamp(n, plus=net("plus"), minus=net("minus"), out=net("out"), **given_from_params(k, p))
 
 
 @dataclass(frozen=True)
@@ -190,13 +158,14 @@ def _circuit_and_errors(doc):
     c = Circuit(doc.title)
     errors = []
     for part in doc.parts.values():
-        if part.kind in NO_ELEMENT:
+        build = KINDS[part.kind].build
+        if build is None:
             continue
         try:
-            _add_part(c, part, lambda pin, name=part.name: nets.pin_net[(name, pin)])
+            build(c, part.name, part.params, lambda pin, name=part.name: nets.pin_net[(name, pin)])
         except CircuitError as exc:
             errors.append(exc)
-    sources = [p.name for p in doc.parts.values() if p.kind in ("vsource", "isource")]
+    sources = [p.name for p in doc.parts.values() if KINDS[p.kind].signal]
     if doc.input_source:
         c.input(doc.input_source)
     elif len(sources) != 1:
@@ -252,7 +221,7 @@ def shorted_parts(doc, nets: Netlist | None = None) -> list[Problem]:
     out = []
     for part in doc.parts.values():
         pins = part.pins()
-        if part.kind in NO_ELEMENT or len(pins) < 2:
+        if KINDS[part.kind].build is None or len(pins) < 2:
             continue
         on = {nets.pin_net[(part.name, pin)] for pin in pins}
         if len(on) == 1:
@@ -261,13 +230,6 @@ def shorted_parts(doc, nets: Netlist | None = None) -> list[Problem]:
                                "move a pin to another net or delete the part.",
                                (part.name,), tuple(pins.values()), stops=False))
     return out
-
-
-def given_from_params(kind: str, params) -> dict:
-    """The field texts of a placed block that its model mode uses (empty texts dropped)."""
-    mode = params.get("mode", "")
-    return {f.key: params[f.key] for f in KINDS[kind].fields
-            if f.unit != "choice" and f.mode in ("", mode) and params.get(f.key, "").strip()}
 
 
 def derived_values(part) -> dict:
@@ -289,4 +251,4 @@ def derived_values(part) -> dict:
     BadValueError
         A field the mode uses does not hold a usable value; the message names part and field.
     """
-    return RESOLVERS[part.kind](part.name, given_from_params(part.kind, part.params))
+    return MODELS[part.kind].resolve(part.name, KINDS[part.kind].given(part.params))

@@ -1,4 +1,7 @@
-"""The catalogue of part kinds: their pins, where the pins sit, and the fields they take.
+"""The catalogue of part kinds: one entry per kind carries everything the rest needs.
+
+An entry gives the pins and where they sit, the fields, how the part becomes network
+elements, which net it names, how it is summarised and offered, and which symbol draws it.
 
 Geometry is in scene units on a grid of :data:`GRID`; a part's pins sit on grid points
 in its own frame (y grows downwards, as on screen), and :func:`pin_positions` places them
@@ -11,6 +14,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass, field
 from types import MappingProxyType
+from typing import Callable
 
 GRID = 20
 """Grid pitch of the sheet, in scene units; every pin sits on a multiple of it."""
@@ -37,9 +41,11 @@ class Field:
     choices : tuple of str
         Allowed texts of a ``"choice"`` field.
     mode : str
-        For transistor blocks: ``"small_signal"``, ``"operating_point"`` or ``""`` (both).
+        For transistor blocks: the model mode the field belongs to, or ``""`` (every mode).
     allow_negative : bool
         Whether a negative number is meaningful (a gain, a transconductance).
+    knob : bool
+        Whether the advisor may offer to change it (a temperature is a condition of use).
     """
 
     key: str
@@ -50,17 +56,81 @@ class Field:
     choices: tuple = ()
     mode: str = ""
     allow_negative: bool = False
+    knob: bool = True
+
+    @property
+    def numeric(self) -> bool:
+        """Whether the field holds a number (not a choice, a part name or a net name)."""
+        return self.unit not in ("choice", "name", "net")
+
+
+@dataclass(frozen=True)
+class Offer:
+    """One way the Parts panel offers a kind: its group, button title, field overrides, key."""
+
+    group: str
+    title: str
+    params: MappingProxyType
+    key: str = ""
+
+
+PALETTE_GROUPS = ("Passive", "Sources", "Active", "Connections")
+"""The Parts panel's groups, in order."""
 
 
 @dataclass(frozen=True)
 class PartKind:
-    """A kind of part: its pins (name -> position in its own frame) and its fields."""
+    """A kind of part, with everything the rest of the program needs to know about it.
+
+    Attributes
+    ----------
+    kind, title, prefix : str
+        Key, name shown to the user, and the prefix of automatic part names.
+    pins : Mapping[str, tuple]
+        Pin name -> position (scene units) in the part's own frame.
+    fields : tuple of Field
+        Its editable parameters.
+    build : callable or None
+        ``build(circuit, name, params, net)`` adds the part's elements to a
+        :class:`~bandsketch.engine.network.circuit.Circuit` (``net(pin)`` gives a pin's net);
+        None for a part that marks the sheet but adds no element.
+    joins : callable or None
+        ``joins(params)`` -> the net name the part gives its pin (ground gives ``"0"``, a
+        label its name), joining every pin so named; None for parts that name no net.
+    summary : tuple of str
+        Lines written beside the part on the sheet: ``{key}`` is the field's value with its
+        unit, ``{key:bare}`` without; a line whose fields are unused or empty is left out.
+    symbol : str
+        Which symbol drawing the sheet uses (a key of the app's symbol table).
+    offers : tuple of Offer
+        How the Parts panel offers it.
+    signal : bool
+        Whether it is an independent source that can carry the input signal.
+    bought : bool
+        Whether its value is bought from an IEC 60063 series (resistors, capacitors, inductors).
+    banded : bool
+        Whether it can be pinned to a band (capacitors).
+    named : bool
+        Whether its name is written beside it on the sheet.
+    inside : str
+        The field whose text the symbol writes inside itself (a net label's name), or ``""``.
+    """
 
     kind: str
     title: str
     prefix: str
     pins: MappingProxyType
     fields: tuple = field(default=())
+    build: Callable | None = None
+    joins: Callable | None = None
+    summary: tuple = ()
+    symbol: str = ""
+    offers: tuple = ()
+    signal: bool = False
+    bought: bool = False
+    banded: bool = False
+    named: bool = True
+    inside: str = ""
 
     def field(self, key: str) -> Field:
         """The field with this key (KeyError if the kind has none)."""
@@ -73,9 +143,51 @@ class PartKind:
         """The texts a newly placed part of this kind starts with."""
         return {f.key: f.default for f in self.fields}
 
+    def active_fields(self, params) -> tuple:
+        """The fields that apply to a part with these texts (a block's chosen mode's and common ones)."""
+        mode = params.get("mode", "")
+        return tuple(f for f in self.fields if f.mode in ("", mode))
 
-def _kind(kind, title, prefix, pins, fields=()):
-    return PartKind(kind, title, prefix, MappingProxyType(dict(pins)), tuple(fields))
+    def given(self, params) -> dict:
+        """The numeric and name texts the part's elements are built from (empty texts dropped)."""
+        return {f.key: params[f.key] for f in self.active_fields(params)
+                if f.unit != "choice" and params.get(f.key, "").strip()}
+
+
+def _kind(kind, title, prefix, pins, fields=(), *, offers=(), **kw):
+    offers = tuple(Offer(g, t, MappingProxyType(dict(p)), k) for g, t, p, k in offers)
+    return PartKind(kind, title, prefix, MappingProxyType(dict(pins)), tuple(fields),
+                    symbol=kw.pop("symbol", kind), offers=offers, **kw)
+
+
+def _two_terminal(method):
+    def build(c, name, params, net):
+        getattr(c, method)(name, net("a"), net("b"), params["value"])
+    return build
+
+
+def _controlled(method, key):
+    def build(c, name, params, net):
+        getattr(c, method)(name, net("p"), net("n"), net("cp"), net("cn"), params[key])
+    return build
+
+
+def _sensing(method, key):
+    def build(c, name, params, net):
+        getattr(c, method)(name, net("p"), net("n"), params["sensed"].strip(), params[key])
+    return build
+
+
+def _block(kind):
+    # The block's builder method takes its pins and fields by the catalogue's own names.
+    def build(c, name, params, net):
+        pins = {pin: net(pin) for pin in KINDS[kind].pins}
+        getattr(c, kind)(name, **pins, **KINDS[kind].given(params))
+    return build
+
+
+def _label_net(params):
+    return params.get("net", "").strip() or None
 
 
 _TWO_TERMINAL = {"a": (0, -2 * GRID), "b": (0, 2 * GRID)}
@@ -98,7 +210,7 @@ _BJT_FIELDS = (
     Field("beta", "β", "", "100", mode="operating_point"),
     Field("ft", "f_T", "Hz", "300M", optional=True, mode="operating_point"),
     Field("va", "V_A", "V", "", optional=True, mode="operating_point"),
-    Field("temp", "Temperature", "K", "300", mode="operating_point"),
+    Field("temp", "Temperature", "K", "300", mode="operating_point", knob=False),
     Field("ro", "r_o", "Ω", "", optional=True, mode="small_signal"),
     Field("rb", "r_b", "Ω", "", optional=True),
     Field("cmu", "C_μ", "F", "1p", optional=True),
@@ -121,39 +233,69 @@ _MOS_FIELDS = (
     Field("csb", "C_sb", "F", "", optional=True),
 )
 
+_BJT_PINS = {"base": _THREE_TERMINAL["in"], "collector": _THREE_TERMINAL["top"],
+             "emitter": _THREE_TERMINAL["bottom"]}
+_MOS_PINS = {"gate": _THREE_TERMINAL["in"], "drain": _THREE_TERMINAL["top"],
+             "source": _THREE_TERMINAL["bottom"]}
+
 KINDS = MappingProxyType(
     {
         k.kind: k
         for k in (
-            _kind("resistor", "Resistor", "R", _TWO_TERMINAL, [Field("value", "Resistance", "Ω", "10k")]),
-            _kind("capacitor", "Capacitor", "C", _TWO_TERMINAL, [Field("value", "Capacitance", "F", "100n")]),
-            _kind("inductor", "Inductor", "L", _TWO_TERMINAL, [Field("value", "Inductance", "H", "10u")]),
-            _kind("vsource", "Voltage source", "V", {"p": (0, -2 * GRID), "n": (0, 2 * GRID)}),
-            _kind("isource", "Current source", "I", {"into": (0, -2 * GRID), "out_of": (0, 2 * GRID)}),
+            _kind("resistor", "Resistor", "R", _TWO_TERMINAL, [Field("value", "Resistance", "Ω", "10k")],
+                  build=_two_terminal("resistor"), summary=("{value}",), bought=True,
+                  offers=[("Passive", "Resistor", {}, "R")]),
+            _kind("capacitor", "Capacitor", "C", _TWO_TERMINAL, [Field("value", "Capacitance", "F", "100n")],
+                  build=_two_terminal("capacitor"), summary=("{value}",), bought=True, banded=True,
+                  offers=[("Passive", "Capacitor", {}, "C")]),
+            _kind("inductor", "Inductor", "L", _TWO_TERMINAL, [Field("value", "Inductance", "H", "10u")],
+                  build=_two_terminal("inductor"), summary=("{value}",), bought=True,
+                  offers=[("Passive", "Inductor", {}, "L")]),
+            _kind("vsource", "Voltage source", "V", {"p": (0, -2 * GRID), "n": (0, 2 * GRID)},
+                  build=lambda c, name, params, net: c.vsource(name, net("p"), net("n")), signal=True,
+                  offers=[("Sources", "Voltage source", {}, "V")]),
+            _kind("isource", "Current source", "I", {"into": (0, -2 * GRID), "out_of": (0, 2 * GRID)},
+                  build=lambda c, name, params, net: c.isource(name, net("into"), net("out_of")), signal=True,
+                  offers=[("Sources", "Current source", {}, "I")]),
             _kind("vccs", "Voltage-controlled current source", "G", _CONTROLLED,
-                  [Field("gm", "gₘ", "S", "10m", allow_negative=True)]),
+                  [Field("gm", "gₘ", "S", "10m", allow_negative=True)],
+                  build=_controlled("vccs", "gm"), summary=("gm {gm}",),
+                  offers=[("Sources", "V-controlled I", {}, "")]),
             _kind("vcvs", "Voltage-controlled voltage source", "E", _CONTROLLED,
-                  [Field("gain", "Gain", "V/V", "10", allow_negative=True)]),
+                  [Field("gain", "Gain", "V/V", "10", allow_negative=True)],
+                  build=_controlled("vcvs", "gain"), summary=("×{gain:bare}",),
+                  offers=[("Sources", "V-controlled V", {}, "")]),
             _kind("cccs", "Current-controlled current source", "F", _CURRENT_CONTROLLED,
                   [Field("sensed", "Sensed source", "name", "V1"),
-                   Field("gain", "Gain", "A/A", "10", allow_negative=True)]),
+                   Field("gain", "Gain", "A/A", "10", allow_negative=True)],
+                  build=_sensing("cccs", "gain"), summary=("×{gain:bare} · I({sensed})",),
+                  offers=[("Sources", "I-controlled I", {}, "")]),
             _kind("ccvs", "Current-controlled voltage source", "H", _CURRENT_CONTROLLED,
                   [Field("sensed", "Sensed source", "name", "V1"),
-                   Field("r", "Transresistance", "Ω", "1k", allow_negative=True)]),
-            _kind("bjt", "Bipolar transistor", "Q",
-                  {"base": _THREE_TERMINAL["in"], "collector": _THREE_TERMINAL["top"],
-                   "emitter": _THREE_TERMINAL["bottom"]}, _BJT_FIELDS),
-            _kind("mosfet", "MOS transistor", "M",
-                  {"gate": _THREE_TERMINAL["in"], "drain": _THREE_TERMINAL["top"],
-                   "source": _THREE_TERMINAL["bottom"]}, _MOS_FIELDS),
+                   Field("r", "Transresistance", "Ω", "1k", allow_negative=True)],
+                  build=_sensing("ccvs", "r"), summary=("{r} · I({sensed})",),
+                  offers=[("Sources", "I-controlled V", {}, "")]),
+            _kind("bjt", "Bipolar transistor", "Q", _BJT_PINS, _BJT_FIELDS, build=_block("bjt"),
+                  summary=("gₘ {gm}", "rπ {rpi}", "IC {ic}", "β {beta}"),
+                  offers=[("Active", "NPN transistor", {"polarity": "npn"}, "Q"),
+                          ("Active", "PNP transistor", {"polarity": "pnp"}, "")]),
+            _kind("mosfet", "MOS transistor", "M", _MOS_PINS, _MOS_FIELDS, build=_block("mosfet"),
+                  summary=("gₘ {gm}", "ro {ro}", "ID {id}", "Vov {vov}"),
+                  offers=[("Active", "n-MOS transistor", {"polarity": "n"}, "M"),
+                          ("Active", "p-MOS transistor", {"polarity": "p"}, "")]),
             _kind("opamp", "Op-amp (single pole)", "U",
                   {"minus": (-2 * GRID, -GRID), "plus": (-2 * GRID, GRID), "out": (2 * GRID, 0)},
                   [Field("a0", "A₀", "V/V", "100k"), Field("fu", "Unity-gain frequency", "Hz", "10M"),
                    Field("rout", "Output resistance", "Ω", "", optional=True),
-                   Field("rin", "Input resistance", "Ω", "", optional=True)]),
-            _kind("ground", "Ground", "GND", {"g": (0, 0)}),
-            _kind("label", "Net label", "N", {"p": (0, 0)}, [Field("net", "Net name", "net", "out")]),
-            _kind("output", "Output probe", "OUT", {"p": (0, 0)}),
+                   Field("rin", "Input resistance", "Ω", "", optional=True)],
+                  build=_block("opamp"), summary=("A₀ {a0:bare}", "fᵤ {fu}"),
+                  offers=[("Active", "Op-amp", {}, "U")]),
+            _kind("ground", "Ground", "GND", {"g": (0, 0)}, joins=lambda params: "0", named=False,
+                  offers=[("Connections", "Ground", {}, "G")]),
+            _kind("label", "Net label", "N", {"p": (0, 0)}, [Field("net", "Net name", "net", "out")],
+                  joins=_label_net, named=False, inside="net", offers=[("Connections", "Net label", {}, "N")]),
+            _kind("output", "Output probe", "OUT", {"p": (0, 0)},
+                  offers=[("Connections", "Output probe", {}, "O")]),
         )
     }
 )

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 from types import MappingProxyType
 
-from .devices import RESOLVERS, Block, expand
+from .devices import MODELS, Block, expand
 from .elements import CCCS, CCVS, VCCS, VCVS, Capacitor, Inductor, ISource, Resistor, VSource
 from ..core.errors import CircuitError
 from ..core.values import parse_value
@@ -135,7 +135,7 @@ class Circuit:
             _check_keywords(kind, name, given)
         if name in self._elements or name in self._blocks:
             raise CircuitError(f"the name {name} is used twice; give each part its own name", parts=(name,))
-        values = RESOLVERS[kind](name, {k: v for k, v in given.items() if v is not None})
+        values = MODELS[kind].resolve(name, {k: v for k, v in given.items() if v is not None})
         block = Block(kind, name, MappingProxyType({k: node_name(v) for k, v in pins.items()}),
                       MappingProxyType(values))
         for el in expand(block):

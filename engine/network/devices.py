@@ -11,6 +11,7 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 from types import MappingProxyType
+from typing import Callable
 
 from .elements import VCCS, VCVS, Capacitor, Resistor
 from ..core.errors import BadValueError
@@ -163,7 +164,89 @@ def opamp_values(name: str, given: dict) -> dict:
             "rin": _get(name, given, "rin", "Ω") or math.inf}
 
 
-RESOLVERS = {"bjt": bjt_values, "mosfet": mosfet_values, "opamp": opamp_values}
+def _pieces(block: Block):
+    """The helpers that add a block's resistors and capacitors, leaving out absent ones."""
+    n, v = block.name, block.values
+    els: list = []
+
+    def r(key, a, b):
+        if math.isfinite(v[key]) and v[key] > 0:
+            els.append(Resistor(f"{n}.{key}", a, b, v[key], n))
+
+    def c(key, a, b):
+        if v[key] > 0 and a != b:
+            els.append(Capacitor(f"{n}.{key}", a, b, v[key], n))
+
+    return els, r, c
+
+
+def _expand_bjt(block: Block) -> list:
+    n, v, p = block.name, block.values, block.pins
+    els, r, c = _pieces(block)
+    col, base, emi, sub = p["collector"], p["base"], p["emitter"], p["substrate"]
+    bi = f"{n}.bi" if v["rb"] > 0 else base
+    r("rb", base, bi)
+    r("rpi", bi, emi)
+    c("cpi", bi, emi)
+    c("cmu", bi, col)
+    els.append(VCCS(f"{n}.gm", col, emi, bi, emi, v["gm"], n))
+    r("ro", col, emi)
+    c("ccs", col, sub)
+    return els
+
+
+def _expand_mosfet(block: Block) -> list:
+    n, v, p = block.name, block.values, block.pins
+    els, r, c = _pieces(block)
+    d, g, s, bulk = p["drain"], p["gate"], p["source"], p["bulk"]
+    els.append(VCCS(f"{n}.gm", d, s, g, s, v["gm"], n))
+    if v["gmb"] and bulk != s:
+        els.append(VCCS(f"{n}.gmb", d, s, bulk, s, v["gmb"], n))
+    r("ro", d, s)
+    c("cgs", g, s)
+    c("cgd", g, d)
+    c("cdb", d, bulk)
+    c("csb", s, bulk)
+    return els
+
+
+def _expand_opamp(block: Block) -> list:
+    n, v, p = block.name, block.values, block.pins
+    els, r, _ = _pieces(block)
+    plus, minus, out = p["plus"], p["minus"], p["out"]
+    x = f"{n}.x"
+    r("rin", plus, minus)
+    els.append(VCCS(f"{n}.gin", "0", x, plus, minus, 1.0, n))
+    els.append(Resistor(f"{n}.rp", x, "0", 1.0, n))
+    els.append(Capacitor(f"{n}.cp", x, "0", 1 / (2 * math.pi * v["fp"]), n))
+    y = f"{n}.y" if v["rout"] > 0 else out
+    els.append(VCVS(f"{n}.a0", y, "0", x, "0", v["a0"], n))
+    r("rout", y, out)
+    return els
+
+
+@dataclass(frozen=True)
+class BlockModel:
+    """How one kind of block is resolved and expanded.
+
+    Attributes
+    ----------
+    resolve : callable
+        ``resolve(name, given)`` -> dict of small-signal values in SI units.
+    expand : callable
+        ``expand(block)`` -> list of primitive elements.
+    """
+
+    resolve: Callable
+    expand: Callable
+
+
+MODELS = MappingProxyType({
+    "bjt": BlockModel(bjt_values, _expand_bjt),
+    "mosfet": BlockModel(mosfet_values, _expand_mosfet),
+    "opamp": BlockModel(opamp_values, _expand_opamp),
+})
+"""Every block kind's model, by kind."""
 
 
 def expand(block: Block) -> list:
@@ -178,47 +261,4 @@ def expand(block: Block) -> list:
     ideal A₀·v_x stage; r_out to the output. Zero capacitances and infinite resistances
     are left out.
     """
-    n, v, p = block.name, block.values, block.pins
-    els: list = []
-
-    def r(key, a, b):
-        if math.isfinite(v[key]) and v[key] > 0:
-            els.append(Resistor(f"{n}.{key}", a, b, v[key], n))
-
-    def c(key, a, b):
-        if v[key] > 0 and a != b:
-            els.append(Capacitor(f"{n}.{key}", a, b, v[key], n))
-
-    if block.kind == "bjt":
-        col, base, emi, sub = p["collector"], p["base"], p["emitter"], p["substrate"]
-        bi = f"{n}.bi" if v["rb"] > 0 else base
-        r("rb", base, bi)
-        r("rpi", bi, emi)
-        c("cpi", bi, emi)
-        c("cmu", bi, col)
-        els.append(VCCS(f"{n}.gm", col, emi, bi, emi, v["gm"], n))
-        r("ro", col, emi)
-        c("ccs", col, sub)
-    elif block.kind == "mosfet":
-        d, g, s, bulk = p["drain"], p["gate"], p["source"], p["bulk"]
-        els.append(VCCS(f"{n}.gm", d, s, g, s, v["gm"], n))
-        if v["gmb"] and bulk != s:
-            els.append(VCCS(f"{n}.gmb", d, s, bulk, s, v["gmb"], n))
-        r("ro", d, s)
-        c("cgs", g, s)
-        c("cgd", g, d)
-        c("cdb", d, bulk)
-        c("csb", s, bulk)
-    elif block.kind == "opamp":
-        plus, minus, out = p["plus"], p["minus"], p["out"]
-        x = f"{n}.x"
-        r("rin", plus, minus)
-        els.append(VCCS(f"{n}.gin", "0", x, plus, minus, 1.0, n))
-        els.append(Resistor(f"{n}.rp", x, "0", 1.0, n))
-        els.append(Capacitor(f"{n}.cp", x, "0", 1 / (2 * math.pi * v["fp"]), n))
-        y = f"{n}.y" if v["rout"] > 0 else out
-        els.append(VCVS(f"{n}.a0", y, "0", x, "0", v["a0"], n))
-        r("rout", y, out)
-    else:
-        raise ValueError(f"unknown block kind {block.kind!r}")
-    return els
+    return MODELS[block.kind].expand(block)
