@@ -15,6 +15,7 @@ from bandsketch.engine.core.errors import BadValueError, CircuitError
 from bandsketch.engine.design.parts import KINDS, Field
 from bandsketch.engine.core.values import format_value
 from bandsketch.engine.design.schema import is_numeric, parse_field
+from bandsketch.engine.solve.dcop import operating_point
 
 
 @dataclass(frozen=True)
@@ -81,12 +82,26 @@ def connectivity_problems(doc: Document) -> list:
     return netlist.connectivity_problems(doc)
 
 
-def derived_values(part: Part) -> dict | str:
-    """A transistor block's derived small-signal values (key -> SI value), or the reason not."""
+def derived_values(doc: Document, part: Part) -> dict | str:
+    """A transistor block's derived values (key -> SI value; ``region`` a text), or the reason not.
+
+    A block biased from the sheet gives its bias (I_C or I_D, the terminal voltages, the
+    region) and the small-signal values at the solved operating point of ``doc``.
+    """
     try:
-        return netlist.derived_values(part)
+        values = netlist.derived_values(part)
+        if part.params.get("mode") != "bias":
+            return values
+        point = operating_point(netlist.design_to_circuit(doc))
     except CircuitError as exc:
         return exc.message
+    return bias_values(point.devices[part.name])
+
+
+def bias_values(bias) -> dict:
+    """A device's bias as Properties and the sheet list it: currents (A), voltages (V), region, small-signal."""
+    keys = ("ic", "vbe", "vce") if bias.kind == "bjt" else ("id", "vgs", "vds", "vth")
+    return {"region": bias.region, **{k: bias[k] for k in keys}, **bias.small_signal}
 
 
 def kind_fields(part: Part) -> tuple:

@@ -24,12 +24,15 @@ from .commands import Editor, RenameCommand, RunCommand, new_run
 from .engine_link import check_field, derived_values, kind_fields
 from .theme import Theme
 
-MODE_NAMES = {"small_signal": "Small-signal values", "operating_point": "Operating point"}
+MODE_NAMES = {"small_signal": "Small-signal values", "operating_point": "Operating point typed",
+              "bias": "Bias from the sheet"}
 BAND_NAMES = {None: "Decided by the estimate", "low": "Low band", "high": "High band"}
 DERIVED_UNITS = {"gm": "S", "rpi": "Ω", "ro": "Ω", "cpi": "F", "cmu": "F", "ccs": "F", "rb": "Ω", "gmb": "S",
                  "cgs": "F", "cgd": "F", "cdb": "F", "csb": "F", "vt": "V", "a0": "", "fu": "Hz", "fp": "Hz",
-                 "rout": "Ω", "rin": "Ω"}
-DERIVED_LABELS = {"vt": "V_T", "fp": "f_p"}
+                 "rout": "Ω", "rin": "Ω", "ic": "A", "id": "A", "vbe": "V", "vce": "V", "vgs": "V", "vds": "V",
+                 "vth": "V"}
+DERIVED_LABELS = {"vt": "V_T", "fp": "f_p", "region": "Region", "ic": "I_C", "vbe": "V_BE", "vce": "V_CE",
+                  "id": "I_D", "vgs": "V_GS", "vds": "V_DS", "vth": "V_th"}
 NOTES_LINES = 6
 """How many lines of the design's notes show without scrolling."""
 
@@ -427,7 +430,7 @@ class PropertiesPanel(QWidget):
             return
         while self._derived.rowCount():
             self._derived.removeRow(0)
-        values = derived_values(self.doc.parts[self.part_name])
+        values = derived_values(self.doc, self.doc.parts[self.part_name])
         if isinstance(values, str):
             note = QLabel(values)
             note.setWordWrap(True)
@@ -436,7 +439,7 @@ class PropertiesPanel(QWidget):
         kind = KINDS[self.doc.parts[self.part_name].kind]
         labels = {f.key: f.label for f in kind.fields} | DERIVED_LABELS
         for key, value in values.items():
-            shown = QLabel(format_value(value, DERIVED_UNITS.get(key, "")))
+            shown = QLabel(value if isinstance(value, str) else format_value(value, DERIVED_UNITS.get(key, "")))
             shown.setObjectName(f"derived_{key}")
             shown.setTextInteractionFlags(Qt.TextInteractionFlag.TextSelectableByMouse)
             self._derived.addRow(caption(labels.get(key, key)), shown)

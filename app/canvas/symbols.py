@@ -294,6 +294,15 @@ def _ground(p: _Pen, look: Look):
     return QRectF(-12, 6, 24, 14)
 
 
+@_draws("rail")
+def _rail(p: _Pen, look: Look):
+    """A supply rail: a lead up from the pin to a bar (IEEE 315 / IEC 60617 style); its name
+    and voltage are written beside it."""
+    p.line((0, 0), (0, -14))
+    p.bar((-11, -14), (11, -14))
+    return QRectF(-11, -16, 22, 4)
+
+
 @_draws("output")
 def _output(p: _Pen, look: Look):
     p.line((0, 0), (12, 0))

@@ -52,3 +52,8 @@ class DesignFileError(ValueError):
 
 class Cancelled(Exception):
     """A long run (tolerance spread, value search) was cancelled; no partial result is returned."""
+
+
+class BiasError(CircuitError):
+    """The DC operating point could not be found; the message names the device and the node
+    that swings most, and what to check."""

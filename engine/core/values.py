@@ -36,9 +36,13 @@ _UNIT_NAMES = {
     "A": "amperes",
     "Hz": "hertz",
     "K": "kelvins",
-    # Fields whose unit cannot be typed after the number: a ratio (β) and λ.
+    # Fields whose unit cannot be typed after the number: a ratio (β), λ and the
+    # large-signal model constants.
     "": "no unit",
     "1/V": "per volt",
+    "s": "seconds",
+    "A/V2": "amperes per volt squared",  # A/V², as NFKC folds it
+    "√V": "square-root volts",
 }
 # Siemens and amperes per volt are the same unit; a gm field takes either.
 _QUANTITY = {symbol: symbol for symbol in _UNIT_NAMES} | {"S": "A/V"}

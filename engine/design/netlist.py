@@ -15,7 +15,7 @@ from types import MappingProxyType
 from typing import Mapping
 
 from ..network.circuit import Circuit
-from ..network.devices import MODELS
+from ..network.devices import MODELS, block_mode
 from .parts import KINDS
 from ..core.errors import BadValueError, CircuitError
 from ..network.validate import problems as circuit_problems
@@ -251,4 +251,9 @@ def derived_values(part) -> dict:
     BadValueError
         A field the mode uses does not hold a usable value; the message names part and field.
     """
-    return MODELS[part.kind].resolve(part.name, KINDS[part.kind].given(part.params))
+    given, model = KINDS[part.kind].given(part.params), MODELS[part.kind]
+    if model.large is not None and block_mode(part.kind, given) == "bias":
+        # Biased from the sheet: its values come from the operating point; here only its fields are read.
+        model.large(part.name, given)
+        return {}
+    return model.resolve(part.name, given)

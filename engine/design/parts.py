@@ -40,8 +40,8 @@ class Field:
         Whether an empty text is allowed (the element is then left out).
     choices : tuple of str
         Allowed texts of a ``"choice"`` field.
-    mode : str
-        For transistor blocks: the model mode the field belongs to, or ``""`` (every mode).
+    mode : str or tuple of str
+        For transistor blocks: the model mode(s) the field belongs to, or ``""`` (every mode).
     allow_negative : bool
         Whether a negative number is meaningful (a gain, a transconductance).
     knob : bool
@@ -54,9 +54,13 @@ class Field:
     default: str = ""
     optional: bool = False
     choices: tuple = ()
-    mode: str = ""
+    mode: str | tuple = ""
     allow_negative: bool = False
     knob: bool = True
+
+    def applies(self, mode: str) -> bool:
+        """Whether the field is used by a block in model mode ``mode``."""
+        return not self.mode or mode == self.mode or (isinstance(self.mode, tuple) and mode in self.mode)
 
     @property
     def numeric(self) -> bool:
@@ -146,12 +150,11 @@ class PartKind:
     def active_fields(self, params) -> tuple:
         """The fields that apply to a part with these texts (a block's chosen mode's and common ones)."""
         mode = params.get("mode", "")
-        return tuple(f for f in self.fields if f.mode in ("", mode))
+        return tuple(f for f in self.fields if f.applies(mode))
 
     def given(self, params) -> dict:
-        """The numeric and name texts the part's elements are built from (empty texts dropped)."""
-        return {f.key: params[f.key] for f in self.active_fields(params)
-                if f.unit != "choice" and params.get(f.key, "").strip()}
+        """The texts the part's elements are built from (its mode's fields; empty texts dropped)."""
+        return {f.key: params[f.key] for f in self.active_fields(params) if params.get(f.key, "").strip()}
 
 
 def _kind(kind, title, prefix, pins, fields=(), *, offers=(), **kw):
@@ -160,29 +163,31 @@ def _kind(kind, title, prefix, pins, fields=(), *, offers=(), **kw):
                     symbol=kw.pop("symbol", kind), offers=offers, **kw)
 
 
+# Builders take the Circuit method as a selector (``lambda c: c.resistor``), not by name:
+# the loading chain computes no attribute names.
 def _two_terminal(method):
     def build(c, name, params, net):
-        getattr(c, method)(name, net("a"), net("b"), params["value"])
+        method(c)(name, net("a"), net("b"), params["value"])
     return build
 
 
 def _controlled(method, key):
     def build(c, name, params, net):
-        getattr(c, method)(name, net("p"), net("n"), net("cp"), net("cn"), params[key])
+        method(c)(name, net("p"), net("n"), net("cp"), net("cn"), params[key])
     return build
 
 
 def _sensing(method, key):
     def build(c, name, params, net):
-        getattr(c, method)(name, net("p"), net("n"), params["sensed"].strip(), params[key])
+        method(c)(name, net("p"), net("n"), params["sensed"].strip(), params[key])
     return build
 
 
-def _block(kind):
+def _block(kind, method):
     # The block's builder method takes its pins and fields by the catalogue's own names.
     def build(c, name, params, net):
         pins = {pin: net(pin) for pin in KINDS[kind].pins}
-        getattr(c, kind)(name, **pins, **KINDS[kind].given(params))
+        method(c)(name, **pins, **KINDS[kind].given(params))
     return build
 
 
@@ -200,17 +205,26 @@ _CONTROLLED = {
 _CURRENT_CONTROLLED = {"p": (0, -2 * GRID), "n": (0, 2 * GRID)}
 _THREE_TERMINAL = {"in": (-2 * GRID, 0), "top": (GRID, -2 * GRID), "bottom": (GRID, 2 * GRID)}
 
+_MODES = ("small_signal", "operating_point", "bias")
+_TYPED_OR_SOLVED = ("operating_point", "bias")
+
 _BJT_FIELDS = (
     Field("polarity", "Polarity", "choice", "npn", choices=("npn", "pnp")),
-    Field("mode", "Model from", "choice", "small_signal", choices=("small_signal", "operating_point")),
+    Field("mode", "Model from", "choice", "small_signal", choices=_MODES),
     Field("gm", "gₘ", "S", "40m", mode="small_signal"),
     Field("rpi", "r_π", "Ω", "2k5", mode="small_signal"),
     Field("cpi", "C_π", "F", "10p", optional=True, mode="small_signal"),
     Field("ic", "I_C", "A", "1m", mode="operating_point"),
-    Field("beta", "β", "", "100", mode="operating_point"),
-    Field("ft", "f_T", "Hz", "300M", optional=True, mode="operating_point"),
-    Field("va", "V_A", "V", "", optional=True, mode="operating_point"),
-    Field("temp", "Temperature", "K", "300", mode="operating_point", knob=False),
+    Field("isat", "I_S", "A", "10f", mode="bias"),
+    Field("beta", "β", "", "100", mode=_TYPED_OR_SOLVED),
+    Field("beta_r", "β_R", "", "", optional=True, mode="bias"),
+    Field("ft", "f_T", "Hz", "300M", optional=True, mode=_TYPED_OR_SOLVED),
+    Field("tf", "τ_F", "s", "", optional=True, mode="bias"),
+    Field("va", "V_A", "V", "", optional=True, mode=_TYPED_OR_SOLVED),
+    Field("cjc0", "C_jc0", "F", "", optional=True, mode="bias"),
+    Field("vjc", "φ_C", "V", "", optional=True, mode="bias"),
+    Field("mjc", "m_C", "", "", optional=True, mode="bias"),
+    Field("temp", "Temperature", "K", "300", mode=_TYPED_OR_SOLVED, knob=False),
     Field("ro", "r_o", "Ω", "", optional=True, mode="small_signal"),
     Field("rb", "r_b", "Ω", "", optional=True),
     Field("cmu", "C_μ", "F", "1p", optional=True),
@@ -219,13 +233,17 @@ _BJT_FIELDS = (
 
 _MOS_FIELDS = (
     Field("polarity", "Polarity", "choice", "n", choices=("n", "p")),
-    Field("mode", "Model from", "choice", "small_signal", choices=("small_signal", "operating_point")),
+    Field("mode", "Model from", "choice", "small_signal", choices=_MODES),
     Field("gm", "gₘ", "S", "5m", mode="small_signal"),
     Field("ro", "r_o", "Ω", "", optional=True, mode="small_signal"),
     Field("id", "I_D", "A", "1m", mode="operating_point"),
     Field("vov", "V_ov", "V", "200m", mode="operating_point"),
-    Field("lam", "λ", "1/V", "", optional=True, mode="operating_point"),
+    Field("vth", "V_th", "V", "500m", mode="bias", allow_negative=True),
+    Field("kp", "K_P", "A/V²", "2m", mode="bias"),
+    Field("lam", "λ", "1/V", "", optional=True, mode=_TYPED_OR_SOLVED),
     Field("va", "V_A", "V", "", optional=True, mode="operating_point"),
+    Field("gamma", "γ", "√V", "", optional=True, mode="bias"),
+    Field("phi", "2φ_F", "V", "", optional=True, mode="bias"),
     Field("gmb", "g_mb", "S", "", optional=True),
     Field("cgs", "C_gs", "F", "1p", optional=True),
     Field("cgd", "C_gd", "F", "200f", optional=True),
@@ -243,43 +261,50 @@ KINDS = MappingProxyType(
         k.kind: k
         for k in (
             _kind("resistor", "Resistor", "R", _TWO_TERMINAL, [Field("value", "Resistance", "Ω", "10k")],
-                  build=_two_terminal("resistor"), summary=("{value}",), bought=True,
+                  build=_two_terminal(lambda c: c.resistor), summary=("{value}",), bought=True,
                   offers=[("Passive", "Resistor", {}, "R")]),
             _kind("capacitor", "Capacitor", "C", _TWO_TERMINAL, [Field("value", "Capacitance", "F", "100n")],
-                  build=_two_terminal("capacitor"), summary=("{value}",), bought=True, banded=True,
+                  build=_two_terminal(lambda c: c.capacitor), summary=("{value}",), bought=True, banded=True,
                   offers=[("Passive", "Capacitor", {}, "C")]),
             _kind("inductor", "Inductor", "L", _TWO_TERMINAL, [Field("value", "Inductance", "H", "10u")],
-                  build=_two_terminal("inductor"), summary=("{value}",), bought=True,
+                  build=_two_terminal(lambda c: c.inductor), summary=("{value}",), bought=True,
                   offers=[("Passive", "Inductor", {}, "L")]),
             _kind("vsource", "Voltage source", "V", {"p": (0, -2 * GRID), "n": (0, 2 * GRID)},
-                  build=lambda c, name, params, net: c.vsource(name, net("p"), net("n")), signal=True,
-                  offers=[("Sources", "Voltage source", {}, "V")]),
+                  [Field("dc", "DC value", "V", "0", allow_negative=True)],
+                  build=lambda c, name, params, net: c.vsource(name, net("p"), net("n"), dc=params["dc"]),
+                  signal=True, offers=[("Sources", "Voltage source", {}, "V")]),
             _kind("isource", "Current source", "I", {"into": (0, -2 * GRID), "out_of": (0, 2 * GRID)},
-                  build=lambda c, name, params, net: c.isource(name, net("into"), net("out_of")), signal=True,
-                  offers=[("Sources", "Current source", {}, "I")]),
+                  [Field("dc", "DC value", "A", "0", allow_negative=True)],
+                  build=lambda c, name, params, net: c.isource(name, net("into"), net("out_of"), dc=params["dc"]),
+                  signal=True, offers=[("Sources", "Current source", {}, "I")]),
+            _kind("rail", "Supply rail", "VR", {"p": (0, 0)},
+                  [Field("net", "Rail name", "net", "VCC"), Field("dc", "Voltage", "V", "12", allow_negative=True)],
+                  build=lambda c, name, params, net: c.rail(_label_net(params) or name, net("p"), params["dc"]),
+                  joins=_label_net, named=False, summary=("{net} {dc}",),
+                  offers=[("Sources", "Supply rail", {}, "P")]),
             _kind("vccs", "Voltage-controlled current source", "G", _CONTROLLED,
                   [Field("gm", "gₘ", "S", "10m", allow_negative=True)],
-                  build=_controlled("vccs", "gm"), summary=("gm {gm}",),
+                  build=_controlled(lambda c: c.vccs, "gm"), summary=("gm {gm}",),
                   offers=[("Sources", "V-controlled I", {}, "")]),
             _kind("vcvs", "Voltage-controlled voltage source", "E", _CONTROLLED,
                   [Field("gain", "Gain", "V/V", "10", allow_negative=True)],
-                  build=_controlled("vcvs", "gain"), summary=("×{gain:bare}",),
+                  build=_controlled(lambda c: c.vcvs, "gain"), summary=("×{gain:bare}",),
                   offers=[("Sources", "V-controlled V", {}, "")]),
             _kind("cccs", "Current-controlled current source", "F", _CURRENT_CONTROLLED,
                   [Field("sensed", "Sensed source", "name", "V1"),
                    Field("gain", "Gain", "A/A", "10", allow_negative=True)],
-                  build=_sensing("cccs", "gain"), summary=("×{gain:bare} · I({sensed})",),
+                  build=_sensing(lambda c: c.cccs, "gain"), summary=("×{gain:bare} · I({sensed})",),
                   offers=[("Sources", "I-controlled I", {}, "")]),
             _kind("ccvs", "Current-controlled voltage source", "H", _CURRENT_CONTROLLED,
                   [Field("sensed", "Sensed source", "name", "V1"),
                    Field("r", "Transresistance", "Ω", "1k", allow_negative=True)],
-                  build=_sensing("ccvs", "r"), summary=("{r} · I({sensed})",),
+                  build=_sensing(lambda c: c.ccvs, "r"), summary=("{r} · I({sensed})",),
                   offers=[("Sources", "I-controlled V", {}, "")]),
-            _kind("bjt", "Bipolar transistor", "Q", _BJT_PINS, _BJT_FIELDS, build=_block("bjt"),
+            _kind("bjt", "Bipolar transistor", "Q", _BJT_PINS, _BJT_FIELDS, build=_block("bjt", lambda c: c.bjt),
                   summary=("gₘ {gm}", "rπ {rpi}", "IC {ic}", "β {beta}"),
                   offers=[("Active", "NPN transistor", {"polarity": "npn"}, "Q"),
                           ("Active", "PNP transistor", {"polarity": "pnp"}, "")]),
-            _kind("mosfet", "MOS transistor", "M", _MOS_PINS, _MOS_FIELDS, build=_block("mosfet"),
+            _kind("mosfet", "MOS transistor", "M", _MOS_PINS, _MOS_FIELDS, build=_block("mosfet", lambda c: c.mosfet),
                   summary=("gₘ {gm}", "ro {ro}", "ID {id}", "Vov {vov}"),
                   offers=[("Active", "n-MOS transistor", {"polarity": "n"}, "M"),
                           ("Active", "p-MOS transistor", {"polarity": "p"}, "")]),
@@ -288,7 +313,7 @@ KINDS = MappingProxyType(
                   [Field("a0", "A₀", "V/V", "100k"), Field("fu", "Unity-gain frequency", "Hz", "10M"),
                    Field("rout", "Output resistance", "Ω", "", optional=True),
                    Field("rin", "Input resistance", "Ω", "", optional=True)],
-                  build=_block("opamp"), summary=("A₀ {a0:bare}", "fᵤ {fu}"),
+                  build=_block("opamp", lambda c: c.opamp), summary=("A₀ {a0:bare}", "fᵤ {fu}"),
                   offers=[("Active", "Op-amp", {}, "U")]),
             _kind("ground", "Ground", "GND", {"g": (0, 0)}, joins=lambda params: "0", named=False,
                   offers=[("Connections", "Ground", {}, "G")]),

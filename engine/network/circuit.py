@@ -4,8 +4,10 @@ from __future__ import annotations
 
 from types import MappingProxyType
 
-from .devices import MODELS, Block, expand
-from .elements import CCCS, CCVS, VCCS, VCVS, Capacitor, Inductor, ISource, Resistor, VSource
+from dataclasses import dataclass
+
+from .devices import MODELS, Block, block_mode, expand
+from .elements import CCCS, CCVS, VCCS, VCVS, Capacitor, Inductor, ISource, Rail, Resistor, VSource
 from ..core.errors import CircuitError
 from ..core.values import parse_value
 
@@ -14,14 +16,36 @@ GROUND_NAMES = {"0", "gnd", "ground"}
 BLOCK_KEYWORDS = MappingProxyType({
     "bjt": MappingProxyType({"small_signal": ("gm", "rpi", "ro", "cpi"),
                              "operating_point": ("ic", "beta", "va", "ft", "temp"),
-                             "": ("rb", "cmu", "ccs")}),
+                             "bias": ("isat", "beta", "va", "beta_r", "ft", "tf", "cjc0", "vjc", "mjc", "temp"),
+                             "": ("rb", "cmu", "ccs", "polarity", "mode")}),
     "mosfet": MappingProxyType({"small_signal": ("gm", "ro"),
                                 "operating_point": ("id", "vov", "lam", "va"),
-                                "": ("gmb", "cgs", "cgd", "cdb", "csb")}),
+                                "bias": ("vth", "kp", "lam", "gamma", "phi"),
+                                "": ("gmb", "cgs", "cgd", "cdb", "csb", "polarity", "mode")}),
 })
 """Block kind -> model mode -> the value keywords :meth:`Circuit.bjt` and :meth:`Circuit.mosfet`
 take in that mode (``""``: in either). The part catalogue's fields carry the same keys and
 modes (a test holds the two together)."""
+
+
+@dataclass(frozen=True)
+class LargeBlock:
+    """A transistor block biased from its circuit.
+
+    Attributes
+    ----------
+    kind, name : str
+        ``"bjt"`` or ``"mosfet"``, and the block's name.
+    pins : Mapping[str, str]
+        Pin -> node of the nonlinear core (a BJT's base is the internal base when r_b > 0).
+    model : LargeBjt or LargeMos
+        The large-signal model (:mod:`bandsketch.engine.network.devices`).
+    """
+
+    kind: str
+    name: str
+    pins: MappingProxyType
+    model: object
 
 
 def node_name(node) -> str:
@@ -51,6 +75,9 @@ class Circuit:
         self.title = title
         self._elements: dict[str, object] = {}
         self._blocks: dict[str, Block] = {}
+        self._large: dict[str, LargeBlock] = {}
+        self._expanded: dict[str, tuple] = {}
+        self._point = None
         self.input_name: str | None = None
         self.output_nodes: tuple[str, str] | None = None
 
@@ -65,6 +92,49 @@ class Circuit:
         """Name -> resolved :class:`~bandsketch.engine.network.devices.Block` with its small-signal ``values``."""
         return MappingProxyType(self._blocks)
 
+    @property
+    def large_blocks(self):
+        """Name -> :class:`LargeBlock` of every block biased from the circuit."""
+        return MappingProxyType(self._large)
+
+    @property
+    def operating_point(self):
+        """The solved DC operating point whose small-signal values the blocks hold, or None.
+
+        None also while a block biased from the circuit still holds its provisional values
+        (see :func:`bandsketch.engine.solve.dcop.operating_point`, which solves and installs).
+        """
+        return self._point
+
+    def dc_elements(self) -> list:
+        """The elements of the DC network: all but the small-signal stand-ins of biased blocks."""
+        skip = {n for names in self._expanded.values() for n in names}
+        return [el for name, el in self._elements.items() if name not in skip]
+
+    def install_bias(self, point, values: dict) -> None:
+        """Put the small-signal values of a solved operating point into the biased blocks.
+
+        Parameters
+        ----------
+        point : OperatingPoint
+            The solved point (kept as :attr:`operating_point`).
+        values : dict
+            Block name -> small-signal values (SI units) at that point.
+        """
+        for name, vals in values.items():
+            self._expand_large(self._large[name], vals)
+        self._point = point
+
+    def _expand_large(self, large: LargeBlock, values: dict) -> None:
+        for old in self._expanded.get(large.name, ()):
+            del self._elements[old]
+        block = Block(large.kind, large.name, large.pins, MappingProxyType(dict(values)))
+        els = expand(block)
+        for el in els:
+            self._add(el)
+        self._expanded[large.name] = tuple(el.name for el in els)
+        self._blocks[large.name] = block
+
     def nodes(self) -> list[str]:
         """Every node name, ground first."""
         seen = {"0": None}
@@ -76,6 +146,7 @@ class Circuit:
     # -- building ------------------------------------------------------------
     def _add(self, el):
         _check_name(el.name)
+        self._point = None
         if el.name in self._elements or el.name in self._blocks:
             raise CircuitError(f"the name {el.name} is used twice; give each part its own name",
                                parts=(el.name,))
@@ -97,17 +168,38 @@ class Circuit:
         """Inductor of ``value`` H between nodes ``a`` and ``b``."""
         return self._add(Inductor(name, node_name(a), node_name(b), self._value(name, "value", value, "H")))
 
-    def vsource(self, name, p, n):
-        """Independent voltage source (AC 1 V when it is the input, a short otherwise)."""
-        el = self._add(VSource(name, node_name(p), node_name(n)))
+    def vsource(self, name, p, n, dc=0.0, ac=1.0):
+        """Independent voltage source: ``dc`` V at the operating point, ``ac`` V when it is
+        the input (a short in small signal otherwise)."""
+        el = self._add(VSource(name, node_name(p), node_name(n),
+                               self._value(name, "ac", ac, "V", allow_negative=True, allow_zero=True),
+                               self._value(name, "dc", dc, "V", allow_negative=True, allow_zero=True)))
         self.input_name = self.input_name or name
         return el
 
-    def isource(self, name, into, out_of):
-        """Independent current source pushing 1 A into ``into`` when it is the input."""
-        el = self._add(ISource(name, node_name(into), node_name(out_of)))
+    def isource(self, name, into, out_of, dc=0.0, ac=1.0):
+        """Independent current source pushing ``dc`` A into ``into`` at the operating point and
+        ``ac`` A when it is the input (an open in small signal otherwise)."""
+        el = self._add(ISource(name, node_name(into), node_name(out_of),
+                               self._value(name, "ac", ac, "A", allow_negative=True, allow_zero=True),
+                               self._value(name, "dc", dc, "A", allow_negative=True, allow_zero=True)))
         self.input_name = self.input_name or name
         return el
+
+    def rail(self, name, node, dc):
+        """Supply rail ``name`` holding ``node`` at ``dc`` V against ground; AC ground.
+
+        Rails of the same name are one rail: adding it again on the same node at the same
+        voltage returns the rail already there. A rail is never the signal input.
+        """
+        node, value = node_name(node), self._value(name, "dc", dc, "V", allow_negative=True, allow_zero=True)
+        old = self._elements.get(name)
+        if isinstance(old, Rail) and old.p == node and old.dc == value:
+            return old
+        if isinstance(old, Rail):
+            raise CircuitError(f"The rail {name} is given {old.dc:g} V and {value:g} V: give every {name} "
+                               "rail the same voltage, or name them differently.", parts=(name,))
+        return self._add(Rail(name, node, "0", 0.0, value))
 
     def vccs(self, name, out_p, out_n, ctl_p, ctl_n, gm):
         """gm·(v(ctl_p) − v(ctl_n)) flowing from ``out_p`` through it to ``out_n``; gm in S."""
@@ -135,21 +227,41 @@ class Circuit:
             _check_keywords(kind, name, given)
         if name in self._elements or name in self._blocks:
             raise CircuitError(f"the name {name} is used twice; give each part its own name", parts=(name,))
-        values = MODELS[kind].resolve(name, {k: v for k, v in given.items() if v is not None})
-        block = Block(kind, name, MappingProxyType({k: node_name(v) for k, v in pins.items()}),
-                      MappingProxyType(values))
+        given = {k: v for k, v in given.items() if v is not None}
+        pins = {k: node_name(v) for k, v in pins.items()}
+        model = MODELS[kind]
+        if model.large is not None and block_mode(kind, given) == "bias":
+            return self._large_block(kind, name, pins, model.large(name, given))
+        block = Block(kind, name, MappingProxyType(pins), MappingProxyType(model.resolve(name, given)))
         for el in expand(block):
             self._add(el)
         self._blocks[name] = block
         return block
 
+    def _large_block(self, kind, name, pins, large):
+        rb = getattr(large, "rb", 0.0)
+        if rb > 0:
+            # r_b is part of the DC network; the nonlinear core sits on the internal base.
+            self._add(Resistor(f"{name}.rb", pins["base"], f"{name}.bi", rb, name))
+            pins["base"] = f"{name}.bi"
+        block = LargeBlock(kind, name, MappingProxyType(pins), large)
+        self._large[name] = block
+        # Provisional values at a nominal point give the block its elements (so the checks
+        # see its connections); every analysis replaces them by the solved point's.
+        self._expand_large(block, large.small_signal(name, large.nominal()))
+        self._point = None
+        return self._blocks[name]
+
     def bjt(self, name, collector, base, emitter, substrate="0", **values):
-        """Bipolar transistor (hybrid-π), NPN and PNP alike in small signal.
+        """Bipolar transistor (hybrid-π in small signal).
 
         Give small-signal values (``gm``, ``rpi``, optional ``ro``, ``rb``, ``cpi``, ``cmu``,
-        ``ccs``) or an operating point (``ic``, ``beta``, optional ``va``, ``ft``, ``temp`` in
-        K, with ``rb``, ``cmu``, ``ccs``). Returns the resolved block; its ``values`` report
-        the derived g_m, r_π, r_o, C_π.
+        ``ccs``), or an operating point (``ic``, ``beta``, optional ``va``, ``ft``, ``temp`` in
+        K, with ``rb``, ``cmu``, ``ccs``), or, to bias it from the circuit, the large-signal
+        model: ``isat`` (A), ``beta``, optional ``va`` (V), ``beta_r``, ``ft`` (Hz) or ``tf``
+        (s), ``cjc0`` (F), ``vjc`` (V), ``mjc``, ``temp`` (K), ``polarity`` ("npn" or "pnp").
+        Returns the block; its ``values`` report g_m, r_π, r_o, C_π (for a block biased from
+        the circuit, once an analysis or :func:`operating_point` has solved the bias).
         """
         return self._block("bjt", name, {"collector": collector, "base": base, "emitter": emitter,
                                          "substrate": substrate}, values)
@@ -158,7 +270,9 @@ class Circuit:
         """MOS transistor (square-law small-signal model); bulk defaults to the source.
 
         Give ``gm`` (and optional ``ro``) or an operating point ``id`` and ``vov`` (with
-        ``lam`` or ``va``); optional ``gmb``, ``cgs``, ``cgd``, ``cdb``, ``csb``.
+        ``lam`` or ``va``), or, to bias it from the circuit, the square-law model: ``vth``
+        (V), ``kp`` (A/V²), optional ``lam`` (1/V), ``gamma`` (√V), ``phi`` (2φ_F, V),
+        ``polarity`` ("n" or "p"); optional ``gmb``, ``cgs``, ``cgd``, ``cdb``, ``csb``.
         """
         return self._block("mosfet", name, {"drain": drain, "gate": gate, "source": source,
                                             "bulk": source if bulk is None else bulk}, values)
@@ -187,6 +301,10 @@ class Circuit:
         other = Circuit(self.title)
         other._elements = {k: replacements.get(k, el) for k, el in self._elements.items()}
         other._blocks = dict(self._blocks)
+        other._large, other._expanded = dict(self._large), dict(self._expanded)
+        stand_ins = {n for names in self._expanded.values() for n in names}
+        # A changed element of the DC network moves the bias: the copy solves it afresh.
+        other._point = self._point if set(replacements) <= stand_ins else None
         other.input_name, other.output_nodes = self.input_name, self.output_nodes
         return other
 

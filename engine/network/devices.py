@@ -14,6 +14,7 @@ from types import MappingProxyType
 from typing import Callable
 
 from .elements import VCCS, VCVS, Capacitor, Resistor
+from .largesignal import BjtParams, MosParams, bjt_currents, bjt_region, mos_current
 from ..core.errors import BadValueError
 from ..core.values import parse_value
 
@@ -88,7 +89,7 @@ def bjt_values(name: str, given: dict) -> dict:
     out = {"rb": _get(name, given, "rb", "Ω", zero=True) or 0.0,
            "cmu": _get(name, given, "cmu", "F", zero=True) or 0.0,
            "ccs": _get(name, given, "ccs", "F", zero=True) or 0.0}
-    if given.get("ic") not in (None, ""):
+    if block_mode("bjt", given) == "operating_point":
         ic = _get(name, given, "ic", "A", required=True)
         beta = _get(name, given, "beta", "", required=True)
         temp = _get(name, given, "temp", "K") or 300.0
@@ -133,7 +134,7 @@ def mosfet_values(name: str, given: dict) -> dict:
     out = {"gmb": _get(name, given, "gmb", "S", zero=True, negative=True) or 0.0}
     for cap in ("cgs", "cgd", "cdb", "csb"):
         out[cap] = _get(name, given, cap, "F", zero=True) or 0.0
-    if given.get("id") not in (None, ""):
+    if block_mode("mosfet", given) == "operating_point":
         i_d = _get(name, given, "id", "A", required=True)
         vov = _get(name, given, "vov", "V", required=True)
         out["gm"] = 2 * i_d / vov
@@ -146,6 +147,144 @@ def mosfet_values(name: str, given: dict) -> dict:
         out["gm"] = _get(name, given, "gm", "S", required=True, zero=True, negative=True)
         out["ro"] = _get(name, given, "ro", "Ω") or math.inf
     return out
+
+
+_OPERATING_POINT_KEY = {"bjt": "ic", "mosfet": "id"}
+
+
+def block_mode(kind: str, given: dict) -> str:
+    """The model mode a transistor's values ask for: ``"small_signal"``, ``"operating_point"``
+    or ``"bias"`` (from the circuit); as ``given["mode"]`` names it, else read from what is given."""
+    mode = given.get("mode")
+    if mode:
+        return mode
+    if given.get(_OPERATING_POINT_KEY[kind]) not in (None, ""):
+        return "operating_point"
+    return "small_signal" if given.get("gm") not in (None, "") else "bias"
+
+
+def _sign(name, given, negative):
+    polarity = str(given.get("polarity") or "").strip().lower()
+    if polarity in ("", "npn", "n"):
+        return 1.0
+    if polarity == negative:
+        return -1.0
+    raise BadValueError(f"{name} polarity: '{polarity}' is not a polarity; use npn/pnp (BJT) or n/p (MOS)",
+                        part=name, field="polarity", text=polarity)
+
+
+@dataclass(frozen=True)
+class LargeBjt:
+    """A bipolar transistor biased from its circuit: its large-signal model and capacitances.
+
+    Attributes
+    ----------
+    params : BjtParams
+        The transport-model parameters.
+    ft, tf : float or None
+        Transition frequency f_T (Hz) or forward transit time τ_F (s) for C_π.
+    cjc0, vjc, mjc : float or None
+        Zero-bias collector-junction capacitance (F), built-in potential (V) and grading.
+    cmu, ccs, rb : float
+        Fixed C_μ (used without C_jc0), C_cs (F) and r_b (Ω).
+    """
+
+    params: BjtParams
+    ft: float | None
+    tf: float | None
+    cjc0: float | None
+    vjc: float
+    mjc: float
+    cmu: float
+    ccs: float
+    rb: float
+
+    def nominal(self) -> dict:
+        """Junction voltages of a forward-active guess (1 mA, V_CE = 2 V), device polarity."""
+        vbe = self.params.vt * math.log(1e-3 / self.params.isat)
+        return {"vbe": vbe, "vbc": vbe - 2.0}
+
+    def small_signal(self, name: str, volts: dict) -> dict:
+        """Hybrid-π values at junction voltages ``volts`` (``vbe``, ``vbc`` in V, device polarity).
+
+        g_m = ∂I_C/∂V_BE and 1/r_o = ∂I_C/∂V_CE at constant V_CE and V_BE, 1/r_π = ∂I_B/∂V_BE;
+        C_π = g_m/(2π f_T) − C_μ or τ_F·g_m; C_μ = C_jc0/(1 + V_CB/φ_C)^m (held at its value
+        at V_CB = −φ_C/2 on a forward-biased collector junction, where the law has no meaning).
+        """
+        p, vbe, vbc = self.params, volts["vbe"], volts["vbc"]
+        ic, _, dc_be, dc_bc, db_be, db_bc = (float(a) for a in bjt_currents(
+            vbe, vbc, p.isat, p.beta, p.beta_r, p.va, p.vt))
+        gm = dc_be + dc_bc
+        go = -dc_bc
+        gpi = db_be + db_bc
+        out = {"gm": gm, "rpi": 1.0 / gpi, "ro": 1.0 / go if go > 1e-12 * abs(gm) else math.inf,
+               "rb": 0.0, "ccs": self.ccs, "vt": p.vt}
+        if self.cjc0:
+            vcb = max(-vbc, -0.5 * self.vjc)
+            out["cmu"] = self.cjc0 / (1.0 + vcb / self.vjc) ** self.mjc
+        else:
+            out["cmu"] = self.cmu
+        if self.ft and bjt_region(vbe, vbc) != "forward active":
+            # f_T describes the active region; out of it the diffusion charge C_π stands for is
+            # g_m·τ_F with τ_F = 1/(2π f_T) (the region warning says the values are not an amplifier's).
+            out["cpi"] = gm / (2 * math.pi * self.ft)
+        elif self.ft:
+            out["cpi"] = _need_positive_result(
+                name, "ft", gm / (2 * math.pi * self.ft) - out["cmu"],
+                f"f_T = {self.ft:g} Hz is too high for C_μ = {out['cmu']:g} F at I_C = {ic:g} A "
+                "(C_π would be negative); lower f_T or C_μ")
+        else:
+            out["cpi"] = (self.tf or 0.0) * gm
+        return out
+
+
+def bjt_large(name: str, given: dict) -> LargeBjt:
+    """Read a BJT's large-signal parameters: ``isat`` (A), ``beta``, optional ``beta_r``
+    (default 1), ``va`` (V), ``temp`` (K, default 300), ``ft`` (Hz) or ``tf`` (s), ``cjc0``
+    (F) with ``vjc`` (V, default 0.75) and ``mjc`` (default 0.33), ``cmu``, ``ccs`` (F),
+    ``rb`` (Ω), ``polarity`` (npn or pnp)."""
+    ft, tf = _get(name, given, "ft", "Hz"), _get(name, given, "tf", "s")
+    if ft and tf:
+        raise BadValueError(f"{name}: give f_T or τ_F, not both", part=name, field="tf", text="")
+    params = BjtParams(_sign(name, given, "pnp"), _get(name, given, "isat", "A", required=True),
+                       _get(name, given, "beta", "", required=True), _get(name, given, "beta_r", "") or 1.0,
+                       _get(name, given, "va", "V") or math.inf,
+                       thermal_voltage(_get(name, given, "temp", "K") or 300.0))
+    return LargeBjt(params, ft, tf, _get(name, given, "cjc0", "F", zero=True),
+                    _get(name, given, "vjc", "V") or 0.75, _get(name, given, "mjc", "") or 0.33,
+                    _get(name, given, "cmu", "F", zero=True) or 0.0, _get(name, given, "ccs", "F", zero=True) or 0.0,
+                    _get(name, given, "rb", "Ω", zero=True) or 0.0)
+
+
+@dataclass(frozen=True)
+class LargeMos:
+    """A MOS transistor biased from its circuit: its square-law model and fixed capacitances (F)."""
+
+    params: MosParams
+    caps: MappingProxyType
+
+    def nominal(self) -> dict:
+        """Terminal voltages of a saturated guess (V_ov = 0.2 V, V_DS = 1 V), device polarity."""
+        return {"vgs": self.params.vth + 0.2, "vds": 1.0, "vbs": 0.0}
+
+    def small_signal(self, name: str, volts: dict) -> dict:
+        """g_m, g_mb, r_o = 1/(∂I_D/∂V_DS) at ``volts`` (``vgs``, ``vds``, ``vbs`` in V) and the capacitances."""
+        p = self.params
+        _, gm, gds, gmb, _ = (float(a) for a in mos_current(
+            volts["vgs"], volts["vds"], volts["vbs"], p.vth, p.kp, p.lam, p.gamma, p.phi))
+        return {"gm": gm, "gmb": gmb, "ro": 1.0 / gds if gds > 0 else math.inf, **self.caps}
+
+
+def mosfet_large(name: str, given: dict) -> LargeMos:
+    """Read a MOSFET's large-signal parameters: ``vth`` (V), ``kp`` (A/V²), optional ``lam``
+    (1/V), ``gamma`` (√V) with ``phi`` (2φ_F, V, default 0.7), ``polarity`` (n or p) and the
+    fixed ``cgs``, ``cgd``, ``cdb``, ``csb`` (F)."""
+    params = MosParams(_sign(name, given, "p"), _get(name, given, "vth", "V", required=True, zero=True,
+                                                    negative=True),
+                       _get(name, given, "kp", "A/V²", required=True), _get(name, given, "lam", "1/V") or 0.0,
+                       _get(name, given, "gamma", "√V", zero=True) or 0.0, _get(name, given, "phi", "V") or 0.7)
+    caps = {cap: _get(name, given, cap, "F", zero=True) or 0.0 for cap in ("cgs", "cgd", "cdb", "csb")}
+    return LargeMos(params, MappingProxyType(caps))
 
 
 def opamp_values(name: str, given: dict) -> dict:
@@ -235,15 +374,18 @@ class BlockModel:
         ``resolve(name, given)`` -> dict of small-signal values in SI units.
     expand : callable
         ``expand(block)`` -> list of primitive elements.
+    large : callable or None
+        ``large(name, given)`` -> the large-signal model of a block biased from its circuit.
     """
 
     resolve: Callable
     expand: Callable
+    large: Callable | None = None
 
 
 MODELS = MappingProxyType({
-    "bjt": BlockModel(bjt_values, _expand_bjt),
-    "mosfet": BlockModel(mosfet_values, _expand_mosfet),
+    "bjt": BlockModel(bjt_values, _expand_bjt, bjt_large),
+    "mosfet": BlockModel(mosfet_values, _expand_mosfet, mosfet_large),
     "opamp": BlockModel(opamp_values, _expand_opamp),
 })
 """Every block kind's model, by kind."""

@@ -39,7 +39,8 @@ class Inductor(_TwoTerminal):
 
 @dataclass(frozen=True)
 class VSource:
-    """Independent voltage source, v(p) − v(n) = ``ac`` (V) when it is the input, else 0.
+    """Independent voltage source: v(p) − v(n) = ``dc`` (V) at the operating point; in small
+    signal ``ac`` (V) when it is the input, else 0.
 
     Its branch current flows from ``p`` through the source to ``n``; current-controlled
     sources sense that current.
@@ -49,6 +50,7 @@ class VSource:
     p: str
     n: str
     ac: float = 1.0
+    dc: float = 0.0
     owner: str | None = None
 
     @property
@@ -56,14 +58,20 @@ class VSource:
         return (self.p, self.n)
 
 
+class Rail(VSource):
+    """A supply rail: node ``p`` held at ``dc`` (V) against ground ``n``; AC ground, never the input."""
+
+
 @dataclass(frozen=True)
 class ISource:
-    """Independent current source pushing ``ac`` (A) into node ``into`` when it is the input."""
+    """Independent current source pushing ``dc`` (A) into node ``into`` at the operating point;
+    in small signal ``ac`` (A) when it is the input, else nothing."""
 
     name: str
     into: str
     out_of: str
     ac: float = 1.0
+    dc: float = 0.0
     owner: str | None = None
 
     @property

@@ -6,7 +6,7 @@ from collections import Counter, defaultdict
 
 import networkx as nx
 
-from .elements import CCCS, CCVS, CONDUCTS_AT_DC, VCCS, VCVS, VOLTAGE_DEFINING, ISource, VSource
+from .elements import CCCS, CCVS, CONDUCTS_AT_DC, VCCS, VCVS, VOLTAGE_DEFINING, ISource, Rail, VSource
 from ..core.errors import CircuitError
 
 
@@ -58,14 +58,14 @@ def problems(circuit) -> list[CircuitError]:
                     "circuit: name an existing voltage source (a 0 V source can serve as an ammeter).",
                     parts=(el.name,)))
 
-    sources = [el for el in els if isinstance(el, (VSource, ISource))]
+    sources = [el for el in els if isinstance(el, (VSource, ISource)) and not isinstance(el, Rail)]
     if not sources:
         found.append(CircuitError("There is no signal source: add a voltage or current source as the input."))
     elif circuit.input_name is None:
         found.append(CircuitError(
             f"There are several sources ({_shown(s.name for s in sources)}): choose which one is the "
             "signal input.", parts=[s.name for s in sources]))
-    elif not isinstance(circuit.elements.get(circuit.input_name), (VSource, ISource)):
+    elif circuit.input_name not in {s.name for s in sources}:
         found.append(CircuitError(
             f"The input '{circuit.input_name}' is not an independent source; choose one of "
             f"{_shown(s.name for s in sources)} as the input.", parts=()))

@@ -22,6 +22,7 @@ from .bands import (BANDS, HIGH, IN_BAND_DB, LOW, NEUTRAL, NEUTRAL_DB, band_test
 from .corners import brackets, corner, first_span, midband_guess, points_per_decade, second_order_corner, wide_sweep
 from ..network.elements import Capacitor, Inductor, ISource, VSource
 from ..core.errors import CircuitError
+from .dcop import OperatingPoint, solved
 from .mna import OPEN, SHORT, build_system
 from .response import frequency_response, poles, zeros
 from . import step
@@ -206,6 +207,9 @@ class Analysis:
     sources: tuple[str, ...] = field(repr=False)
     _system: object = field(repr=False, compare=False)
     _zeros: np.ndarray | None = field(repr=False, compare=False)
+    operating_point: OperatingPoint | None = field(default=None, repr=False, compare=False)
+    """The DC operating point the transistors biased from the circuit were solved at (their
+    regions and the bias warnings), or None when no block is biased from the circuit."""
 
     @property
     def warnings(self) -> list[str]:
@@ -420,6 +424,7 @@ def analyze(c, bands=None, *, per_decade: int | None = None, full_matrix_limit: 
     up to 250 unknowns. Poles and zeros are otherwise computed only when asked for.
     """
     validate(c)
+    point = solved(c) if c.large_blocks else None
     reactive = [el for el in c.elements.values() if isinstance(el, (Capacitor, Inductor))]
     pins = _check_pins(bands, {el.name for el in reactive})
     system = build_system(c)
@@ -427,7 +432,7 @@ def analyze(c, bands=None, *, per_decade: int | None = None, full_matrix_limit: 
     freqs, H = wide_sweep(system, first_span(c), per_decade or points_per_decade(system))
 
     f_m = midband_guess(freqs, H)
-    notes: list[str] = []
+    notes: list[str] = list(point.warnings) if point else []
     previous = None
     for _ in range(MAX_ROUNDS):
         tests = band_tests(system, reactive, f_m, fixed)
@@ -523,7 +528,7 @@ def analyze(c, bands=None, *, per_decade: int | None = None, full_matrix_limit: 
         f_high_ratio=_ratio(f_high_est, f_high), f_low_ratio=_ratio(f_low_est, f_low),
         dominant_high=_dominant(every, HIGH), dominant_low=_dominant(every, LOW),
         sweep_frequencies=freqs, sweep_response=H, _warnings=tuple(notes), sources=sources,
-        _system=system, _zeros=known_zeros)
+        _system=system, _zeros=known_zeros, operating_point=point)
 
 
 def _dominant(results, band):

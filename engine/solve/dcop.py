@@ -1,0 +1,496 @@
+"""The DC operating point: nodal equations with the large-signal transistor models.
+
+Capacitors are open and inductors shorted (the DC limit of the nodal equations of
+:mod:`bandsketch.engine.solve.mna`: C drops out at s = 0), every independent source sits at
+its DC value and every rail holds its voltage. The transistors biased from the circuit enter
+through their large-signal models (:mod:`bandsketch.engine.network.largesignal`); the
+equations are solved by Newton–Raphson with the junction-voltage limiter, continued by
+source stepping and then by a conductance ramp to ground when plain Newton fails. A point is
+accepted only when every node's current sum is within an absolute and a relative tolerance.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+from types import MappingProxyType
+from typing import Mapping
+
+import numpy as np
+
+from ..core.errors import BiasError
+from ..core.values import format_value
+from ..network.elements import ISource, Rail, VSource
+from ..network.largesignal import bjt_currents, bjt_region, limit_junction, mos_current, mos_region
+from ..network.validate import validate
+from .mna import build_system
+
+ABS_TOL = 1e-12
+"""Absolute tolerance on a node's current sum, A."""
+REL_TOL = 1e-9
+"""Relative tolerance on a node's current sum, against the largest current meeting there."""
+MAX_NEWTON = 100
+"""Newton iterations of the plain attempt and of each homotopy step."""
+MAX_HOMOTOPY_STEPS = 200
+"""Homotopy steps before a continuation gives up."""
+MOS_STEP = (0.5, 2.0)
+"""Largest change of a MOSFET's V_GS and of its V_DS in one Newton step, V (bounded steps)."""
+SETTLED = 1e-3
+"""A Newton step below this share of the largest unknown (V or A) prompts the current-sum check."""
+GMIN_START = 1e-2
+"""First conductance to ground (S) of the conductance ramp."""
+
+
+@dataclass(frozen=True)
+class BjtBias:
+    """A bipolar transistor at its operating point, in its own polarity (for a pnp: I_C out
+    of the collector, V_EB and V_EC), so forward active reads positive for both kinds.
+
+    Attributes
+    ----------
+    ic, ib : float
+        Collector and base currents, A.
+    vbe, vce, vbc : float
+        Junction and collector–emitter voltages, V.
+    region : str
+        ``"forward active"``, ``"saturated"``, ``"cut off"`` or ``"reverse active"``.
+    small_signal : Mapping[str, float]
+        g_m (S), r_π, r_o (Ω), C_π, C_μ, C_cs (F), V_T (V): the exact derivatives at this point.
+    """
+
+    ic: float
+    ib: float
+    vbe: float
+    vce: float
+    vbc: float
+    region: str
+    small_signal: Mapping
+    kind: str = "bjt"
+
+    def __getitem__(self, key):
+        return getattr(self, key)
+
+
+@dataclass(frozen=True)
+class MosBias:
+    """A MOS transistor at its operating point, in its own polarity (for a p-MOS: I_D out of
+    the drain, V_SG, V_SD).
+
+    Attributes
+    ----------
+    id : float
+        Drain current, A.
+    vgs, vds, vbs, vth : float
+        Terminal voltages and the threshold at this body bias, V.
+    region : str
+        ``"saturation"``, ``"triode"`` or ``"cut off"``.
+    small_signal : Mapping[str, float]
+        g_m, g_mb (S), r_o (Ω) and the capacitances (F) at this point.
+    """
+
+    id: float
+    vgs: float
+    vds: float
+    vbs: float
+    vth: float
+    region: str
+    small_signal: Mapping
+    kind: str = "mosfet"
+
+    def __getitem__(self, key):
+        return getattr(self, key)
+
+
+@dataclass(frozen=True)
+class OperatingPoint:
+    """The solved DC operating point of a circuit.
+
+    Attributes
+    ----------
+    node_voltages : Mapping[str, float]
+        Node -> voltage against ground, V (ground included at 0).
+    branch_currents : Mapping[str, float]
+        Voltage source, rail, inductor -> current from its ``p`` node through it, A.
+    devices : Mapping[str, BjtBias or MosBias]
+        Transistor name -> its bias.
+    warnings : tuple of str
+        What a designer should know: devices out of their amplifying region, nodes beyond the
+        rails, a device with no drive.
+    iterations : int
+        Newton iterations spent, all homotopy steps included.
+    method : str
+        ``"newton"``, ``"source stepping"`` or ``"conductance stepping"``.
+    """
+
+    node_voltages: Mapping
+    branch_currents: Mapping
+    devices: Mapping
+    warnings: tuple = ()
+    iterations: int = 0
+    method: str = "newton"
+    residual: float = field(default=0.0)
+    """Largest node current sum at the accepted point, A."""
+
+
+class _DcView:
+    """The circuit as the DC equations see it: its linear elements, every node it has."""
+
+    def __init__(self, circuit):
+        self.elements = {el.name: el for el in circuit.dc_elements()}
+        self._nodes = circuit.nodes()
+        self.input_name = circuit.input_name
+        self.output_nodes = circuit.output_nodes or ("0", "0")
+
+    def nodes(self):
+        return self._nodes
+
+
+class _Devices:
+    """The nonlinear devices as arrays, each pin an index into the unknowns plus one for ground."""
+
+    def __init__(self, circuit, index, ground):
+        def pin(node):
+            return index.get(node, ground)
+
+        bjts = [b for b in circuit.large_blocks.values() if b.kind == "bjt"]
+        moss = [b for b in circuit.large_blocks.values() if b.kind == "mosfet"]
+        self.bjt_names = [b.name for b in bjts]
+        self.mos_names = [b.name for b in moss]
+        self.bc = np.array([pin(b.pins["collector"]) for b in bjts], dtype=int)
+        self.bb = np.array([pin(b.pins["base"]) for b in bjts], dtype=int)
+        self.be = np.array([pin(b.pins["emitter"]) for b in bjts], dtype=int)
+        p = [b.model.params for b in bjts]
+        self.bs = np.array([q.sign for q in p])
+        self.isat = np.array([q.isat for q in p])
+        self.beta = np.array([q.beta for q in p])
+        self.beta_r = np.array([q.beta_r for q in p])
+        self.va = np.array([q.va for q in p])
+        self.vt = np.array([q.vt for q in p])
+        self.vcrit = np.array([q.vcrit for q in p])
+        self.md = np.array([pin(b.pins["drain"]) for b in moss], dtype=int)
+        self.mg = np.array([pin(b.pins["gate"]) for b in moss], dtype=int)
+        self.ms = np.array([pin(b.pins["source"]) for b in moss], dtype=int)
+        self.mb = np.array([pin(b.pins["bulk"]) for b in moss], dtype=int)
+        m = [b.model.params for b in moss]
+        self.msign = np.array([q.sign for q in m])
+        self.vth = np.array([q.vth for q in m])
+        self.kp = np.array([q.kp for q in m])
+        self.lam = np.array([q.lam for q in m])
+        self.gamma = np.array([q.gamma for q in m])
+        self.phi = np.array([q.phi for q in m])
+
+    def start(self):
+        """Device voltages of the first iteration: junctions at their critical voltage, MOS on."""
+        return (self.vcrit.copy(), np.zeros_like(self.vcrit),
+                self.vth + 0.2, np.ones_like(self.vth), np.zeros_like(self.vth))
+
+    def raw(self, xe):
+        """Device voltages (own polarity) from the unknowns ``xe`` (ground appended)."""
+        s, m = self.bs, self.msign
+        return (s * (xe[self.bb] - xe[self.be]), s * (xe[self.bb] - xe[self.bc]),
+                m * (xe[self.mg] - xe[self.ms]), m * (xe[self.md] - xe[self.ms]), m * (xe[self.mb] - xe[self.ms]))
+
+    def limited(self, raw, old):
+        vbe, vbc, vgs, vds, vbs = raw
+        obe, obc, ogs, ods, obs = old
+        step_gs, step_ds = MOS_STEP
+        return (limit_junction(vbe, obe, self.vt, self.vcrit), limit_junction(vbc, obc, self.vt, self.vcrit),
+                ogs + np.clip(vgs - ogs, -step_gs, step_gs), ods + np.clip(vds - ods, -step_ds, step_ds),
+                obs + np.clip(vbs - obs, -step_gs, step_gs))
+
+    def stamp(self, volts, size):
+        """At device voltages ``volts``: the currents leaving each node into the devices, their
+        Jacobian J in node voltages, and the constant i_eq of the linearisation f ≈ i_eq + J·x."""
+        vbe, vbc, vgs, vds, vbs = volts
+        f, i_eq = np.zeros(size), np.zeros(size)
+        J = np.zeros((size, size))
+        if self.bjt_names:
+            ic, ib, c_be, c_bc, b_be, b_bc = bjt_currents(vbe, vbc, self.isat, self.beta, self.beta_r, self.va, self.vt)
+            s = self.bs
+            # Terminal currents into the device: s·I_C at the collector, s·I_B at the base.
+            np.add.at(f, self.bc, s * ic)
+            np.add.at(f, self.bb, s * ib)
+            np.add.at(f, self.be, -s * (ic + ib))
+            eq_c = s * (ic - c_be * vbe - c_bc * vbc)
+            eq_b = s * (ib - b_be * vbe - b_bc * vbc)
+            np.add.at(i_eq, self.bc, eq_c)
+            np.add.at(i_eq, self.bb, eq_b)
+            np.add.at(i_eq, self.be, -(eq_c + eq_b))
+            # d(s·I)/dv_node with v_be = s(v_b − v_e), v_bc = s(v_b − v_c): the signs cancel.
+            for row, d_be, d_bc in ((self.bc, c_be, c_bc), (self.bb, b_be, b_bc), (self.be, -(c_be + b_be), -(c_bc + b_bc))):
+                np.add.at(J, (row, self.bb), d_be + d_bc)
+                np.add.at(J, (row, self.be), -d_be)
+                np.add.at(J, (row, self.bc), -d_bc)
+        if self.mos_names:
+            i_d, gm, gds, gmb, _ = mos_current(vgs, vds, vbs, self.vth, self.kp, self.lam, self.gamma, self.phi)
+            m = self.msign
+            np.add.at(f, self.md, m * i_d)
+            np.add.at(f, self.ms, -m * i_d)
+            eq_d = m * (i_d - gm * vgs - gds * vds - gmb * vbs)
+            np.add.at(i_eq, self.md, eq_d)
+            np.add.at(i_eq, self.ms, -eq_d)
+            for row, k in ((self.md, 1.0), (self.ms, -1.0)):
+                np.add.at(J, (row, self.mg), k * gm)
+                np.add.at(J, (row, self.md), k * gds)
+                np.add.at(J, (row, self.mb), k * gmb)
+                np.add.at(J, (row, self.ms), -k * (gm + gds + gmb))
+        return f, J, i_eq
+
+
+def _dc_excitation(view, system) -> np.ndarray:
+    b = np.zeros(system.size)
+    for el in view.elements.values():
+        if isinstance(el, VSource):
+            b[system.branch_index[el.name]] += el.dc
+        elif isinstance(el, ISource):
+            for node, sign in ((el.into, 1.0), (el.out_of, -1.0)):
+                if node in system.node_index:
+                    b[system.node_index[node]] += sign * el.dc
+    return b
+
+
+class _Problem:
+    """The DC equations G·x + f(x) = b, with the devices' currents f."""
+
+    def __init__(self, circuit):
+        view = _DcView(circuit)
+        self.system = build_system(view)
+        self.n = self.system.size
+        self.nodes = len(self.system.node_index)
+        self.G = self.system.G.toarray()
+        self.b = _dc_excitation(view, self.system)
+        self.devices = _Devices(circuit, self.system.node_index, self.n)
+        self.names = {i: node for node, i in self.system.node_index.items()}
+
+    def residual(self, x, scale_b=1.0, gmin=0.0):
+        """Each equation's residual and the size of the largest current in it."""
+        xe = np.append(x, 0.0)
+        f, _, _ = self.devices.stamp(self.devices.raw(xe), self.n + 1)
+        lin = self.G @ x
+        r = lin + f[:-1] - scale_b * self.b
+        r[:self.nodes] += gmin * x[:self.nodes]
+        size = np.abs(self.G) @ np.abs(x) + np.abs(f[:-1]) + abs(scale_b) * np.abs(self.b)
+        return r, size
+
+    def accepted(self, x, scale_b=1.0, gmin=0.0) -> bool:
+        r, size = self.residual(x, scale_b, gmin)
+        return bool(np.all(np.abs(r) <= ABS_TOL + REL_TOL * size))
+
+    def newton(self, x, volts, scale_b=1.0, gmin=0.0, limit=None):
+        """Newton–Raphson from ``x`` (device voltages ``volts``, None for the first-iteration
+        guess); returns (x, device voltages, iterations, converged, last step)."""
+        limit = limit or MAX_NEWTON
+        dev = self.devices
+        swing = np.zeros(self.n)
+        for it in range(1, limit + 1):
+            xe = np.append(x, 0.0)
+            volts = dev.limited(dev.raw(xe), volts) if it > 1 or volts is not None else dev.start()
+            _, J, i_eq = dev.stamp(volts, self.n + 1)
+            # The devices linearised about the limited voltages: i_eq + J·x.
+            A = self.G + J[:-1, :-1]
+            A[np.arange(self.nodes), np.arange(self.nodes)] += gmin
+            rhs = scale_b * self.b - i_eq[:-1]
+            try:
+                new = np.linalg.solve(A, rhs)
+            except np.linalg.LinAlgError:
+                return x, volts, it, False, swing
+            if not np.all(np.isfinite(new)):
+                return x, volts, it, False, swing
+            swing = new - x
+            x = new
+            # The current sums are worth checking only once the step has become small.
+            if np.max(np.abs(swing), initial=0.0) <= SETTLED * (1.0 + np.max(np.abs(x), initial=0.0)) \
+                    and self.accepted(x, scale_b, gmin):
+                return x, volts, it, True, swing
+        return x, volts, limit, False, swing
+
+
+def operating_point(circuit) -> OperatingPoint:
+    """Solve the DC operating point of ``circuit`` and give its biased blocks their values.
+
+    Parameters
+    ----------
+    circuit : bandsketch.engine.network.circuit.Circuit
+        The network; blocks given large-signal parameters are biased from it.
+
+    Returns
+    -------
+    OperatingPoint
+        Node voltages (V), branch currents (A), each transistor's bias and the warnings. The
+        circuit's biased blocks then hold the small-signal values of this point.
+
+    Raises
+    ------
+    CircuitError
+        The circuit cannot be solved as drawn (see :func:`validate`).
+    BiasError
+        Newton–Raphson and both homotopies failed; the message names the device and the node
+        that swings most.
+    """
+    validate(circuit)
+    return solved(circuit)
+
+
+def solved(circuit) -> OperatingPoint:
+    """:func:`operating_point` of a circuit already validated (the analysis checks it once)."""
+    if circuit.operating_point is not None:
+        return circuit.operating_point
+    problem = _Problem(circuit)
+    x, iterations, method = _solve(problem)
+    point = _point(circuit, problem, x, iterations, method)
+    circuit.install_bias(point, {name: d.small_signal for name, d in point.devices.items()})
+    return point
+
+
+class _Ramp:
+    """Steps of a homotopy parameter from ``start`` to ``end`` (the source scale, or log10 of
+    the conductance to ground), widened after a success and narrowed after a failure."""
+
+    def __init__(self, start, end, step, make):
+        self.t, self.end, self.step, self.make = start, end, step, make
+        self.done = False
+        self._trial = start
+
+    def next_step(self):
+        """Keywords for the next Newton solve, or None when the ramp has ended or stalled."""
+        if self.done or abs(self.step) < 1e-4:
+            return None
+        self._trial = self.end if abs(self.step) >= abs(self.end - self.t) else self.t + self.step
+        return self.make(self._trial)
+
+    def report(self, ok: bool) -> None:
+        if ok:
+            self.t = self._trial
+            self.done = self.t == self.end
+            self.step *= 1.5
+        else:
+            self.step /= 4.0
+
+
+def _continued(problem, x, volts, ramp):
+    """Follow a homotopy, each step starting from the last solution; returns
+    (x, device voltages, iterations, reached the end, last swing)."""
+    total = 0
+    swing = np.zeros(problem.n)
+    for _ in range(MAX_HOMOTOPY_STEPS):
+        kw = ramp.next_step()
+        if kw is None:
+            break
+        new_x, new_volts, its, ok, swing = problem.newton(x, volts, limit=max(1, MAX_NEWTON // 2), **kw)
+        total += its
+        ramp.report(ok)
+        if ok:
+            x, volts = new_x, new_volts
+    return x, volts, total, ramp.done, swing
+
+
+def _solve(problem):
+    x0 = np.zeros(problem.n)
+    x, volts, its, ok, swing = problem.newton(x0, None)
+    total = its
+    if ok:
+        return x, total, "newton"
+    # Source stepping: at zero sources x = 0 solves exactly; raise them to their values.
+    zero_volts = problem.devices.raw(np.append(x0, 0.0))
+    ramp = _Ramp(0.0, 1.0, 0.1, lambda t: {"scale_b": t})
+    x, volts, its, ok, swing = _continued(problem, x0, zero_volts, ramp)
+    total += its
+    if ok:
+        return x, total, "source stepping"
+    # Conductance stepping: a conductance from every node to ground, removed in decades.
+    first = problem.newton(x0, None, gmin=GMIN_START)
+    total += first[2]
+    if first[3]:
+        ramp = _Ramp(math.log10(GMIN_START), -13.0, -1.0,
+                     lambda t: {"gmin": 0.0 if t <= -13.0 else 10.0 ** t})
+        x, volts, its, ok, swing = _continued(problem, first[0], first[1], ramp)
+        total += its
+        if ok:
+            return x, total, "conductance stepping"
+    else:
+        swing = first[4]
+    raise _no_convergence(problem, swing, total)
+
+
+def _no_convergence(problem, swing, total) -> BiasError:
+    dev = problem.devices
+    worst = int(np.argmax(np.abs(swing[:problem.nodes]))) if problem.nodes else 0
+    node = problem.names.get(worst, "0")
+    attached = [name for name, pins in zip(dev.bjt_names, zip(dev.bc, dev.bb, dev.be)) if worst in pins]
+    attached += [name for name, pins in zip(dev.mos_names, zip(dev.md, dev.mg, dev.ms, dev.mb)) if worst in pins]
+    device = attached[0] if attached else (dev.bjt_names + dev.mos_names or ["the circuit"])[0]
+    return BiasError(
+        f"The bias of {device} does not settle: Newton–Raphson found no operating point in {total} steps, "
+        f"with source stepping and conductance stepping; node {node} swings most "
+        f"(by {format_value(abs(float(swing[worst])) if problem.nodes else 0.0, 'V')} in the last step). "
+        "Check the bias network around it (a missing resistor to a rail, a loop that latches).",
+        parts=tuple(attached) or tuple(dev.bjt_names + dev.mos_names)[:1], nodes=(node,))
+
+
+def _v(value) -> str:
+    return format_value(float(value), "V")
+
+
+def _bjt_warning(name, d: BjtBias) -> str | None:
+    if d.region == "saturated":
+        return (f"{name} is saturated (V_CE = {_v(d.vce)}, its collector junction forward-biased by "
+                f"{_v(d.vbc)}): it does not amplify as its small-signal values say; lower the base drive "
+                "or the collector resistor.")
+    if d.region == "cut off" and abs(d.vbe) < 1e-3:
+        return (f"{name} has no base drive (V_BE = {_v(d.vbe)}): nothing biases its base; connect a bias "
+                "resistor or divider from a rail.")
+    if d.region == "cut off":
+        return f"{name} is cut off (V_BE = {_v(d.vbe)}): it carries no collector current; raise its base bias."
+    if d.region == "reverse active":
+        return f"{name} runs reverse active (V_BC = {_v(d.vbc)}): check which way it is drawn."
+    return None
+
+
+def _mos_warning(name, d: MosBias) -> str | None:
+    if d.region == "triode":
+        return (f"{name} is in triode (V_DS = {_v(d.vds)} is below V_GS − V_th = {_v(d.vgs - d.vth)}): it acts "
+                "as a resistor, not an amplifier; lower the drain resistor or the gate bias.")
+    if d.region == "cut off" and abs(d.vgs) < 1e-3:
+        return (f"{name} has no gate drive (V_GS = {_v(d.vgs)}): nothing biases its gate; connect a bias "
+                "divider from a rail.")
+    if d.region == "cut off":
+        return f"{name} is below threshold (V_GS = {_v(d.vgs)} < V_th = {_v(d.vth)}): it carries no drain current."
+    return None
+
+
+def _point(circuit, problem, x, iterations, method) -> OperatingPoint:
+    system, dev = problem.system, problem.devices
+    xe = np.append(x, 0.0)
+    vbe, vbc, vgs, vds, vbs = dev.raw(xe)
+    devices, warnings = {}, []
+    ic, ib, *_ = bjt_currents(vbe, vbc, dev.isat, dev.beta, dev.beta_r, dev.va, dev.vt)
+    for k, name in enumerate(dev.bjt_names):
+        volts = {"vbe": float(vbe[k]), "vbc": float(vbc[k])}
+        ss = circuit.large_blocks[name].model.small_signal(name, volts)
+        d = BjtBias(float(ic[k]), float(ib[k]), volts["vbe"], volts["vbe"] - volts["vbc"], volts["vbc"],
+                    bjt_region(vbe[k], vbc[k]), MappingProxyType(ss))
+        devices[name] = d
+        warnings.append(_bjt_warning(name, d))
+    i_d, _, _, _, vth = mos_current(vgs, vds, vbs, dev.vth, dev.kp, dev.lam, dev.gamma, dev.phi)
+    for k, name in enumerate(dev.mos_names):
+        volts = {"vgs": float(vgs[k]), "vds": float(vds[k]), "vbs": float(vbs[k])}
+        ss = circuit.large_blocks[name].model.small_signal(name, volts)
+        d = MosBias(float(i_d[k]), volts["vgs"], volts["vds"], volts["vbs"], float(vth[k]),
+                    mos_region(vgs[k], vds[k], vth[k]), MappingProxyType(ss))
+        devices[name] = d
+        warnings.append(_mos_warning(name, d))
+    nodes = {"0": 0.0, **{node: float(x[i]) for node, i in system.node_index.items()}}
+    rails = [el.dc for el in circuit.elements.values() if isinstance(el, Rail)]
+    if rails:
+        lo, hi = min(0.0, *rails), max(0.0, *rails)
+        margin = 1e-6 * max(1.0, hi - lo)
+        for node, v in nodes.items():
+            if v > hi + margin or v < lo - margin:
+                warnings.append(f"Node {node} sits at {_v(v)}, beyond the supply rails ({_v(lo)} to {_v(hi)}): "
+                                "a source drives it past them; check its DC value.")
+    r, _ = problem.residual(x)
+    return OperatingPoint(
+        MappingProxyType(nodes),
+        MappingProxyType({name: float(x[k]) for name, k in system.branch_index.items()}),
+        MappingProxyType(devices), tuple(w for w in warnings if w), iterations, method,
+        float(np.max(np.abs(r[:problem.nodes]))) if problem.nodes else 0.0)
