@@ -171,6 +171,10 @@ class MainWindow(QMainWindow):
                                  "Click to select, drag to move (Esc)")
         self.act_wire_mode = a("&Wire", self.controller.start_wiring, ["W"], "Draw wires between pins")
         self.act_help = a("&Keys and mouse", self.toggle_help, [K.HelpContents], "Show the keys and gestures")
+        self.act_bias = a("Show &bias on the sheet", lambda: self.analysis_panel.bias_notes.set_visible(
+            self.act_bias.isChecked()), ["B"], "Write the DC node voltages and each transistor's bias on the sheet")
+        self.act_bias.setCheckable(True)
+        self.act_bias.setChecked(True)
         self.act_undo.setEnabled(False)
         self.act_redo.setEnabled(False)
         self.stack.canUndoChanged.connect(self.act_undo.setEnabled)
@@ -206,6 +210,7 @@ class MainWindow(QMainWindow):
         place_menu.addActions(self.place_actions)
         view_menu = bar.addMenu("&View")
         view_menu.addActions([self.act_zoom_in, self.act_zoom_out, self.act_zoom_fit])
+        view_menu.addAction(self.act_bias)
         view_menu.addSeparator()
         for dock in (self.parts_dock, self.properties_dock, self.help_dock):
             view_menu.addAction(dock.toggleViewAction())
@@ -242,7 +247,7 @@ class MainWindow(QMainWindow):
                       self.act_duplicate, self.act_delete, self.act_select_all, self.act_rotate,
                       self.act_mirror, self.act_rename]),
             ("File", [self.act_new, self.act_open, self.act_save, self.act_save_as, self.act_quit]),
-            ("View", [self.act_zoom_in, self.act_zoom_out, self.act_zoom_fit, self.act_help]),
+            ("View", [self.act_zoom_in, self.act_zoom_out, self.act_zoom_fit, self.act_bias, self.act_help]),
         ]
 
     # -- state shown ---------------------------------------------------------------------------
@@ -285,6 +290,7 @@ class MainWindow(QMainWindow):
         self.theme = system_theme()
         style = preferences.resistor_style()
         self.scene.set_theme(self.theme, style)
+        self.analysis_panel.bias_notes.set_theme(self.theme)
         self.controller.restyle()
         self.palette_panel.restyle(self.theme, style)
         self.properties.theme = self.theme

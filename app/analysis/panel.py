@@ -21,6 +21,7 @@ from ..canvas.items import PartItem
 from .bars import TimeConstantBars
 from .bode import BodePlot
 from .runner import AnalysisRunner, Outcome
+from ..canvas.bias_notes import BiasNotes
 from .style import view_colours
 from .port_picture import PictureOverlay, picture_geometry
 from .verdict import ProblemBanner, VerdictStrip
@@ -48,6 +49,7 @@ class AnalysisPanel(QWidget):
         self._selecting = False
 
         self.runner = AnalysisRunner(self)
+        self.bias_notes = BiasNotes(self.scene, window.theme)
         self.banner = ProblemBanner()
         self.verdict = VerdictStrip()
         self.bars = TimeConstantBars()
@@ -138,6 +140,7 @@ class AnalysisPanel(QWidget):
             self.bode.show_response(outcome.bode)
             self.verdict.show_verdict(outcome.verdict)
             self._mark_canvas(outcome)
+            self.bias_notes.show(outcome.bias)
         elif outcome.problem is None:
             # An empty sheet: nothing to say and nothing to keep.
             self.good = None
@@ -147,6 +150,8 @@ class AnalysisPanel(QWidget):
         else:
             for view in (self.bars, self.bode, self.verdict):
                 view.set_stale(True)
+            # A bias that no longer follows from the sheet must not stay written on it.
+            self.bias_notes.show(None)
         self._follow_selection()
 
     def _mark_canvas(self, outcome: Outcome) -> None:

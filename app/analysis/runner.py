@@ -18,6 +18,7 @@ from PySide6.QtCore import QObject, QThreadPool, Signal
 from bandsketch.engine.solve.analysis import analyze
 from bandsketch.engine.design.document import Document
 from bandsketch.engine.core.errors import CircuitError
+from bandsketch.engine.present.biasdata import BiasMarks, bias_marks
 from bandsketch.engine.design.netlist import Netlist, build_netlist, connectivity_problems, design_to_circuit
 from bandsketch.engine.present.plotdata import BarData, BodeData, VerdictData, bar_data, bode_data, verdict_data
 
@@ -49,6 +50,8 @@ class Outcome:
         The parts at fault.
     problem_points : tuple of (int, int)
         Sheet points at fault (scene units).
+    bias : BiasMarks or None
+        The operating point as the sheet writes it (None when nothing is biased from the sheet).
     seconds : float
         How long the run took, s.
     """
@@ -65,6 +68,7 @@ class Outcome:
     problem_parts: tuple = ()
     problem_points: tuple = ()
     seconds: float = 0.0
+    bias: BiasMarks | None = None
 
     @property
     def ok(self) -> bool:
@@ -115,8 +119,10 @@ def analyse_design(doc: Document, generation: int = 0) -> Outcome:
         return _problem_outcome(generation, doc, nets,
                                 f"The analysis could not be completed ({type(exc).__name__}: {exc}); "
                                 "check the values of the parts you changed last.", started=started)
+    point = analysis.operating_point
     return Outcome(generation, doc, nets, circuit, analysis, bode_data(analysis), bar_data(analysis),
-                   verdict_data(analysis), seconds=time.perf_counter() - started)
+                   verdict_data(analysis), seconds=time.perf_counter() - started,
+                   bias=None if point is None else bias_marks(doc, nets, point))
 
 
 class _Relay(QObject):

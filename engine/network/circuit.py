@@ -129,7 +129,9 @@ class Circuit:
         for old in self._expanded.get(large.name, ()):
             del self._elements[old]
         block = Block(large.kind, large.name, large.pins, MappingProxyType(dict(values)))
-        els = expand(block)
+        # r_b is already in the DC network, in front of the core's internal base.
+        els = expand(Block(large.kind, large.name, large.pins, MappingProxyType({**values, "rb": 0.0})
+                           if "rb" in values else block.values))
         for el in els:
             self._add(el)
         self._expanded[large.name] = tuple(el.name for el in els)

@@ -218,7 +218,7 @@ class LargeBjt:
         go = -dc_bc
         gpi = db_be + db_bc
         out = {"gm": gm, "rpi": 1.0 / gpi, "ro": 1.0 / go if go > 1e-12 * abs(gm) else math.inf,
-               "rb": 0.0, "ccs": self.ccs, "vt": p.vt}
+               "rb": self.rb, "ccs": self.ccs, "vt": p.vt}
         if self.cjc0:
             vcb = max(-vbc, -0.5 * self.vjc)
             out["cmu"] = self.cjc0 / (1.0 + vcb / self.vjc) ** self.mjc

@@ -28,6 +28,7 @@ from ..advise.suggest import suggest, verdict_line
 from ..advise.targets import check_targets, parse_targets
 from ..advise.tolerance import spread_of_design
 from ..core.values import format_value
+from .biasdata import BIAS_HEADINGS, bias_rows
 
 CAUTION = ("These are design estimates from a linear small-signal model. Confirm them by full "
            "circuit simulation and by measurement before anything is built.")
@@ -359,6 +360,9 @@ def build_report(doc, *, pictures: Pictures | None = None, samples: int = SPREAD
             "<h2>Corners</h2>", _corners_table(analysis),
             "<h2>Bands, resistances and time constants</h2>", _bands_table(analysis),
             "<h2>Elements</h2>", _elements_table(circuit),
+            *(("<h2>Bias (DC operating point)</h2>",
+               _table(BIAS_HEADINGS, bias_rows(analysis.operating_point), numeric=range(2, 7)))
+              if analysis.operating_point is not None else ()),
             "<h2>Sensitivities</h2>", _sensitivity_table(sens),
             "<h2>Tolerance spread and yield</h2>", _spread_section(spread, analysis.gain_unit),
             "<h2>Warnings</h2>",

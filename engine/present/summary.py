@@ -9,6 +9,7 @@ import numpy as np
 
 from ..solve.mna import SHORT
 from ..core.values import format_value
+from .biasdata import BIAS_HEADINGS, bias_rows
 
 _ELEMENT_UNITS = {"capacitance": "F", "inductance": "H", "resistance": "Ω", "time_constant": "s",
                   "share": "1", "gain_shorted": None, "gain_opened": None}
@@ -75,14 +76,45 @@ def analysis_to_dict(a) -> dict:
         "warnings": a.warnings,
         "poles": _complex_list(a.poles),
         "zeros": _complex_list(a.zeros),
+        "operating_point": _operating_point(a.operating_point),
         "units": {
             "midband_gain": gain, "midband_gain_db": "dB", "midband_frequency": "Hz", "b1": "s", "b2": "s²",
             "high_time_constants": "s", "f_high_estimate": "Hz", "f_high_estimate_2nd": "Hz",
             "f_high_exact": "Hz", "f_low_estimate": "Hz", "f_low_exact": "Hz", "omega_low_estimate": "rad/s",
             "f_high_ratio": "1", "f_low_ratio": "1", "poles": "rad/s", "zeros": "rad/s",
+            "node_voltages": "V", "branch_currents": "A", "ic": "A", "ib": "A", "id": "A", "vbe": "V",
+            "vce": "V", "vbc": "V", "vgs": "V", "vds": "V", "vbs": "V", "vth": "V", "gm": "S", "gmb": "S",
+            "rpi": "Ω", "ro": "Ω", "rb": "Ω", "cpi": "F", "cmu": "F", "ccs": "F", "cgs": "F", "cgd": "F",
+            "cdb": "F", "csb": "F", "vt": "V",
             **{key: unit or gain for key, unit in _ELEMENT_UNITS.items()},
         },
     }
+
+
+def _operating_point(point) -> dict | None:
+    """The DC operating point as JSON-ready data (None when nothing is biased from the circuit)."""
+    if point is None:
+        return None
+    devices = {}
+    for name, b in point.devices.items():
+        keys = ("ic", "ib", "vbe", "vce", "vbc") if b.kind == "bjt" else ("id", "vgs", "vds", "vbs", "vth")
+        devices[name] = {"kind": b.kind, "region": b.region, **{k: _number(b[k]) for k in keys},
+                         "small_signal": {k: _number(v) for k, v in b.small_signal.items()}}
+    return {"node_voltages": {k: _number(v) for k, v in point.node_voltages.items()},
+            "branch_currents": {k: _number(v) for k, v in point.branch_currents.items()},
+            "devices": devices, "warnings": list(point.warnings), "method": point.method,
+            "iterations": point.iterations}
+
+
+def _aligned(rows) -> list[str]:
+    """Rows of texts as columns, the first row a heading ruled off below."""
+    widths = [max(len(row[i]) for row in rows) for i in range(len(rows[0]))]
+    lines = []
+    for k, row in enumerate(rows):
+        lines.append("  ".join(cell.ljust(w) for cell, w in zip(row, widths)).rstrip())
+        if k == 0:
+            lines.append("  ".join("─" * w for w in widths))
+    return lines
 
 
 def _fmt(x, unit):
@@ -143,11 +175,7 @@ def format_table(a, title: str | None = None) -> str:
         band = r.band + (" (pinned)" if r.pinned else "") + (" *" if r.acts_in_band else "")
         share = "" if r.band == "neutral" else f"{100 * r.share:.1f} %"
         rows.append((r.name, band, _fmt(r.resistance, "Ω"), _fmt(r.time_constant, "s"), share))
-    widths = [max(len(row[i]) for row in rows) for i in range(len(rows[0]))]
-    for k, row in enumerate(rows):
-        lines.append("  ".join(cell.ljust(w) for cell, w in zip(row, widths)).rstrip())
-        if k == 0:
-            lines.append("  ".join("─" * w for w in widths))
+    lines += _aligned(rows)
     if any(r.acts_in_band for r in a.elements.values()):
         lines.append("* acts inside the band")
     lines.append("")
@@ -162,6 +190,8 @@ def format_table(a, title: str | None = None) -> str:
     lines.append(f"b1 = {_fmt(a.b1, 's')}{b2}")
     if len(a.elements) <= ROOTS_LISTED_UP_TO:
         lines += ["", f"Exact poles   {_roots(a.poles)}", f"Exact zeros   {_roots(a.zeros)}"]
+    if a.operating_point is not None:
+        lines += ["", "Bias (DC operating point)"] + _aligned((BIAS_HEADINGS,) + bias_rows(a.operating_point))
     if a.warnings:
         lines += ["", "Warnings"] + [f"  • {w}" for w in a.warnings]
     return "\n".join(lines) + "\n"
