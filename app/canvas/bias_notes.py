@@ -55,7 +55,8 @@ class BiasNotes:
                 if item is None:
                     continue
                 box = item.sceneBoundingRect()
-                wanted.append((QPointF(box.left(), box.bottom() + 1), "\n".join(note.lines), note.warning))
+                at = QPointF(box.right() + 2, box.top()) if note.beside else QPointF(box.left(), box.bottom() + 1)
+                wanted.append((at, "\n".join(note.lines), note.warning))
         while len(self._items) < len(wanted):
             text = QGraphicsSimpleTextItem()
             text.setFont(note_font())

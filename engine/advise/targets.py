@@ -417,7 +417,12 @@ def _root(fig: _Figure, estimate: bool) -> float | None:
             g_out, g_in = fig.g(x0 * math.exp(outer), estimate), fig.g(x0 * math.exp(inner), estimate)
             if math.isnan(g_out) or math.isnan(g_in) or (g_out > 0) == (g_in > 0):
                 continue
-            return brentq(lambda u: fig.g(x0 * math.exp(u), estimate), inner, outer, xtol=_ROOT_XTOL)
+            try:
+                return brentq(lambda u: fig.g(x0 * math.exp(u), estimate), inner, outer, xtol=_ROOT_XTOL)
+            except ValueError:
+                # The figure is undefined somewhere between the rungs (a trial value the
+                # stage cannot be analysed at, its bias lost): no single value to trust there.
+                continue
     return None
 
 

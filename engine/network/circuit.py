@@ -295,6 +295,10 @@ class Circuit:
     def with_elements(self, replacements: dict) -> "Circuit":
         """A copy in which some primitive elements are replaced (same names), e.g. for what-if.
 
+        Blocks biased from the circuit keep the small-signal values of the operating point
+        they hold (a what-if on the small-signal network); a changed bias network is
+        re-solved by building the circuit again.
+
         Parameters
         ----------
         replacements : dict
@@ -303,10 +307,8 @@ class Circuit:
         other = Circuit(self.title)
         other._elements = {k: replacements.get(k, el) for k, el in self._elements.items()}
         other._blocks = dict(self._blocks)
-        other._large, other._expanded = dict(self._large), dict(self._expanded)
-        stand_ins = {n for names in self._expanded.values() for n in names}
-        # A changed element of the DC network moves the bias: the copy solves it afresh.
-        other._point = self._point if set(replacements) <= stand_ins else None
+        # A what-if on the small-signal network: the biased blocks keep the point they hold.
+        other._large, other._expanded, other._point = dict(self._large), dict(self._expanded), self._point
         other.input_name, other.output_nodes = self.input_name, self.output_nodes
         return other
 

@@ -26,10 +26,13 @@ class DeviceNote:
         Short lines (I_C, V_CE, region for a transistor; the current a rail supplies).
     warning : str or None
         The plain-words warning about this device, when it is out of its region.
+    beside : bool
+        Written to the right of the part (a rail, whose leads run below it) rather than below.
     """
 
     lines: tuple
     warning: str | None = None
+    beside: bool = False
 
 
 @dataclass(frozen=True)
@@ -85,7 +88,7 @@ def bias_marks(doc, netlist, point) -> BiasMarks:
         net = KINDS[part.kind].joins(part.params) if part.kind == "rail" else None
         if net in point.branch_currents and not any(n.lines[0].endswith(f"({net})") for n in devices.values()):
             supplied = format_value(-point.branch_currents[net], "A")
-            devices[part.name] = DeviceNote((f"supplies {supplied} ({net})",))
+            devices[part.name] = DeviceNote((f"supplies {supplied} ({net})",), beside=True)
     return BiasMarks(tuple(nodes), MappingProxyType(devices))
 
 

@@ -281,11 +281,16 @@ def test_a_circuit_that_will_not_settle_gets_a_named_error(monkeypatch):
 
 
 def test_an_edit_of_the_dc_network_moves_the_bias():
+    first = analyze(_ce()).operating_point.devices["Q1"].ic
+    assert analyze(_ce(re="2k")).operating_point.devices["Q1"].ic < 0.6 * first
+
+
+def test_a_what_if_on_the_small_signal_network_keeps_the_bias():
     c = _ce()
-    first = analyze(c).operating_point.devices["Q1"].ic
-    heavier = c.with_elements({"RE": type(c.elements["RE"])("RE", "e", "0", 2e3)})
-    assert heavier.operating_point is None
-    assert analyze(heavier).operating_point.devices["Q1"].ic < 0.6 * first
+    point = analyze(c).operating_point
+    other = c.with_elements({"Q1.cpi": type(c.elements["Q1.cpi"])("Q1.cpi", "b", "e", 1e-12, "Q1")})
+    assert other.operating_point is point
+    assert analyze(other).operating_point is point
 
 
 @given(r1=st.floats(1e3, 1e6), r2=st.floats(1e3, 1e6), rc=st.floats(10.0, 1e5), re=st.floats(0.0, 1e4),

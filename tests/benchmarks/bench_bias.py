@@ -1,0 +1,42 @@
+"""Bias solve speed on every sample design: prints the median per solve, never asserts.
+
+Run: ``python tests/benchmarks/bench_bias.py [REPEATS]`` (default 50). The issue's figure
+to beat is a bias solve of each sample in 2 ms median; the solve is timed alone (the
+circuit is built and checked beforehand, as an analysis does once per edit).
+"""
+
+from __future__ import annotations
+
+import statistics
+import sys
+import time
+from pathlib import Path
+
+ROOT = Path(__file__).resolve().parents[2]
+sys.path.insert(0, str(ROOT))
+
+from bandsketch.engine.design.designfile import load_design  # noqa: E402
+from bandsketch.engine.design.netlist import design_to_circuit  # noqa: E402
+from bandsketch.engine.solve.dcop import solved  # noqa: E402
+
+
+def main() -> None:
+    repeats = int(sys.argv[1]) if len(sys.argv) > 1 else 50
+    print(f"{'design':28s} {'devices':>7s} {'method':>12s} {'steps':>5s} {'median ms':>9s}")
+    for path in sorted((ROOT / "sample_designs").glob("*.json")):
+        doc = load_design(path)
+        circuits = [design_to_circuit(doc) for _ in range(repeats)]
+        if not circuits[0].large_blocks:
+            print(f"{path.stem:28s} {0:7d} {'(none)':>12s}")
+            continue
+        times = []
+        for c in circuits:
+            t = time.perf_counter()
+            point = solved(c)
+            times.append(time.perf_counter() - t)
+        print(f"{path.stem:28s} {len(point.devices):7d} {point.method:>12s} {point.iterations:5d} "
+              f"{1e3 * statistics.median(times):9.2f}")
+
+
+if __name__ == "__main__":
+    main()
