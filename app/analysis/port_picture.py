@@ -171,7 +171,8 @@ def picture_geometry(doc, nets, analysis, element: str) -> PictureGeometry | Non
             shorts.append(pins)
     for name in picture.zeroed:
         part = doc.parts.get(name)
-        if part is None:
+        if part is None or len(part.pins()) < 2:
+            # A rail (one pin) is AC ground as drawn; there is no source body to short.
             continue
         pins = _two_pins(part)
         faded.append(pins)
