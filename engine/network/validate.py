@@ -46,7 +46,8 @@ def problems(circuit) -> list[CircuitError]:
         return [CircuitError("The circuit is empty: draw a signal source, the stage and an output.")]
     owner = {el.name: (el.owner or el.name) for el in els}
 
-    if not any("0" in el.nodes for el in els):
+    # A rail is held against ground, but only a drawn ground (or a node named 0) says where 0 V is.
+    if not any("0" in el.nodes for el in els if not isinstance(el, Rail)):
         found.append(CircuitError("There is no ground: connect a ground symbol to the circuit's reference node."))
 
     for el in els:
