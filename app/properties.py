@@ -11,6 +11,7 @@ from PySide6.QtGui import QKeySequence, QTextCursor
 from PySide6.QtWidgets import (QCheckBox, QComboBox, QFormLayout, QGroupBox, QLabel, QLineEdit,
                                QPlainTextEdit, QVBoxLayout, QWidget)
 
+from bandsketch.engine.core.band import Band
 from bandsketch.engine.design.schema import sourcing_problem, text_problem
 from bandsketch.engine.design.document import Change, Document
 from bandsketch.engine.design.parts import KINDS, Field
@@ -26,7 +27,7 @@ from .theme import Theme
 
 MODE_NAMES = {"small_signal": "Small-signal values", "operating_point": "Operating point typed",
               "bias": "Bias from the sheet"}
-BAND_NAMES = {None: "Decided by the estimate", "low": "Low band", "high": "High band"}
+BAND_NAMES = {None: "Decided by the estimate", Band.LOW: "Low band", Band.HIGH: "High band"}
 DERIVED_UNITS = {"gm": "S", "rpi": "Ω", "ro": "Ω", "cpi": "F", "cmu": "F", "ccs": "F", "rb": "Ω", "gmb": "S",
                  "cgs": "F", "cgd": "F", "cdb": "F", "csb": "F", "vt": "V", "a0": "", "fu": "Hz", "fp": "Hz",
                  "rout": "Ω", "rin": "Ω", "ic": "A", "id": "A", "vbe": "V", "vce": "V", "vgs": "V", "vds": "V",

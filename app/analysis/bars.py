@@ -13,6 +13,7 @@ from PySide6.QtCore import QEvent, QPointF, QRectF, QSize, Qt, Signal
 from PySide6.QtGui import QAction, QActionGroup, QColor, QFont, QFontMetricsF, QPainter, QPainterPath, QPen
 from PySide6.QtWidgets import QMenu, QSizePolicy, QToolTip, QWidget
 
+from bandsketch.engine.core.band import Band
 from bandsketch.engine.present.plotdata import BarData, BarRow
 
 from .style import ViewColours, view_colours
@@ -25,7 +26,7 @@ PAD = 8
 PIN_W = 14
 MIN_BAR_W = 60
 
-PIN_CHOICES = (("high", "Pin to the high band"), ("low", "Pin to the low band"),
+PIN_CHOICES = ((Band.HIGH, "Pin to the high band"), (Band.LOW, "Pin to the low band"),
                ("", "Automatic band (by the gain test)"))
 """Pin menu entries: the band passed on (``""`` unpins) and the menu text."""
 

@@ -13,6 +13,7 @@ from PySide6.QtCore import QEvent, QObject, QRectF, Qt
 from PySide6.QtWidgets import (QFileDialog, QHBoxLayout, QLabel, QMenu, QScrollArea, QSplitter,
                                QToolButton, QVBoxLayout, QWidget)
 
+from bandsketch.engine.core.band import Band
 from bandsketch.engine.design.netlist import Problem
 from bandsketch.engine.present.plotdata import part_of, write_curves_csv
 
@@ -162,7 +163,7 @@ class AnalysisPanel(QWidget):
                 tips.setdefault(row.part, []).append(row.tooltip)
         for name in self.doc.parts:
             result = outcome.analysis.elements.get(name)
-            self.scene.set_part_accent(name, result.band if result and result.band != "neutral" else None)
+            self.scene.set_part_accent(name, result.band if result and result.band != Band.NEUTRAL else None)
             item = self.scene.part_item(name)
             # A problem's own tooltip wins: it says what to fix.
             if name in tips and item.problem is None:

@@ -11,6 +11,7 @@ from dataclasses import dataclass
 
 from PySide6.QtGui import QColor
 
+from bandsketch.engine.core.band import Band
 from bandsketch.app.theme import Theme, system_theme
 
 @dataclass(frozen=True)
@@ -29,9 +30,9 @@ class ViewColours:
     problem: QColor
     stale: QColor
 
-    def band(self, band: str) -> QColor:
-        """The colour of ``"high"``, ``"low"`` or ``"neutral"``."""
-        return {"high": self.high, "low": self.low}.get(band, self.neutral)
+    def band(self, band: Band) -> QColor:
+        """The colour of a band (neutral for any other)."""
+        return {Band.HIGH: self.high, Band.LOW: self.low}.get(band, self.neutral)
 
 
 def view_colours(theme: Theme | None = None) -> ViewColours:

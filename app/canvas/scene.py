@@ -8,6 +8,7 @@ from PySide6.QtCore import QPointF, QRectF
 from PySide6.QtGui import QPen
 from PySide6.QtWidgets import QGraphicsScene
 
+from bandsketch.engine.core.band import Band
 from bandsketch.engine.design.document import Change, Document
 from bandsketch.engine.design.parts import GRID
 
@@ -150,7 +151,7 @@ class SchematicScene(QGraphicsScene):
         self.update()
 
     def set_part_accent(self, name: str, role: str | None) -> None:
-        """Colour a part by the band it sets (``"low"``, ``"high"``) or plain (None)."""
+        """Colour a part by the band it sets (``Band.LOW``, ``Band.HIGH``) or plain (None)."""
         self._accents[name] = role
         self._apply_accent(name)
 
@@ -164,7 +165,7 @@ class SchematicScene(QGraphicsScene):
     def _apply_accent(self, name: str) -> None:
         if name in self._parts:
             role = "pointed" if name == self._pointed else self._accents.get(name)
-            colour = {"low": self.theme.band_low, "high": self.theme.band_high,
+            colour = {Band.LOW: self.theme.band_low, Band.HIGH: self.theme.band_high,
                       "pointed": self.theme.selection}.get(role)
             self._parts[name].set_accent(colour)
 

@@ -26,8 +26,8 @@ from typing import Mapping
 
 import numpy as np
 
+from ..core.band import Band
 from ..solve.analysis import midband_states
-from ..solve.bands import HIGH, LOW
 from ..network.elements import Capacitor, Inductor, Resistor
 from ..solve.mna import build_system
 from .partvalues import PartValue, parametric_system, part_values
@@ -199,8 +199,8 @@ def sensitivities(circuit, analysis) -> Sensitivities:
     mid_ps = parametric_system(circuit, names, states)
     full_ps = parametric_system(circuit, names)
     coef, sign = full_ps.coefficients, _coefficient_sign(circuit, names)
-    high = [el for el in reactive if bands[el.name] == HIGH]
-    low = [el for el in reactive if bands[el.name] == LOW]
+    high = [el for el in reactive if bands[el.name] == Band.HIGH]
+    low = [el for el in reactive if bands[el.name] == Band.LOW]
     notes: dict = {}
     hi_est = _guarded(notes, "high_estimate", lambda: _high_estimate(mid_sys, mid_ps, high, coef, sign, names))
     lo_est = _guarded(notes, "low_estimate", lambda: _low_estimate(dc_sys, full_ps, low, coef, sign, names))

@@ -12,6 +12,7 @@ from dataclasses import dataclass, field, replace
 from types import MappingProxyType
 from typing import Mapping
 
+from ..core.band import Band
 from ..core.events import Signal
 from . import schema
 from .parts import KINDS, ROTATIONS, pin_positions
@@ -125,8 +126,8 @@ class Document:
         return MappingProxyType(self._wires)
 
     @property
-    def band_pins(self) -> Mapping[str, str]:
-        """Element name -> ``"low"`` or ``"high"``, for the elements the user pinned."""
+    def band_pins(self) -> Mapping[str, Band]:
+        """Element name -> :class:`~bandsketch.engine.core.band.Band` (low or high), for the elements the user pinned."""
         return MappingProxyType(self._band_pins)
 
     @property
@@ -239,13 +240,13 @@ class Document:
             setattr(self, key, value)
         self.changed.emit(Change("meta"))
 
-    def set_band_pin(self, element: str, band: str | None) -> None:
-        """Pin ``element`` to ``"low"`` or ``"high"``, or unpin it with None."""
+    def set_band_pin(self, element: str, band: Band | str | None) -> None:
+        """Pin ``element`` to ``Band.LOW`` or ``Band.HIGH`` (or their words), or unpin it with None."""
         if band is None:
             self._band_pins.pop(element, None)
         else:
             _check(schema.band_problem(element, band))
-            self._band_pins[element] = band
+            self._band_pins[element] = Band(band)
         self.changed.emit(Change("meta"))
 
     def set_target(self, key: str, text: str | None) -> None:

@@ -20,6 +20,7 @@ from __future__ import annotations
 import math
 import re
 
+from ..core.band import Band
 from ..core.errors import BadValueError
 from ..core.values import parse_value
 from .parts import KINDS, ROTATIONS, Field
@@ -33,8 +34,6 @@ MAX_WIRE_POINTS = 1000
 """Most points one wire may have."""
 NAME_RE = re.compile(r"[A-Za-z][A-Za-z0-9_]*")
 """What a part or net name may look like (whole, with ``fullmatch``): a letter, then letters, digits or _."""
-BANDS = ("low", "high")
-"""Bands a user may pin an element to."""
 TARGET_KEYS = ("f_high_min", "f_low_max", "gain", "gain_tolerance")
 """Design targets a document may hold (texts, parsed by the engine's value parser)."""
 TEXT_UNITS = {"choice", "name", "net"}
@@ -206,8 +205,8 @@ def band_problem(element, band) -> str | None:
         return f"the pinned element's name: {problem}"
     if not element:
         return "a band pin names no element"
-    if band not in BANDS:
-        return f"{element} is pinned to {band!r}; a band pin must be one of {', '.join(BANDS)}"
+    if band not in Band.pinnable():
+        return f"{element} is pinned to {band!r}; a band pin must be one of {', '.join(Band.pinnable())}"
     return None
 
 

@@ -17,6 +17,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from ..core.band import Band
 from ..core.values import format_value
 
 HALF_POWER_DB = 20 * math.log10(math.sqrt(2))
@@ -41,8 +42,8 @@ PEAK_SHOWN_DB = 0.1
 PEAK_ROOM = 0.25
 """Above the mid band (or a peak) the magnitude axis leaves this fraction of its span for labels."""
 
-BAND_TITLES = {"high": "High band: τ, share of b1", "low": "Low band: 1/2πτ, share of ω_L",
-               "neutral": "No effect on the gain"}
+BAND_TITLES = {Band.HIGH: "High band: τ, share of b1", Band.LOW: "Low band: 1/2πτ, share of ω_L",
+               Band.NEUTRAL: "No effect on the gain"}
 
 
 @dataclass(frozen=True)
@@ -274,7 +275,7 @@ def _pole_frequencies(analysis) -> list:
     """
     out = [1 / (2 * math.pi * abs(lam)) for lam in (analysis.high_time_constants or ()) if abs(lam) > 0]
     out += [1 / (2 * math.pi * r.time_constant) for r in analysis.elements.values()
-            if r.band == "low" and r.time_constant and r.time_constant > 0]
+            if r.band == Band.LOW and r.time_constant and r.time_constant > 0]
     return [f for f in out if math.isfinite(f)]
 
 
@@ -445,8 +446,8 @@ def _percent(share: float) -> str:
     return "<1 %" if 0 < share < 0.005 else f"{100 * share:.0f} %"
 
 
-def _band_sum_name(band: str) -> str:
-    return "b1" if band == "high" else "ω_L"
+def _band_sum_name(band: Band) -> str:
+    return "b1" if band == Band.HIGH else "ω_L"
 
 
 def element_label(result) -> str:
@@ -456,16 +457,16 @@ def element_label(result) -> str:
     ----------
     result : capacitor or inductor result of an Analysis
     """
-    if result.band == "neutral":
+    if result.band == Band.NEUTRAL:
         return f"{result.name} has no effect on the gain: it sets no corner"
     return (f"R = {format_value(result.resistance, 'Ω')} · τ = {format_value(result.time_constant, 's')}"
             f" · {_percent(result.share)} of {_band_sum_name(result.band)}")
 
 
 _BAND_WORDS = {
-    "high": "high band: open in the mid band, it sets the upper corner",
-    "low": "low band: a short in the mid band, it sets the lower corner",
-    "neutral": "neutral: neither shorting nor opening it changes the gain",
+    Band.HIGH: "high band: open in the mid band, it sets the upper corner",
+    Band.LOW: "low band: a short in the mid band, it sets the lower corner",
+    Band.NEUTRAL: "neutral: neither shorting nor opening it changes the gain",
 }
 
 
@@ -477,33 +478,33 @@ def element_tooltip(result) -> str:
     result : capacitor or inductor result of an Analysis
     """
     lines = [f"{result.name}: {_BAND_WORDS[result.band]}" + (" (pinned)" if result.pinned else "")]
-    if result.band != "neutral":
+    if result.band != Band.NEUTRAL:
         lines.append(element_label(result))
     lines.append(f"Why: {result.reason}")
     return "\n".join(lines)
 
 
-def _group(band: str, results: list, analysis) -> BandGroup:
+def _group(band: Band, results: list, analysis) -> BandGroup:
     results = sorted(results, key=lambda r: (-r.share, r.name))
-    top = {"high": analysis.dominant_high, "low": analysis.dominant_low}.get(band)
+    top = {Band.HIGH: analysis.dominant_high, Band.LOW: analysis.dominant_low}.get(band)
     rows = []
     for r in results:
-        if band == "high":
+        if band == Band.HIGH:
             value, text = r.time_constant, format_value(r.time_constant, "s")
-        elif band == "low":
+        elif band == Band.LOW:
             value = 1 / (2 * math.pi * r.time_constant)
             text = format_value(value, "Hz")
         else:
             value, text = 0.0, "—"
-        share_text = "" if band == "neutral" else _percent(r.share)
+        share_text = "" if band == Band.NEUTRAL else _percent(r.share)
         rows.append(BarRow(r.name, part_of(r.name), band, float(value), text,
-                           0.0 if band == "neutral" else float(r.share), share_text,
+                           0.0 if band == Band.NEUTRAL else float(r.share), share_text,
                            bool(r.pinned), r.name == top, element_tooltip(r)))
-    if band == "high":
+    if band == Band.HIGH:
         total = f"b1 = {format_value(analysis.b1, 's')}"
         if _positive(analysis.f_high_estimate):
             total += f" → f_H ≈ {format_value(analysis.f_high_estimate, 'Hz')}"
-    elif band == "low":
+    elif band == Band.LOW:
         total = f"ω_L = {format_value(analysis.omega_low_estimate or 0.0, 'rad/s')}"
         if _positive(analysis.f_low_estimate):
             total += f" → f_L ≈ {format_value(analysis.f_low_estimate, 'Hz')}"
@@ -514,7 +515,7 @@ def _group(band: str, results: list, analysis) -> BandGroup:
 
 def bar_data(analysis) -> BarData:
     """The time-constant bars of ``analysis``: one group per band that has elements."""
-    by_band: dict = {"high": [], "low": [], "neutral": []}
+    by_band: dict = {Band.HIGH: [], Band.LOW: [], Band.NEUTRAL: []}
     for r in analysis.elements.values():
         by_band[r.band].append(r)
     return BarData(tuple(_group(b, rs, analysis) for b, rs in by_band.items() if rs))
@@ -557,7 +558,7 @@ def verdict_data(analysis) -> VerdictData:
     for g in bars.groups:
         top = next((r for r in g.rows if r.dominant), None)
         if top is not None:
-            corner = "f_H" if g.band == "high" else "f_L"
+            corner = "f_H" if g.band == Band.HIGH else "f_L"
             limits.append(f"{top.name} sets {corner} ({top.share_text} of {_band_sum_name(g.band)})")
     dominant = "; ".join(limits) if limits else "no element sets a corner"
     return VerdictData(_gain_text(float(analysis.midband_gain), analysis.gain_unit),

@@ -19,6 +19,7 @@ from datetime import date
 
 import numpy as np
 
+from ..core.band import Band
 from ..solve.analysis import analyze
 from ..design.netlist import design_to_circuit
 from ..advise.partvalues import part_values
@@ -181,7 +182,7 @@ def _bars_svg(bars) -> str:
         parts.append(f'<text x="0" y="{yy}" font-weight="bold">{_e(g.title)} — {_e(g.total_text)}</text>')
         yy += 10
         for r in g.rows:
-            colour = "#1f5fbf" if g.band == "high" else "#2f9e6e" if g.band == "low" else "#9aa5b1"
+            colour = "#1f5fbf" if g.band == Band.HIGH else "#2f9e6e" if g.band == Band.LOW else "#9aa5b1"
             w = max(1.0, r.share * bar_w)
             parts.append(f'<text x="0" y="{yy + 14}">{_e(r.name)}{" (pinned)" if r.pinned else ""}</text>')
             parts.append(f'<rect x="{label_w}" y="{yy + 3}" width="{w:.1f}" height="{row_h - 6}" fill="{colour}"/>')
@@ -201,7 +202,7 @@ def _elements_table(circuit) -> str:
 def _bands_table(analysis) -> str:
     rows = []
     for r in analysis.elements.values():
-        share = "—" if r.band == "neutral" else f"{100 * r.share:.1f} %"
+        share = "—" if r.band == Band.NEUTRAL else f"{100 * r.share:.1f} %"
         rows.append((r.name, r.band + (" (pinned)" if r.pinned else ""), _fmt(r.resistance, "Ω"),
                      _fmt(r.time_constant, "s"), share, r.reason))
     return _table(("element", "band", "R seen", "τ", "share", "why"), rows, numeric=(2, 3, 4))

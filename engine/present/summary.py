@@ -7,6 +7,7 @@ import math
 
 import numpy as np
 
+from ..core.band import Band
 from ..solve.mna import SHORT
 from ..core.values import format_value
 from .biasdata import BIAS_HEADINGS, bias_rows
@@ -173,7 +174,7 @@ def format_table(a, title: str | None = None) -> str:
     rows = [("Element", "Band", "R", "τ", "Share")]
     for r in a.elements.values():
         band = r.band + (" (pinned)" if r.pinned else "") + (" *" if r.acts_in_band else "")
-        share = "" if r.band == "neutral" else f"{100 * r.share:.1f} %"
+        share = "" if r.band == Band.NEUTRAL else f"{100 * r.share:.1f} %"
         rows.append((r.name, band, _fmt(r.resistance, "Ω"), _fmt(r.time_constant, "s"), share))
     lines += _aligned(rows)
     if any(r.acts_in_band for r in a.elements.values()):

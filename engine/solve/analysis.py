@@ -17,8 +17,9 @@ from typing import Mapping
 
 import numpy as np
 
-from .bands import (BANDS, HIGH, IN_BAND_DB, LOW, NEUTRAL, NEUTRAL_DB, band_tests, fixed_elements,
-                    parallel_capacitance, parallel_groups)
+from ..core.band import Band
+from .bands import (IN_BAND_DB, NEUTRAL_DB, BandTest, band_tests, fixed_elements, parallel_capacitance,
+                    parallel_groups)
 from .corners import brackets, corner, first_span, midband_guess, points_per_decade, second_order_corner, wide_sweep
 from ..network.elements import Capacitor, Inductor, ISource, VSource
 from ..core.errors import CircuitError
@@ -78,8 +79,8 @@ class ElementResult:
         Element name (``Cin``, or ``Q1.cmu`` inside a block).
     nodes : tuple of str
         Its two nodes.
-    band : str
-        ``"low"``, ``"high"`` or ``"neutral"``.
+    band : Band
+        ``Band.LOW``, ``Band.HIGH`` or ``Band.NEUTRAL`` (equal to the words ``"low"`` ...).
     pinned : bool
         The user chose the band; the test did not.
     resistance : float or None
@@ -107,7 +108,7 @@ class ElementResult:
 
     name: str
     nodes: tuple[str, str]
-    band: str
+    band: Band
     pinned: bool
     resistance: float | None
     time_constant: float | None
@@ -254,7 +255,7 @@ class Analysis:
     def port_picture(self, name: str) -> PortPicture | None:
         """How ``name``'s resistance is found; None for a neutral element (it has none)."""
         el = self.elements[name]
-        if el.band == NEUTRAL:
+        if el.band == Band.NEUTRAL:
             return None
         shorted, opened = [], []
         for other in self.elements.values():
@@ -270,7 +271,7 @@ def midband_state(el, band) -> str:
     is open, an inductor shorted. ``el`` is an element or an :class:`ElementResult`.
     """
     is_cap = isinstance(el, (Capacitor, CapacitorResult))
-    if band == LOW:
+    if band == Band.LOW:
         return SHORT if is_cap else OPEN
     return OPEN if is_cap else SHORT
 
@@ -281,7 +282,7 @@ def midband_states(reactive, bands) -> dict[str, str]:
     Parameters
     ----------
     reactive : sequence of Capacitor or Inductor
-    bands : Mapping[str, str]
+    bands : Mapping[str, Band]
         Name -> band.
 
     Notes
@@ -319,9 +320,9 @@ def _reason(el, test, unit_db) -> str:
     low_gain, high_gain = (test.gain_opened, test.gain_shorted) if is_cap else (test.gain_shorted, test.gain_opened)
     if test.fixed:
         return f"{test.fixed}: neutral"
-    if test.band in (LOW, HIGH):
+    if test.band in (Band.LOW, Band.HIGH):
         verb, before, after, mid_state = ((low_verb, high_gain, low_gain, "shorted" if is_cap else "open")
-                                          if test.band == LOW else
+                                          if test.band == Band.LOW else
                                           (high_verb, low_gain, high_gain, "open" if is_cap else "shorted"))
         change = "drops" if after < before else "raises"
         text = f"{verb} {el.name} {change} the gain from {_db(before)} {unit_db} to {_db(after)} {unit_db}"
@@ -338,14 +339,16 @@ def _reason(el, test, unit_db) -> str:
     return text
 
 
-def _check_pins(bands, reactive_names) -> dict[str, str]:
-    pins = dict(bands or {})
-    for name, band in pins.items():
+def _check_pins(bands, reactive_names) -> dict[str, Band]:
+    pins = {}
+    for name, band in dict(bands or {}).items():
         if name not in reactive_names:
             raise CircuitError(f"Cannot pin {name} to a band: it is not a capacitor or inductor of this "
                                f"circuit (block capacitors are named like Q1.cmu).", parts=(name,))
-        if band not in BANDS:
-            raise CircuitError(f"{name} is pinned to '{band}': choose 'low', 'high' or 'neutral'.", parts=(name,))
+        if band not in tuple(Band):
+            words = ", ".join(f"'{b}'" for b in Band)
+            raise CircuitError(f"{name} is pinned to '{band}': choose one of {words}.", parts=(name,))
+        pins[name] = Band(band)
     return pins
 
 
@@ -379,13 +382,287 @@ def _low_band(c, low, states):
     for group in [*parallel_groups(low).values(), *([el] for el in low if isinstance(el, Inductor))]:
         port_of.update({el.name: len(ports) for el in group})
         ports.append(group)
-    sc = short_circuit(factorize(system.G, "with the low-band elements at zero value", sorted(low_names)), port_columns(system, [g[0] for g in ports]),
+    sc = short_circuit(factorize(system.G, "with the low-band elements at zero value", sorted(low_names)),
+                       port_columns(system, [g[0] for g in ports]),
                        np.array([sum(port_weights(g)) for g in ports]), ["+".join(el.name for el in g) for g in ports])
     return sc, port_of
 
 
 def _ratio(a, b):
     return a / b if a is not None and b else None
+
+
+# -- the steps of the analysis, each with its own small record -------------------------------------
+@dataclass(frozen=True)
+class Stage:
+    """The circuit as the analysis takes it: validated, assembled and swept once.
+
+    Attributes
+    ----------
+    circuit : bandsketch.engine.network.circuit.Circuit
+    reactive : tuple of Capacitor or Inductor
+        Every capacitor and inductor, in circuit order.
+    pins : Mapping[str, Band]
+        The user's pins.
+    fixed : Mapping[str, str]
+        Elements one of whose states an ideal source makes undefined, with the reason.
+    system : bandsketch.engine.solve.mna.MnaSystem
+        The full network.
+    sweep_frequencies : numpy.ndarray
+        Hz, the wide exact sweep.
+    sweep_response : numpy.ndarray
+        Complex H there (gain unit).
+    gain_unit : str
+        ``"V/V"`` or ``"V/A"``.
+    operating_point : OperatingPoint or None
+        The DC point the blocks biased from the circuit were solved at; None when no block is.
+    """
+
+    circuit: object
+    reactive: tuple
+    pins: Mapping[str, Band]
+    fixed: Mapping[str, str]
+    system: object
+    sweep_frequencies: np.ndarray = field(repr=False)
+    sweep_response: np.ndarray = field(repr=False)
+    gain_unit: str
+    operating_point: OperatingPoint | None = field(default=None, repr=False)
+
+
+@dataclass(frozen=True)
+class Classification:
+    """The band test, repeated until the bands settle, and the resistive mid-band network it gives.
+
+    Attributes
+    ----------
+    midband_frequency : float
+        Hz, where the last test was made.
+    tests : Mapping[str, BandTest]
+        The short/open gain test of every element there.
+    bands : Mapping[str, Band]
+        Every element's band (a pin wins over the test).
+    states : Mapping[str, str]
+        Every element's mid-band state, ``"short"`` or ``"open"``.
+    midband_gain : float
+        Resistive mid-band gain A_m, signed (gain unit).
+    mid : bandsketch.engine.solve.mna.MnaSystem
+        The resistive mid-band network (every element at its state).
+    mid_lu : scipy.sparse.linalg.SuperLU
+        Its conductance matrix, factorised.
+    settled : bool
+        False when the bands still changed after :data:`MAX_ROUNDS` rounds.
+    """
+
+    midband_frequency: float
+    tests: Mapping[str, BandTest]
+    bands: Mapping[str, Band]
+    states: Mapping[str, str]
+    midband_gain: float
+    mid: object = field(repr=False)
+    mid_lu: object = field(repr=False)
+    settled: bool
+
+    def members(self, stage, band) -> list:
+        """The elements of ``stage`` in ``band``, in circuit order."""
+        return [el for el in stage.reactive if self.bands[el.name] == band]
+
+
+@dataclass(frozen=True)
+class Estimates:
+    """The time-constant estimates of both corners.
+
+    Attributes
+    ----------
+    open_circuit : bandsketch.engine.solve.timeconstants.OpenCircuit
+        The high band's open-circuit constants (b1, b2, exact time constants).
+    short_circuit : bandsketch.engine.solve.timeconstants.ShortCircuit
+        The low band's short-circuit constants.
+    low_port_of : Mapping[str, int]
+        Low-band element name -> its port in ``short_circuit`` (parallel capacitors share one).
+    f_high, f_high_2nd : float or None
+        Hz, 1/(2π·b1) and the corner of 1/(1 + b1·s + b2·s²).
+    omega_low : float or None
+        rad/s, the low band's estimate ω_L.
+    f_low : float or None
+        Hz, ω_L/(2π).
+    """
+
+    open_circuit: object
+    short_circuit: object
+    low_port_of: Mapping[str, int]
+    f_high: float | None
+    f_high_2nd: float | None
+    omega_low: float | None
+    f_low: float | None
+
+
+@dataclass(frozen=True)
+class ExactCorners:
+    """Where the exact |H| falls to |A_m|/√2 below and above the mid band.
+
+    Attributes
+    ----------
+    f_low, f_high : float or None
+        Hz; None where the exact gain never falls 3 dB on that side.
+    """
+
+    f_low: float | None
+    f_high: float | None
+
+
+def prepare(c, bands=None, per_decade: int | None = None) -> Stage:
+    """Validate ``c``, check the pins, assemble the network and sweep it (see :func:`analyze`)."""
+    validate(c)
+    # Blocks biased from the circuit take their small-signal values from the DC point, so it is
+    # solved before the network is assembled.
+    point = solved(c) if c.large_blocks else None
+    reactive = tuple(el for el in c.elements.values() if isinstance(el, (Capacitor, Inductor)))
+    pins = _check_pins(bands, {el.name for el in reactive})
+    system = build_system(c)
+    freqs, H = wide_sweep(system, first_span(c), per_decade or points_per_decade(system))
+    freqs.flags.writeable = False
+    H.flags.writeable = False
+    unit = "V/A" if isinstance(c.elements[c.input_name], ISource) else "V/V"
+    return Stage(c, reactive, MappingProxyType(pins), MappingProxyType(fixed_elements(c)), system, freqs, H, unit,
+                 point)
+
+
+def _resistive_midband(stage, bands):
+    """States, network, factorisation and signed gain of the resistive mid-band network."""
+    c = stage.circuit
+    states = midband_states(stage.reactive, bands)
+    mid = build_system(c, states)
+    low_names = [name for name, band in bands.items() if band == Band.LOW]
+    lu = factorize(mid.G, "with the low-band elements at their mid-band states", low_names)
+    x = lu.solve(mid.b)
+    gain = float((mid.c @ x).real)
+    # Rounding leaves a trace at an output the signal cannot reach; judge it against the
+    # largest node voltage the input drives, not against an exact zero.
+    if abs(gain) <= UNREACHED_RATIO * np.abs(x[:len(mid.node_index)]).max(initial=0.0):
+        out = c.output_nodes[0] if c.output_nodes[1] == "0" else " − ".join(c.output_nodes)
+        pinned = ", ".join(f"{name} to the {band} band" for name, band in stage.pins.items())
+        hint = (f"; it may be the band pins ({pinned}) that cut it off: unpin them to let the test decide"
+                if stage.pins else "")
+        raise CircuitError(f"The output {out} does not respond to the input "
+                           f"{c.input_name} in the mid band: check the output probe and the signal path{hint}.",
+                           nodes=c.output_nodes, parts=tuple(stage.pins))
+    return states, mid, lu, gain
+
+
+def classify(stage: Stage) -> Classification:
+    """The band of every element: test at f_m, find the mid-band gain, move f_m, until nothing changes.
+
+    Parameters
+    ----------
+    stage : Stage
+        From :func:`prepare`.
+
+    Returns
+    -------
+    Classification
+    """
+    freqs, H = stage.sweep_frequencies, stage.sweep_response
+    f_m = midband_guess(freqs, H)
+    previous = None
+    for _ in range(MAX_ROUNDS):
+        tests = band_tests(stage.system, stage.reactive, f_m, stage.fixed)
+        chosen = {name: stage.pins.get(name, t.band) for name, t in tests.items()}
+        states, mid, lu, gain = _resistive_midband(stage, chosen)
+        if chosen == previous:
+            settled = True
+            break
+        previous = chosen
+        low_bracket, high_bracket = brackets(freqs, H, f_m, abs(gain) / math.sqrt(2))
+        f_m = _next_midband(low_bracket, high_bracket, f_m, freqs)
+    else:
+        settled = False
+    return Classification(f_m, MappingProxyType(tests), MappingProxyType(chosen), MappingProxyType(states),
+                          gain, mid, lu, settled)
+
+
+def estimate(stage: Stage, bands: Classification, full_matrix_limit: int = FULL_MATRIX_LIMIT) -> Estimates:
+    """Open-circuit constants of the high band and short-circuit constants of the low band.
+
+    Parameters
+    ----------
+    stage : Stage
+    bands : Classification
+    full_matrix_limit : int
+        Up to this many high-band elements the whole port matrix is formed (b2, exact
+        high-band time constants).
+
+    Returns
+    -------
+    Estimates
+    """
+    high, low = bands.members(stage, Band.HIGH), bands.members(stage, Band.LOW)
+    oc = open_circuit(bands.mid_lu, port_columns(bands.mid, high), port_weights(high),
+                      full=len(high) <= full_matrix_limit)
+    sc, low_port_of = _low_band(stage.circuit, low, bands.states)
+    f_high = 1 / (2 * math.pi * oc.b1) if oc.b1 > 0 else None
+    f_high_2nd = second_order_corner(oc.b1, oc.b2) if high and oc.b2 is not None else None
+    omega_low = sc.omega if low else None
+    f_low = omega_low / (2 * math.pi) if omega_low and omega_low > 0 else None
+    return Estimates(oc, sc, MappingProxyType(low_port_of), f_high, f_high_2nd, omega_low, f_low)
+
+
+def exact_corners(stage: Stage, bands: Classification) -> ExactCorners:
+    """The exact −3 dB corners of the full network nearest the mid band.
+
+    Parameters
+    ----------
+    stage : Stage
+    bands : Classification
+        Gives the mid-band frequency and the level |A_m|/√2.
+
+    Returns
+    -------
+    ExactCorners
+    """
+    level = abs(bands.midband_gain) / math.sqrt(2)
+    low_bracket, high_bracket = brackets(stage.sweep_frequencies, stage.sweep_response,
+                                         bands.midband_frequency, level)
+    return ExactCorners(corner(stage.system, low_bracket, level), corner(stage.system, high_bracket, level))
+
+
+def _results(stage, bands, est):
+    """Name -> :class:`CapacitorResult` / :class:`InductorResult` for both kinds."""
+    oc, sc = est.open_circuit, est.short_circuit
+    high = bands.members(stage, Band.HIGH)
+    total_c = parallel_capacitance(bands.members(stage, Band.LOW))
+    unit_db = "dBΩ" if stage.gain_unit == "V/A" else "dB"
+    position = {el.name: j for j, el in enumerate(high)}
+    caps, inds = {}, {}
+    for el in stage.reactive:
+        band = bands.bands[el.name]
+        test = bands.tests[el.name]
+        resistance = tau = None
+        share = 0.0
+        if band == Band.HIGH:
+            j = position[el.name]
+            tau = float(oc.time_constants[j])
+            z = float(oc.port_values[j])
+            resistance = z if isinstance(el, Capacitor) else (1 / -z if z != 0 else math.inf)
+            share = tau / oc.b1 if oc.b1 else 0.0
+        elif band == Band.LOW:
+            j = est.low_port_of[el.name]
+            tau = float(sc.time_constants[j])
+            y = float(sc.inverse_diagonal[j])
+            resistance = 1 / y if isinstance(el, Capacitor) else -y
+            # Parallel partners share their port's 1/τ in proportion to capacitance.
+            part = el.value / total_c[el.name] if isinstance(el, Capacitor) else 1.0
+            share = part * (1 / tau) / est.omega_low if est.omega_low else 0.0
+        reason = _reason(el, test, unit_db)
+        if el.name in stage.pins:
+            reason = f"pinned to the {band} band (the test says: {reason})"
+        common = dict(name=el.name, nodes=el.nodes, band=band, pinned=el.name in stage.pins, resistance=resistance,
+                      time_constant=tau, share=share, reason=reason, gain_shorted=test.gain_shorted,
+                      gain_opened=test.gain_opened, acts_in_band=test.acts_in_band, state=bands.states[el.name])
+        if isinstance(el, Capacitor):
+            caps[el.name] = CapacitorResult(**common, capacitance=el.value)
+        else:
+            inds[el.name] = InductorResult(**common, inductance=el.value)
+    return caps, inds
 
 
 def analyze(c, bands=None, *, per_decade: int | None = None, full_matrix_limit: int = FULL_MATRIX_LIMIT) -> Analysis:
@@ -395,9 +672,9 @@ def analyze(c, bands=None, *, per_decade: int | None = None, full_matrix_limit: 
     ----------
     c : bandsketch.engine.network.circuit.Circuit
         The stage, with its input and output chosen.
-    bands : Mapping[str, str], optional
-        Element name -> ``"low"``, ``"high"`` or ``"neutral"``: pins that override the
-        band test.
+    bands : Mapping[str, Band or str], optional
+        Element name -> ``Band.LOW``, ``Band.HIGH`` or ``Band.NEUTRAL`` (or the words
+        ``"low"``, ``"high"``, ``"neutral"``): pins that override the band test.
     per_decade : int, optional
         Points per decade of the exact sweep; by default 20, or 8 for networks too large
         for a batched dense solve.
@@ -416,6 +693,10 @@ def analyze(c, bands=None, *, per_decade: int | None = None, full_matrix_limit: 
 
     Notes
     -----
+    The method in four steps: :func:`classify` (the band test), :func:`estimate` (time
+    constants), :func:`exact_corners` (the full network) and :func:`warn` (where the
+    estimates cannot be trusted, and why).
+
     Cost for N capacitors and n unknowns: the wide sweep is one solve per point (batched
     dense up to 60 unknowns, a sparse LU per point beyond); each band-test round is one
     complex LU and N solves; the time constants are one real LU and N solves each band;
@@ -423,112 +704,31 @@ def analyze(c, bands=None, *, per_decade: int | None = None, full_matrix_limit: 
     up to ``full_matrix_limit``; the right-half-plane-zero check is an n³ eigenproblem, done
     up to 250 unknowns. Poles and zeros are otherwise computed only when asked for.
     """
-    validate(c)
-    point = solved(c) if c.large_blocks else None
-    reactive = [el for el in c.elements.values() if isinstance(el, (Capacitor, Inductor))]
-    pins = _check_pins(bands, {el.name for el in reactive})
-    system = build_system(c)
-    fixed = fixed_elements(c)
-    freqs, H = wide_sweep(system, first_span(c), per_decade or points_per_decade(system))
-
-    f_m = midband_guess(freqs, H)
-    notes: list[str] = list(point.warnings) if point else []
-    previous = None
-    for _ in range(MAX_ROUNDS):
-        tests = band_tests(system, reactive, f_m, fixed)
-        chosen = {name: pins.get(name, t.band) for name, t in tests.items()}
-        states = midband_states(reactive, chosen)
-        mid = build_system(c, states)
-        low_names = [el.name for el in reactive if chosen[el.name] == LOW]
-        lu_mid = factorize(mid.G, "with the low-band elements at their mid-band states", low_names)
-        x_mid = lu_mid.solve(mid.b)
-        gain = float((mid.c @ x_mid).real)
-        # Rounding leaves a trace at an output the signal cannot reach; judge it against the
-        # largest node voltage the input drives, not against an exact zero.
-        if abs(gain) <= UNREACHED_RATIO * np.abs(x_mid[:len(mid.node_index)]).max(initial=0.0):
-            out = c.output_nodes[0] if c.output_nodes[1] == "0" else " − ".join(c.output_nodes)
-            pinned = ", ".join(f"{name} to the {band} band" for name, band in pins.items())
-            hint = (f"; it may be the band pins ({pinned}) that cut it off: unpin them to let the test decide"
-                    if pins else "")
-            raise CircuitError(f"The output {out} does not respond to the input "
-                               f"{c.input_name} in the mid band: check the output probe and the signal path{hint}.",
-                               nodes=c.output_nodes, parts=tuple(pins))
-        low_bracket, high_bracket = brackets(freqs, H, f_m, abs(gain) / math.sqrt(2))
-        if chosen == previous:
-            break
-        previous = chosen
-        f_m = _next_midband(low_bracket, high_bracket, f_m, freqs)
-    else:
-        notes.append("The band test did not settle: the elements change band as the mid-band frequency "
-                     "moves, so the bands overlap and the estimates are weak.")
-    f_low = corner(system, low_bracket, abs(gain) / math.sqrt(2))
-    f_high = corner(system, high_bracket, abs(gain) / math.sqrt(2))
-
-    high = [el for el in reactive if chosen[el.name] == HIGH]
-    low = [el for el in reactive if chosen[el.name] == LOW]
-    oc = open_circuit(lu_mid, port_columns(mid, high), port_weights(high), full=len(high) <= full_matrix_limit)
-    sc, low_port_of = _low_band(c, low, states)
-    total_c = parallel_capacitance(low)
-
-    b1 = oc.b1
-    f_high_est = 1 / (2 * math.pi * b1) if b1 > 0 else None
-    f_high_2nd = second_order_corner(b1, oc.b2) if high and oc.b2 is not None else None
-    omega_low = sc.omega if low else None
-    f_low_est = omega_low / (2 * math.pi) if omega_low and omega_low > 0 else None
-
-    unit = "V/A" if isinstance(c.elements[c.input_name], ISource) else "V/V"
-    unit_db = "dBΩ" if unit == "V/A" else "dB"
-    position = {el.name: j for j, el in enumerate(high)}
-    caps, inds = {}, {}
-    for el in reactive:
-        band = chosen[el.name]
-        test = tests[el.name]
-        resistance = tau = None
-        share = 0.0
-        j = position.get(el.name)
-        if band == HIGH:
-            tau = float(oc.time_constants[j])
-            z = float(oc.port_values[j])
-            resistance = z if isinstance(el, Capacitor) else (1 / -z if z != 0 else math.inf)
-            share = tau / b1 if b1 else 0.0
-        elif band == LOW:
-            j = low_port_of[el.name]
-            tau = float(sc.time_constants[j])
-            y = float(sc.inverse_diagonal[j])
-            resistance = 1 / y if isinstance(el, Capacitor) else -y
-            # Parallel partners share their port's 1/τ in proportion to capacitance.
-            part = el.value / total_c[el.name] if isinstance(el, Capacitor) else 1.0
-            share = part * (1 / tau) / omega_low if omega_low else 0.0
-        reason = _reason(el, test, unit_db)
-        if el.name in pins:
-            reason = f"pinned to the {band} band (the test says: {reason})"
-        common = dict(name=el.name, nodes=el.nodes, band=band, pinned=el.name in pins, resistance=resistance,
-                      time_constant=tau, share=share, reason=reason, gain_shorted=test.gain_shorted,
-                      gain_opened=test.gain_opened, acts_in_band=test.acts_in_band, state=states[el.name])
-        if isinstance(el, Capacitor):
-            caps[el.name] = CapacitorResult(**common, capacitance=el.value)
-        else:
-            inds[el.name] = InductorResult(**common, inductance=el.value)
-
+    stage = prepare(c, bands, per_decade)
+    classes = classify(stage)
+    est = estimate(stage, classes, full_matrix_limit)
+    exact = exact_corners(stage, classes)
+    caps, inds = _results(stage, classes, est)
     every = {**caps, **inds}
-    known_zeros = zeros(system) if system.size <= ZERO_CHECK_LIMIT else None
-    notes += _warnings(every, tests, gain, b1, oc, f_high_est, f_high_2nd, f_high, f_low, freqs, H,
-                       known_zeros, len(high) > full_matrix_limit, full_matrix_limit)
-    freqs.flags.writeable = False
-    H.flags.writeable = False
-    sources = tuple(el.name for el in c.elements.values() if isinstance(el, (VSource, ISource)))
+    known_zeros = zeros(stage.system) if stage.system.size <= ZERO_CHECK_LIMIT else None
+    notes = warn(stage, classes, est, exact, every, known_zeros, full_matrix_limit)
+    if stage.operating_point is not None:
+        notes = (*stage.operating_point.warnings, *notes)
+    oc = est.open_circuit
     return Analysis(
-        title=c.title, gain_unit=unit, midband_gain=gain, midband_frequency=f_m,
+        title=c.title, gain_unit=stage.gain_unit, midband_gain=classes.midband_gain,
+        midband_frequency=classes.midband_frequency,
         capacitors=MappingProxyType(caps), inductors=MappingProxyType(inds),
-        b1=b1, b2=oc.b2,
+        b1=oc.b1, b2=oc.b2,
         high_time_constants=None if oc.exact is None else tuple(complex(v) for v in oc.exact),
-        f_high_estimate=f_high_est, f_high_estimate_2nd=f_high_2nd,
-        omega_low_estimate=omega_low, f_low_estimate=f_low_est,
-        f_high_exact=f_high, f_low_exact=f_low,
-        f_high_ratio=_ratio(f_high_est, f_high), f_low_ratio=_ratio(f_low_est, f_low),
-        dominant_high=_dominant(every, HIGH), dominant_low=_dominant(every, LOW),
-        sweep_frequencies=freqs, sweep_response=H, _warnings=tuple(notes), sources=sources,
-        _system=system, _zeros=known_zeros, operating_point=point)
+        f_high_estimate=est.f_high, f_high_estimate_2nd=est.f_high_2nd,
+        omega_low_estimate=est.omega_low, f_low_estimate=est.f_low,
+        f_high_exact=exact.f_high, f_low_exact=exact.f_low,
+        f_high_ratio=_ratio(est.f_high, exact.f_high), f_low_ratio=_ratio(est.f_low, exact.f_low),
+        dominant_high=_dominant(every, Band.HIGH), dominant_low=_dominant(every, Band.LOW),
+        sweep_frequencies=stage.sweep_frequencies, sweep_response=stage.sweep_response,
+        _warnings=tuple(notes), sources=tuple(el.name for el in c.elements.values() if isinstance(el, (VSource, ISource))),
+        _system=stage.system, _zeros=known_zeros, operating_point=stage.operating_point)
 
 
 def _dominant(results, band):
@@ -540,15 +740,15 @@ def _hz(f):
     return format_value(f, "Hz")
 
 
-def _warnings(results, tests, gain, b1, oc, f_high_est, f_high_2nd, f_high, f_low, freqs, H,
-              known_zeros, too_many, limit) -> list[str]:
+def _element_notes(stage, results) -> list[str]:
+    """Elements that act inside the band, and low-band elements that make only a pole–zero pair."""
     notes = []
     for r in results.values():
         if r.acts_in_band:
             notes.append(f"{r.name} acts inside the band: shorting and opening it both lower the gain by more "
                          f"than {IN_BAND_DB:g} dB, so the bands are not separated and the estimates are weak.")
     for r in results.values():
-        if r.band != LOW or tests[r.name].fixed:
+        if r.band != Band.LOW or r.name in stage.fixed:
             continue
         is_cap = isinstance(r, CapacitorResult)
         low_gain, high_gain = (r.gain_opened, r.gain_shorted) if is_cap else (r.gain_shorted, r.gain_opened)
@@ -558,26 +758,29 @@ def _warnings(results, tests, gain, b1, oc, f_high_est, f_high_2nd, f_high, f_lo
                     else f"costs only {20 * math.log10(high_gain / low_gain):.2f} dB")
             notes.append(f"{verb} {r.name} {cost}: it makes a pole–zero pair, not a corner of its own, and its "
                          "share of the lower-corner estimate overstates it.")
+    return notes
+
+
+def _high_band_notes(est, exact, known_zeros, too_many, limit) -> list[str]:
+    """Feedback, complex poles, no dominant pole, a right-half-plane zero near f_H, a missing b2."""
+    oc = est.open_circuit
+    b1 = oc.b1
+    notes = []
     if b1 < 0:
         notes.append("The open-circuit time constants add up to a negative b1: the high band has feedback "
                      "that the first-order estimate cannot describe; trust the exact corner.")
     if oc.b2 is not None and b1 > 0 and b1 * b1 < 4 * oc.b2:
         notes.append("The high band has complex poles (b1² < 4·b2): the response may peak, and the first-order "
                      "estimate 1/(2π·b1) can be optimistic instead of conservative.")
-    mag = np.abs(H)
-    top = int(np.argmax(mag))
-    excess = 20 * math.log10(mag[top] / abs(gain))
-    if excess > PEAKING_DB:
-        notes.append(f"The exact gain peaks {excess:.1f} dB above the mid-band gain, at {_hz(freqs[top])}.")
     # A complex pair is reported above; dominance is a question about real poles.
     if oc.exact is not None and len(oc.exact) >= 2 and abs(oc.exact[1]) > 0 and oc.exact[0].imag == 0:
         ratio = abs(oc.exact[0]) / abs(oc.exact[1])
         if ratio < DOMINANCE:
             p1, p2 = (1 / (2 * math.pi * abs(v)) for v in oc.exact[:2])
-            better = f"; the second-order estimate ({_hz(f_high_2nd)}) is closer" if f_high_2nd else ""
+            better = f"; the second-order estimate ({_hz(est.f_high_2nd)}) is closer" if est.f_high_2nd else ""
             notes.append(f"No pole dominates the high band: the second pole ({_hz(p2)}) is within "
                          f"{DOMINANCE:g}× of the first ({_hz(p1)}), so the first-order estimate is weak{better}.")
-    reference = f_high or f_high_est
+    reference = exact.f_high or est.f_high
     if known_zeros is not None and reference:
         rhp = [z for z in known_zeros if z.real > 0 and abs(z) < RHP_ZERO_FACTOR * 2 * math.pi * reference]
         if rhp:
@@ -587,6 +790,43 @@ def _warnings(results, tests, gain, b1, oc, f_high_est, f_high_2nd, f_high, f_lo
     if too_many:
         notes.append(f"The high band has more than {limit} elements: b2, the second-order estimate and the exact "
                      "high-band time constants were not computed.")
-    if f_high is None and f_high_est is not None:
+    if exact.f_high is None and est.f_high is not None:
         notes.append("The exact gain never falls 3 dB above the mid band: there is no upper corner, only the estimate.")
     return notes
+
+
+def _peaking_note(stage, gain) -> list[str]:
+    mag = np.abs(stage.sweep_response)
+    top = int(np.argmax(mag))
+    excess = 20 * math.log10(mag[top] / abs(gain))
+    if excess > PEAKING_DB:
+        return [f"The exact gain peaks {excess:.1f} dB above the mid-band gain, at {_hz(stage.sweep_frequencies[top])}."]
+    return []
+
+
+def warn(stage: Stage, bands: Classification, est: Estimates, exact: ExactCorners, results,
+         known_zeros, full_matrix_limit: int = FULL_MATRIX_LIMIT) -> list[str]:
+    """Plain-language warnings: where the estimates cannot be trusted, and why.
+
+    Parameters
+    ----------
+    stage, bands, est, exact
+        The records of the other steps.
+    results : Mapping[str, ElementResult]
+        Every element's result.
+    known_zeros : numpy.ndarray or None
+        The exact finite zeros (rad/s), when they were computed.
+    full_matrix_limit : int
+        As for :func:`analyze`.
+
+    Returns
+    -------
+    list of str
+    """
+    notes = [] if bands.settled else [
+        "The band test did not settle: the elements change band as the mid-band frequency "
+        "moves, so the bands overlap and the estimates are weak."]
+    notes += _element_notes(stage, results)
+    too_many = len(bands.members(stage, Band.HIGH)) > full_matrix_limit
+    notes += _high_band_notes(est, exact, known_zeros, too_many, full_matrix_limit)
+    return notes + _peaking_note(stage, bands.midband_gain)

@@ -16,11 +16,9 @@ from dataclasses import dataclass
 import networkx as nx
 import numpy as np
 
+from ..core.band import Band
 from ..network.elements import CCCS, CCVS, VCCS, VCVS, Capacitor, Inductor, ISource, VSource
 from .timeconstants import factorize, port_columns, port_diagonal
-
-LOW, HIGH, NEUTRAL = "low", "high", "neutral"
-BANDS = (LOW, HIGH, NEUTRAL)
 
 NEUTRAL_DB = 0.01
 """An element whose two states differ by less than this (dB) in gain sets no corner."""
@@ -47,8 +45,8 @@ class BandTest:
         others as they are at the test frequency.
     gain_as_is : float
         |H| with every element as it is.
-    band : str
-        The test's verdict: ``"low"``, ``"high"`` or ``"neutral"``.
+    band : Band
+        The test's verdict.
     acts_in_band : bool
         Both states lower the gain by more than :data:`IN_BAND_DB`.
     fixed : str or None
@@ -60,7 +58,7 @@ class BandTest:
     gain_shorted: float
     gain_opened: float
     gain_as_is: float
-    band: str
+    band: Band
     acts_in_band: bool
     fixed: str | None = None
 
@@ -110,7 +108,7 @@ def parallel_capacitance(reactive) -> dict[str, float]:
             for group in parallel_groups(reactive).values() for el in group}
 
 
-def verdict(gain_shorted: float, gain_opened: float, gain_as_is: float, low_state_is_open: bool) -> str:
+def verdict(gain_shorted: float, gain_opened: float, gain_as_is: float, low_state_is_open: bool) -> Band:
     """The band the test points to.
 
     Parameters
@@ -131,12 +129,12 @@ def verdict(gain_shorted: float, gain_opened: float, gain_as_is: float, low_stat
     """
     low_state, high_state = (gain_opened, gain_shorted) if low_state_is_open else (gain_shorted, gain_opened)
     if gain_as_is == 0:
-        return NEUTRAL
+        return Band.NEUTRAL
     off_low = abs(_db(low_state / gain_as_is))
     off_high = abs(_db(high_state / gain_as_is))
     if off_low < NEUTRAL_DB and off_high < NEUTRAL_DB:
-        return NEUTRAL
-    return LOW if off_high < off_low else HIGH
+        return Band.NEUTRAL
+    return Band.LOW if off_high < off_low else Band.HIGH
 
 
 def band_tests(system, reactive, f_test: float, fixed) -> dict[str, BandTest]:
@@ -176,7 +174,7 @@ def band_tests(system, reactive, f_test: float, fixed) -> dict[str, BandTest]:
     out = {}
     for k, el in enumerate(reactive):
         if el.name in fixed:
-            out[el.name] = BandTest(el.name, abs(H), abs(H), abs(H), NEUTRAL, False, fixed[el.name])
+            out[el.name] = BandTest(el.name, abs(H), abs(H), abs(H), Band.NEUTRAL, False, fixed[el.name])
             continue
         if abs(1 - t[k] * z[k]) < CANCELLED:
             removed = _removed_directly(system, A, U[:, [k]], t[k])

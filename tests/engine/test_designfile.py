@@ -330,3 +330,15 @@ def test_damaged_designs_are_refused_cleanly(path, value, delete):
         document_from_dict(data, "damaged.bsd")
     except DesignFileError as exc:
         assert str(exc).startswith("damaged.bsd:")
+
+
+# Bands are one enum whose members are the words themselves, so a file keeps "low" and
+# "high" while the document holds the enum (common practice, no source).
+def test_band_pins_are_the_enum_and_the_file_keeps_the_words():
+    from bandsketch.engine.core.band import Band
+    doc = _design()
+    assert doc.band_pins["Cin"] is Band.LOW and doc.band_pins["Q1.cmu"] is Band.HIGH
+    text = json.dumps(document_to_dict(doc))
+    assert '"Cin": "low"' in text and '"Q1.cmu": "high"' in text and "Band" not in text
+    with pytest.raises(ValueError, match="must be one of low, high"):
+        doc.set_band_pin("Cin", Band.NEUTRAL)
