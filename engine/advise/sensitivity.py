@@ -27,7 +27,6 @@ from typing import Mapping
 import numpy as np
 
 from ..core.band import Band
-from ..solve.analysis import midband_states
 from ..network.elements import Capacitor, Inductor, Resistor
 from ..solve.mna import build_system
 from .partvalues import PartValue, parametric_system, part_values
@@ -194,7 +193,7 @@ def sensitivities(circuit, analysis) -> Sensitivities:
     names = [p.element for p in pvs]
     reactive = [el for el in circuit.elements.values() if isinstance(el, (Capacitor, Inductor))]
     bands = {name: r.band for name, r in analysis.elements.items()}
-    states = midband_states(reactive, bands)
+    states = analysis.midband_states()
     mid_sys, dc_sys = build_system(circuit, states), build_system(circuit)
     mid_ps = parametric_system(circuit, names, states)
     full_ps = parametric_system(circuit, names)

@@ -28,8 +28,7 @@ from typing import Callable, Mapping
 
 import numpy as np
 
-from ..solve.analysis import analyze, midband_states
-from ..network.elements import Capacitor, Inductor
+from ..solve.analysis import analyze
 from ..core.errors import Cancelled, CircuitError
 from ..design.netlist import design_to_circuit
 from ..design.sourcing import tolerance_fraction
@@ -161,12 +160,6 @@ def design_tolerances(doc, circuit) -> tuple:
     return default_tolerances(circuit, overrides)
 
 
-def _midband_states(circuit, analysis) -> dict:
-    """The nominal analysis's mid-band reactance states, kept for every sample."""
-    reactive = [el for el in circuit.elements.values() if isinstance(el, (Capacitor, Inductor))]
-    return midband_states(reactive, {name: r.band for name, r in analysis.elements.items()})
-
-
 # -- the batched evaluator -----------------------------------------------------------------------
 class _Batch:
     """One batch of samples: per-sample G and C of the full network and of the mid band."""
@@ -258,7 +251,7 @@ class _Evaluator:
         self.tolerances = tuple(tolerances)
         names = [t.value.element for t in self.tolerances]
         self.full = parametric_system(circuit, names)
-        self.mid = parametric_system(circuit, names, _midband_states(circuit, analysis))
+        self.mid = parametric_system(circuit, names, analysis.midband_states())
         self.f_high0 = _positive(analysis.f_high_exact)
         self.f_low0 = _positive(analysis.f_low_exact)
 

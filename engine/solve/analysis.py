@@ -27,12 +27,15 @@ from .dcop import OperatingPoint, solved
 from .mna import OPEN, SHORT, build_system
 from .response import frequency_response, poles, zeros
 from . import step
-from .timeconstants import FULL_MATRIX_LIMIT, factorize, open_circuit, port_columns, port_weights, short_circuit
+from .timeconstants import (FULL_MATRIX_LIMIT, factorize, open_circuit, port_columns, port_diagonal, port_weights,
+                            short_circuit)
 from ..network.validate import validate
 from ..core.values import format_value
 
 MAX_ROUNDS = 6
 """Classification rounds before the analysis gives up waiting for the bands to settle."""
+PLACE_ROUNDS = 4
+"""Rounds of placing the neutral elements by their impedance before the states must have settled."""
 DOMINANCE = 4.0
 """The second pole within this factor of the first: no dominant pole (the two-octave rule)."""
 RHP_ZERO_FACTOR = 10.0
@@ -103,7 +106,17 @@ class ElementResult:
         Both states lower the gain by more than 1 dB: it acts inside the band.
     state : str
         ``"short"`` or ``"open"``: its state in the resistive mid-band network (and in
-        every other element's test picture).
+        every other element's test picture, and in both bands' networks). A neutral
+        element takes the state its impedance gives: shorted when it is below the
+        resistance it sees, open when above.
+    midband_reactance : float
+        Ω, its impedance at the mid-band frequency: 1/(2π·f_m·C) or 2π·f_m·L.
+    midband_resistance : float
+        Ω it sees at the mid-band frequency with every other element at its state
+        (0 when other shorts already join its ends, ``inf`` when it sees an open circuit).
+    state_reason : str
+        Its state and why, in words (``"shorted at mid band: 1/(2π·f_m·C) = 31.8 mΩ beside
+        the 5 kΩ it sees"``).
     """
 
     name: str
@@ -118,6 +131,9 @@ class ElementResult:
     gain_opened: float
     acts_in_band: bool
     state: str
+    midband_reactance: float
+    midband_resistance: float
+    state_reason: str
 
 
 @dataclass(frozen=True)
@@ -264,11 +280,13 @@ class Analysis:
         return PortPicture(name, el.nodes, tuple(shorted), tuple(opened), self.sources)
 
 
-def midband_state(el, band) -> str:
-    """``"short"`` or ``"open"``: an element's state in the resistive mid-band network.
+def band_state(el, band) -> str:
+    """``"short"`` or ``"open"``: the mid-band state a band implies.
 
-    Low band: a capacitor is shorted, an inductor open; high band and neutral: a capacitor
-    is open, an inductor shorted. ``el`` is an element or an :class:`ElementResult`.
+    Low band: a capacitor is shorted, an inductor open; high band: a capacitor is open, an
+    inductor shorted. A neutral element has no state of its own from its band: it takes the
+    one its impedance gives (:func:`physical_state`); without one it is left at its
+    high-band state. ``el`` is an element or an :class:`ElementResult`.
     """
     is_cap = isinstance(el, (Capacitor, CapacitorResult))
     if band == Band.LOW:
@@ -276,7 +294,7 @@ def midband_state(el, band) -> str:
     return OPEN if is_cap else SHORT
 
 
-def midband_states(reactive, bands) -> dict[str, str]:
+def midband_states(reactive, bands, neutral_states=None) -> dict[str, str]:
     """States of the resistive mid-band network, as :func:`bandsketch.engine.solve.mna.build_system` takes them.
 
     Parameters
@@ -284,12 +302,15 @@ def midband_states(reactive, bands) -> dict[str, str]:
     reactive : sequence of Capacitor or Inductor
     bands : Mapping[str, Band]
         Name -> band.
+    neutral_states : Mapping[str, str], optional
+        Name -> state of the neutral elements, by their impedance (:func:`physical_state`).
 
     Notes
     -----
     A capacitor whose short would close a loop of other shorts is left open instead: its
     nodes are already joined, so the network is the same and stays solvable.
     """
+    neutral_states = neutral_states or {}
     parent: dict[str, str] = {}
 
     def root(node):
@@ -300,7 +321,9 @@ def midband_states(reactive, bands) -> dict[str, str]:
 
     states = {}
     for el in sorted(reactive, key=lambda e: isinstance(e, Capacitor)):
-        state = midband_state(el, bands[el.name])
+        band = bands[el.name]
+        state = neutral_states.get(el.name) if band == Band.NEUTRAL else None
+        state = state or band_state(el, band)
         if state == SHORT:
             ra, rb = root(el.a), root(el.b)
             if ra == rb and isinstance(el, Capacitor):
@@ -308,6 +331,48 @@ def midband_states(reactive, bands) -> dict[str, str]:
             parent[ra] = rb
         states[el.name] = state
     return states
+
+
+def reactance(el, f: float) -> float:
+    """|Z| (Ω) of a capacitor (1/(2π·f·C)) or an inductor (2π·f·L) at ``f`` (Hz)."""
+    w = 2 * math.pi * f
+    return 1 / (w * el.value) if isinstance(el, Capacitor) else w * el.value
+
+
+def physical_state(el, f: float, seen: float) -> str:
+    """``"short"`` or ``"open"``: what an element is at ``f`` (Hz) beside the resistance it sees.
+
+    Parameters
+    ----------
+    el : Capacitor or Inductor
+    f : float
+        Hz, the mid-band frequency.
+    seen : float
+        Ω, the resistance between its terminals with every other element at its mid-band state.
+
+    Notes
+    -----
+    Its impedance below the resistance it sees (ω·R·C > 1 for a capacitor, ω·L/R < 1 for
+    an inductor) makes it a short, above it an open.
+    """
+    return SHORT if reactance(el, f) < seen else OPEN
+
+
+def seen_resistances(system, lu, reactive) -> dict[str, float]:
+    """Ω each element sees in the resistive network ``system`` (factorised as ``lu``).
+
+    A shorted element is a 0-V branch: its port entry is minus the conductance it sees. An
+    open one is left out: its port entry, across its nodes, is the resistance. Either way
+    the others stay at their states.
+    """
+    z = port_diagonal(lu, port_columns(system, reactive)).real
+    out = {}
+    for el, v in zip(reactive, z):
+        if el.name in system.branch_index:
+            out[el.name] = float(1 / -v) if v != 0 else math.inf
+        else:
+            out[el.name] = max(float(v), 0.0)
+    return out
 
 
 def _db(gain: float) -> str:
@@ -337,6 +402,27 @@ def _reason(el, test, unit_db) -> str:
         text += (f"; both states lower the gain more than {IN_BAND_DB:g} dB below {_db(test.gain_as_is)} "
                  f"{unit_db}, so it acts inside the band")
     return text
+
+
+def state_reason(el, state: str, x: float, seen: float) -> str:
+    """An element's mid-band state and why, in a designer's words.
+
+    Parameters
+    ----------
+    el : Capacitor or Inductor
+    state : str
+        ``"short"`` or ``"open"``.
+    x : float
+        Ω, its impedance at the mid-band frequency.
+    seen : float
+        Ω, the resistance it sees there.
+    """
+    word = "shorted" if state == SHORT else "open"
+    formula = "1/(2π·f_m·C)" if isinstance(el, Capacitor) else "2π·f_m·L"
+    if seen == 0:
+        return f"{word} at mid band: other shorts already join its ends"
+    beside = "the open circuit it sees" if math.isinf(seen) else f"the {format_value(seen, 'Ω')} it sees"
+    return f"{word} at mid band: {formula} = {format_value(x, 'Ω')} beside {beside}"
 
 
 def _check_pins(bands, reactive_names) -> dict[str, Band]:
@@ -442,7 +528,10 @@ class Classification:
     bands : Mapping[str, Band]
         Every element's band (a pin wins over the test).
     states : Mapping[str, str]
-        Every element's mid-band state, ``"short"`` or ``"open"``.
+        Every element's mid-band state, ``"short"`` or ``"open"``: the one its band implies,
+        or for a neutral element the one its impedance gives (:func:`physical_state`).
+    seen : Mapping[str, float]
+        Ω each element sees at mid band, with every other element at its state.
     midband_gain : float
         Resistive mid-band gain A_m, signed (gain unit).
     mid : bandsketch.engine.solve.mna.MnaSystem
@@ -457,6 +546,7 @@ class Classification:
     tests: Mapping[str, BandTest]
     bands: Mapping[str, Band]
     states: Mapping[str, str]
+    seen: Mapping[str, float]
     midband_gain: float
     mid: object = field(repr=False)
     mid_lu: object = field(repr=False)
@@ -527,13 +617,40 @@ def prepare(c, bands=None, per_decade: int | None = None) -> Stage:
                  point)
 
 
-def _resistive_midband(stage, bands):
-    """States, network, factorisation and signed gain of the resistive mid-band network."""
+def _mid_network(stage, bands, neutral_states):
+    """The resistive mid-band network: its states, equations and factorised conductance matrix."""
+    states = midband_states(stage.reactive, bands, neutral_states)
+    mid = build_system(stage.circuit, states)
+    shorted = [name for name, state in states.items() if state == SHORT]
+    return states, mid, factorize(mid.G, "with the elements at their mid-band states", shorted)
+
+
+def _place_neutral(stage, bands, f_m):
+    """Put every element the gain test left neutral in the state its impedance gives at ``f_m``.
+
+    Each one is judged with the others at their states; a judgement can change what the
+    others see, so this repeats until no state changes. A loop of capacitors settles as
+    shorts with one member left open (its ends are already joined), a cut-set as shorts.
+    Returns the neutral states, the network's states, equations, LU and what each element sees.
+    """
+    undecided = [el for el in stage.reactive if bands[el.name] == Band.NEUTRAL and el.name not in stage.fixed]
+    placed: dict[str, str] = {}
+    for _ in range(PLACE_ROUNDS):
+        states, mid, lu = _mid_network(stage, bands, placed)
+        seen = seen_resistances(mid, lu, stage.reactive)
+        judged = {el.name: physical_state(el, f_m, seen[el.name]) for el in undecided}
+        if judged == placed:
+            break
+        placed = judged
+    else:
+        states, mid, lu = _mid_network(stage, bands, placed)
+        seen = seen_resistances(mid, lu, stage.reactive)
+    return placed, states, mid, lu, seen
+
+
+def _midband_gain(stage, mid, lu) -> float:
+    """Signed gain of the resistive mid-band network; an error when the output does not respond."""
     c = stage.circuit
-    states = midband_states(stage.reactive, bands)
-    mid = build_system(c, states)
-    low_names = [name for name, band in bands.items() if band == Band.LOW]
-    lu = factorize(mid.G, "with the low-band elements at their mid-band states", low_names)
     x = lu.solve(mid.b)
     gain = float((mid.c @ x).real)
     # Rounding leaves a trace at an output the signal cannot reach; judge it against the
@@ -546,11 +663,14 @@ def _resistive_midband(stage, bands):
         raise CircuitError(f"The output {out} does not respond to the input "
                            f"{c.input_name} in the mid band: check the output probe and the signal path{hint}.",
                            nodes=c.output_nodes, parts=tuple(stage.pins))
-    return states, mid, lu, gain
+    return gain
 
 
 def classify(stage: Stage) -> Classification:
-    """The band of every element: test at f_m, find the mid-band gain, move f_m, until nothing changes.
+    """The band and mid-band state of every element, at a mid-band frequency that has settled.
+
+    Test at f_m, place the neutral elements by their impedance, find the mid-band gain and
+    the corners it implies, move f_m to their geometric middle, until nothing changes.
 
     Parameters
     ----------
@@ -564,20 +684,20 @@ def classify(stage: Stage) -> Classification:
     freqs, H = stage.sweep_frequencies, stage.sweep_response
     f_m = midband_guess(freqs, H)
     previous = None
+    settled = False
     for _ in range(MAX_ROUNDS):
         tests = band_tests(stage.system, stage.reactive, f_m, stage.fixed)
         chosen = {name: stage.pins.get(name, t.band) for name, t in tests.items()}
-        states, mid, lu, gain = _resistive_midband(stage, chosen)
-        if chosen == previous:
+        placed, states, mid, lu, seen = _place_neutral(stage, chosen, f_m)
+        gain = _midband_gain(stage, mid, lu)
+        if (chosen, placed) == previous:
             settled = True
             break
-        previous = chosen
+        previous = chosen, placed
         low_bracket, high_bracket = brackets(freqs, H, f_m, abs(gain) / math.sqrt(2))
         f_m = _next_midband(low_bracket, high_bracket, f_m, freqs)
-    else:
-        settled = False
     return Classification(f_m, MappingProxyType(tests), MappingProxyType(chosen), MappingProxyType(states),
-                          gain, mid, lu, settled)
+                          MappingProxyType(seen), gain, mid, lu, settled)
 
 
 def estimate(stage: Stage, bands: Classification, full_matrix_limit: int = FULL_MATRIX_LIMIT) -> Estimates:
@@ -652,12 +772,17 @@ def _results(stage, bands, est):
             # Parallel partners share their port's 1/τ in proportion to capacitance.
             part = el.value / total_c[el.name] if isinstance(el, Capacitor) else 1.0
             share = part * (1 / tau) / est.omega_low if est.omega_low else 0.0
+        state, seen, x = bands.states[el.name], bands.seen[el.name], reactance(el, bands.midband_frequency)
+        why_state = state_reason(el, state, x, seen)
         reason = _reason(el, test, unit_db)
+        if band == Band.NEUTRAL and not test.fixed:
+            reason += f"; so its impedance decides: {why_state}"
         if el.name in stage.pins:
             reason = f"pinned to the {band} band (the test says: {reason})"
         common = dict(name=el.name, nodes=el.nodes, band=band, pinned=el.name in stage.pins, resistance=resistance,
                       time_constant=tau, share=share, reason=reason, gain_shorted=test.gain_shorted,
-                      gain_opened=test.gain_opened, acts_in_band=test.acts_in_band, state=bands.states[el.name])
+                      gain_opened=test.gain_opened, acts_in_band=test.acts_in_band, state=state,
+                      midband_reactance=x, midband_resistance=seen, state_reason=why_state)
         if isinstance(el, Capacitor):
             caps[el.name] = CapacitorResult(**common, capacitance=el.value)
         else:

@@ -35,18 +35,19 @@ def port_columns(system, elements) -> sp.csc_matrix:
     Parameters
     ----------
     system : bandsketch.engine.solve.mna.MnaSystem
-        Equations in which every capacitor named is left out (open) and every inductor
-        named is a branch (it is not opened).
+        Equations in which each element named is either a branch (an inductor, or a
+        shorted capacitor) or left out (a capacitor, or an opened inductor).
     elements : sequence of Capacitor or Inductor
 
     Returns
     -------
     scipy.sparse.csc_matrix
-        Capacitor: +1 at node a, −1 at node b. Inductor: 1 at its branch unknown.
+        An element with a branch: 1 at its branch unknown (its entry is then minus the
+        conductance it sees); one left out: +1 at node a, −1 at node b (a resistance).
     """
     rows, cols, vals = [], [], []
     for j, el in enumerate(elements):
-        if isinstance(el, Inductor):
+        if el.name in system.branch_index:
             rows.append(system.branch_index[el.name])
             cols.append(j)
             vals.append(1.0)

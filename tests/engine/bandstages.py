@@ -123,3 +123,23 @@ def follower(rs=600.0, cl=None):
         c.capacitor("CL", "e", "0", cl)
     c.output("e")
     return c
+
+
+def common_gate(rg=4.7e3, cg=1e-6):
+    """Invented "fibre receiver" common-gate stage whose gate is bypassed to ground.
+
+    With the gate at signal ground and no r_o, the source and drain time constants do not
+    interact: τ_s = C_gs·(R_sig ‖ R_s ‖ 1/g_m) = 2 pF · 32.26 Ω = 64.5 ps and
+    τ_d = (C_gd + C_L)·R_d = 1.5 pF · 2 kΩ = 3 ns (worked by hand).
+    """
+    c = Circuit("fibre receiver, common gate (invented)")
+    c.vsource("Vsig", "sig", "0")
+    c.resistor("Rsig", "sig", "s", 50)
+    c.resistor("Rs", "s", "0", 1000)
+    c.mosfet("M1", drain="d", gate="g", source="s", gm=10e-3, cgs=2e-12, cgd=0.5e-12)
+    c.resistor("Rg", "g", "0", rg)
+    c.capacitor("Cg", "g", "0", cg)
+    c.resistor("Rd", "d", "0", 2000)
+    c.capacitor("CL", "d", "0", 1e-12)
+    c.output("d")
+    return c

@@ -1,0 +1,124 @@
+"""Every element in its physical mid-band state, even where the gain test is inconclusive.
+
+All stages are invented scenarios (see bandstages.py); the figures beside them are worked
+by hand from the element values.
+"""
+
+import math
+
+import pytest
+
+from bandstages import common_gate
+from bandsketch.engine import Circuit, analyze
+
+
+def _two_pole_corner(t1, t2):
+    """Hz where 1/((1 + jωτ1)(1 + jωτ2)) falls 3 dB: (1 + ω²τ1²)(1 + ω²τ2²) = 2, solved for ω²."""
+    a, b = t1 * t1 * t2 * t2, t1 * t1 + t2 * t2
+    u = (-b + math.sqrt(b * b + 4 * a)) / (2 * a)
+    return math.sqrt(u) / (2 * math.pi)
+
+
+# A bypassed common-gate gate is a short at mid band whatever the gain test says, so C_gs
+# sees R_sig ‖ R_s ‖ 1/g_m and C_gd + C_L see R_d: b1 = 64.5 ps + 3 ns (worked by hand, see
+# common_gate). Left open, the gate capacitances would see kilo-ohms and f_H would be 12×
+# too low. The exact corner of the two non-interacting poles is the closed form above.
+@pytest.mark.parametrize("rg", [1e3, 4.7e3, 10e3])
+@pytest.mark.parametrize("cg", [10e-9, 1e-6, 10e-6])
+def test_common_gate_bypass_is_shorted_and_f_high_holds(rg, cg):
+    a = analyze(common_gate(rg, cg))
+    cap = a.capacitors["Cg"]
+    assert cap.state == "short"
+    t_s = 2e-12 / (1 / 50 + 1 / 1000 + 10e-3)
+    t_d = 1.5e-12 * 2000
+    assert a.f_high_estimate == pytest.approx(1 / (2 * math.pi * (t_s + t_d)), rel=1e-9)
+    assert a.f_high_exact == pytest.approx(_two_pole_corner(t_s, t_d), rel=5e-3)
+    assert abs(a.f_high_ratio - 1) < 0.03
+    assert cap.midband_reactance < cap.midband_resistance
+
+
+# The 1 kΩ gate: opening the bypass changes the gain by far less than 0.01 dB (the gate
+# takes no current), so the test is inconclusive and the impedance decides, in words.
+def test_the_reason_says_why_the_impedance_decides():
+    cap = analyze(common_gate(1e3, 1e-6)).capacitors["Cg"]
+    assert cap.band == "neutral" and cap.state == "short"
+    assert "so its impedance decides: shorted at mid band: 1/(2π·f_m·C) = " in cap.reason
+    assert cap.state_reason.endswith("beside the 1 kΩ it sees")
+
+
+# A stray capacitance on a branch that only loads the ideal source stays open: at mid band its
+# impedance is far above the resistance it sees (common practice, no source).
+def test_a_stray_across_a_quiet_branch_is_open():
+    c = common_gate()
+    c.resistor("Rmon", "sig", "mon", 10e3)
+    c.resistor("Rmon2", "mon", "0", 10e3)
+    c.capacitor("Cmon", "mon", "0", 1e-12)
+    r = analyze(c).capacitors["Cmon"]
+    assert r.band == "neutral" and r.state == "open" and r.midband_reactance > r.midband_resistance
+
+
+# Three coupling capacitors in a triangle: any one can be opened while the other two carry
+# the signal, so each tests neutral. By impedance they are shorts (two shorted, the third's
+# ends then already joined), and the mid-band gain is the divider (R_b ‖ R_L)/(R_sig + R_b ‖ R_L)
+# = 1 kΩ / 1.3 kΩ = 0.769 (worked by hand).
+def test_capacitor_triangle_carries_the_signal():
+    c = Circuit("sensor coupling triangle (invented)")
+    c.vsource("Vsig", "sig", "0")
+    c.resistor("Rsig", "sig", "a", 300)
+    c.capacitor("Ca", "a", "b", 10e-6)
+    c.capacitor("Cb", "b", "c", 10e-6)
+    c.capacitor("Cc", "c", "a", 10e-6)
+    c.resistor("Rb", "b", "0", 2000)
+    c.resistor("RL", "c", "0", 2000)
+    c.output("c")
+    a = analyze(c)
+    assert a.midband_gain == pytest.approx(1000 / 1300, rel=1e-9)
+    states = sorted(r.state for r in a.capacitors.values())
+    assert states == ["open", "short", "short"]
+    assert any("other shorts already join its ends" in r.state_reason for r in a.capacitors.values())
+    assert abs(a.response([a.midband_frequency])[0]) == pytest.approx(1000 / 1300, rel=1e-3)
+
+
+def _cascode(rb, cb):
+    """Invented "hydrophone cascode": common emitter into common base, upper base bypassed."""
+    c = Circuit("hydrophone cascode (invented)")
+    c.vsource("Vsig", "sig", "0")
+    c.resistor("Rsig", "sig", "b1", 600)
+    c.bjt("Q1", collector="m", base="b1", emitter="0", gm=0.04, rpi=2500, ro=20e3, rb=100, cpi=20e-12, cmu=2e-12)
+    c.bjt("Q2", collector="out", base="b2", emitter="m", gm=0.04, rpi=2500, ro=50e3, rb=100, cpi=20e-12,
+          cmu=2e-12)
+    c.resistor("Rb", "b2", "0", rb)
+    c.capacitor("Cb", "b2", "0", cb)
+    c.resistor("Rc", "out", "0", 5000)
+    c.output("out")
+    return c
+
+
+# Whatever the gain test makes of the bypass, it is a short at mid band, so the upper-corner
+# estimate equals the one with the bypass pinned low (the bypass shorted by the user; common
+# practice, no source), with the same high-band warnings.
+@pytest.mark.parametrize("rb", [5e3, 50e3])
+@pytest.mark.parametrize("cb", [100e-9, 10e-6])
+def test_bipolar_cascode_base_bypass_is_shorted(rb, cb):
+    a = analyze(_cascode(rb, cb))
+    pinned = analyze(_cascode(rb, cb), bands={"Cb": "low"})
+    assert a.capacitors["Cb"].state == "short"
+    assert a.f_high_estimate == pytest.approx(pinned.f_high_estimate, rel=1e-9)
+    assert [w for w in a.warnings if "complex" in w] == [w for w in pinned.warnings if "complex" in w]
+
+
+# The MOS cascode the same way (common practice, no source).
+@pytest.mark.parametrize("rb", [10e3, 1e6])
+def test_mos_cascode_gate_bypass_is_shorted(rb):
+    c = Circuit("photodiode cascode (invented)")
+    c.vsource("Vsig", "sig", "0")
+    c.resistor("Rsig", "sig", "g1", 1000)
+    c.mosfet("M1", drain="m", gate="g1", source="0", gm=5e-3, ro=40e3, cgs=1e-12, cgd=0.2e-12, cdb=0.3e-12)
+    c.mosfet("M2", drain="out", gate="g2", source="m", gm=5e-3, ro=40e3, cgs=1e-12, cgd=0.2e-12, cdb=0.3e-12)
+    c.resistor("Rg2", "g2", "0", rb)
+    c.capacitor("Cg2", "g2", "0", 1e-6)
+    c.resistor("Rd", "out", "0", 10e3)
+    c.output("out")
+    a = analyze(c)
+    assert a.capacitors["Cg2"].state == "short"
+    assert a.f_high_estimate == pytest.approx(analyze(c, bands={"Cg2": "low"}).f_high_estimate, rel=1e-9)
