@@ -5,7 +5,7 @@ from __future__ import annotations
 import math
 
 import numpy as np
-from scipy.optimize import brentq
+from scipy.optimize import brentq, minimize_scalar
 
 from ..network.elements import Capacitor, Inductor, Resistor
 from .response import DENSE_LIMIT, frequency_response
@@ -14,6 +14,10 @@ SETTLED = 1e-3
 """A sweep end is settled when |H| changes by less than this fraction of its peak over a decade."""
 MAX_EXTRA_DECADES = 8
 """How far a sweep may grow past its first span at each end, in decades."""
+FIRST_STEP = 1e-7
+"""Decades: the first step outward from the mid band when looking for a corner. The steps
+double until they reach the sweep's spacing, so a band as narrow as a tank of Q = 10⁶ is
+not stepped over."""
 
 
 def points_per_decade(system) -> int:
@@ -73,8 +77,36 @@ def wide_sweep(system, span, per_decade: int):
     return f, H
 
 
-def midband_guess(f: np.ndarray, H: np.ndarray) -> float:
-    """Geometric centre (Hz) of the stretch around the peak where |H| stays within 3 dB of it."""
+def _magnitude(system, f: float) -> float:
+    return float(abs(frequency_response(system, [f])[0]))
+
+
+def refine_peak(system, f: np.ndarray, H: np.ndarray, near: float) -> float:
+    """Hz of the exact maximum of |H| around the sweep sample nearest ``near``'s local peak.
+
+    Between the sample's neighbours |H| is searched on log f (bounded Brent), so a narrow
+    peak that falls between two samples is found where it is, not where a sample happens to be.
+    """
+    mag = np.abs(H)
+    i = int(np.argmin(np.abs(np.log(f / near))))
+    while 0 < i and mag[i - 1] > mag[i]:
+        i -= 1
+    while i < len(f) - 1 and mag[i + 1] > mag[i]:
+        i += 1
+    lo, hi = math.log10(f[max(i - 1, 0)]), math.log10(f[min(i + 1, len(f) - 1)])
+    if hi <= lo:
+        return float(f[i])
+    best = minimize_scalar(lambda x: -_magnitude(system, 10.0 ** x), bounds=(lo, hi), method="bounded",
+                           options={"xatol": 1e-12})
+    return float(10.0 ** best.x) if -best.fun > mag[i] else float(f[i])
+
+
+def midband_guess(system, f: np.ndarray, H: np.ndarray) -> float:
+    """Hz: the geometric centre of the stretch around the peak where |H| stays within 3 dB of it.
+
+    When no other sweep sample lies within 3 dB of the peak (a band narrower than the sweep's
+    spacing), the exact peak (:func:`refine_peak`) is the mid band.
+    """
     mag = np.abs(H)
     top = int(np.argmax(mag))
     level = mag[top] / math.sqrt(2)
@@ -84,6 +116,8 @@ def midband_guess(f: np.ndarray, H: np.ndarray) -> float:
     hi = top
     while hi < len(mag) - 1 and mag[hi + 1] >= level:
         hi += 1
+    if lo == hi:
+        return refine_peak(system, f, H, float(f[top]))
     return math.sqrt(f[lo] * f[hi])
 
 
@@ -125,6 +159,46 @@ def corner(system, bracket, level: float) -> float | None:
         return abs(frequency_response(system, [10.0 ** logf])[0]) - level
 
     return 10.0 ** brentq(g, math.log10(bracket[0]), math.log10(bracket[1]), xtol=1e-13, rtol=1e-13)
+
+
+def _outward(system, f: np.ndarray, mag: np.ndarray, start: float, level: float, step: int):
+    """The bracket of the first fall below ``level`` going from ``start`` in direction ``step`` (±1)."""
+    spacing = math.log10(f[1] / f[0]) if len(f) > 1 else 1.0
+    ramp = FIRST_STEP * 2.0 ** np.arange(max(1, int(math.ceil(math.log2(spacing / FIRST_STEP))) + 1))
+    near = start * 10.0 ** (step * ramp[ramp <= spacing])
+    beyond = f > near[-1] if step > 0 else f < near[-1]
+    points = np.concatenate((near, f[beyond][::step]))
+    values = np.concatenate((np.abs(frequency_response(system, near)), mag[beyond][::step]))
+    below = np.flatnonzero(values < level)
+    if below.size == 0:
+        return None
+    k = int(below[0])
+    inner = start if k == 0 else float(points[k - 1])
+    return tuple(sorted((inner, float(points[k]))))
+
+
+def corners_around(system, f: np.ndarray, H: np.ndarray, f_mid: float, level: float):
+    """The exact corners (Hz) nearest ``f_mid`` below and above it, found outward from it.
+
+    From ``f_mid`` (or, where |H| is already below ``level`` there, from the exact peak near
+    it; failing that, from the nearest sweep point above the level) the search steps outward, first by :data:`FIRST_STEP` decades and doubling, then on
+    the sweep's own samples, to the first point below ``level``; brentq refines the corner
+    between that point and the one before. None on a side where the gain never falls that far.
+
+    Returns
+    -------
+    (float or None, float or None)
+        The lower and the upper corner, Hz.
+    """
+    start = f_mid
+    if _magnitude(system, start) < level:
+        start = refine_peak(system, f, H, f_mid)
+    if _magnitude(system, start) < level:
+        # The exact gain stays below the resistive mid-band gain's −3 dB level around f_mid
+        # (the bands overlap): the nearest sweep points above the level are the places to start.
+        return tuple(corner(system, b, level) for b in brackets(f, H, f_mid, level))
+    mag = np.abs(H)
+    return tuple(corner(system, _outward(system, f, mag, start, level, step), level) for step in (-1, +1))
 
 
 def second_order_corner(b1: float, b2: float) -> float | None:

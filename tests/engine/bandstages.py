@@ -7,6 +7,8 @@ Analysis", IEEE Trans. Circuits and Systems CAS-22(6), 1975), not from bandsketc
 
 from __future__ import annotations
 
+import math
+
 import sympy
 
 from bandsketch.engine import Circuit
@@ -142,4 +144,43 @@ def common_gate(rg=4.7e3, cg=1e-6):
     c.resistor("Rd", "d", "0", 2000)
     c.capacitor("CL", "d", "0", 1e-12)
     c.output("d")
+    return c
+
+
+def tuned_tank(q, f0=10.7e6, inductance=1e-6):
+    """Invented "IF strip" stage: a transconductance into a parallel RLC tank of quality ``q``.
+
+    g_m = 1/R, so the mid-band gain at resonance is 1; the corners of a parallel tank are
+    f0·(√(1 + 1/(4Q²)) ∓ 1/(2Q)) (the resonance curve; from memory).
+    """
+    cap = 1 / ((2 * math.pi * f0) ** 2 * inductance)
+    r = q * math.sqrt(inductance / cap)
+    c = Circuit(f"IF strip tank, Q = {q:g} (invented)")
+    c.vsource("Vsig", "sig", "0")
+    c.vccs("Gm", "0", "t", "sig", "0", 1 / r)
+    c.resistor("Rt", "t", "0", r)
+    c.inductor("Lt", "t", "0", inductance)
+    c.capacitor("Ct", "t", "0", cap)
+    c.output("t")
+    return c
+
+
+def rc_coupled(stages=2, coupling=1e-6):
+    """Invented "seismic line amplifier": ``stages`` transconductance stages, each RC-coupled.
+
+    Every coupling capacitor sees about the same resistance, so no low-band pole dominates.
+    """
+    c = Circuit(f"seismic line amplifier, {stages} stages (invented)")
+    c.vsource("Vsig", "sig", "0")
+    c.resistor("Rsig", "sig", "x0", 1000)
+    for k in range(1, stages + 1):
+        c.capacitor(f"Cc{k}", f"x{k - 1}", f"b{k}", coupling)
+        c.resistor(f"Rb{k}", f"b{k}", "0", 10e3)
+        c.capacitor(f"Cp{k}", f"b{k}", "0", 20e-12)
+        c.vccs(f"G{k}", f"x{k}", "0", f"b{k}", "0", 20e-3)
+        c.resistor(f"Rc{k}", f"x{k}", "0", 5000)
+    c.capacitor(f"Cc{stages + 1}", f"x{stages}", "out", coupling)
+    c.resistor("RL", "out", "0", 10e3)
+    c.capacitor("CL", "out", "0", 20e-12)
+    c.output("out")
     return c
