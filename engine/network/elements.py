@@ -145,8 +145,5 @@ class CCVS:
         return (self.p, self.n)
 
 
-CONDUCTS_AT_DC = (Resistor, Inductor, VSource, VCVS, CCVS)
-"""Elements that give their nodes a path for direct current (a current source does not)."""
-
 VOLTAGE_DEFINING = (VSource, VCVS, CCVS, Inductor)
 """Elements that fix a voltage at DC; a loop of them leaves the DC equations singular."""

@@ -6,7 +6,7 @@ from collections import Counter, defaultdict
 
 import networkx as nx
 
-from .elements import CCCS, CCVS, CONDUCTS_AT_DC, VCCS, VCVS, VOLTAGE_DEFINING, ISource, Rail, VSource
+from .elements import CCCS, CCVS, VCCS, VCVS, VOLTAGE_DEFINING, ISource, Rail, VSource
 from ..core.errors import CircuitError
 
 
@@ -22,13 +22,6 @@ def _electrical_pairs(el):
     if isinstance(el, (VCCS, VCVS)):
         return [(el.p, el.n)]
     return [tuple(el.nodes[:2])]
-
-
-def _conducts_at_dc(el) -> bool:
-    if isinstance(el, CONDUCTS_AT_DC):
-        return True
-    # A transconductance sensing its own terminals is a conductance (a diode-connected device).
-    return isinstance(el, VCCS) and {el.p, el.n} == {el.cp, el.cn} and el.gm != 0
 
 
 def problems(circuit) -> list[CircuitError]:
@@ -111,22 +104,8 @@ def problems(circuit) -> list[CircuitError]:
                 f"Part of the circuit ({_shown(parts)}) is not connected to the rest: wire it in or "
                 "delete it.", parts=parts, nodes=piece))
 
-    dc = nx.Graph()
-    dc.add_nodes_from(nodes)
-    for el in els:
-        if _conducts_at_dc(el):
-            dc.add_edge(*el.nodes[:2])
-    # Pieces cut off from ground altogether were reported above; here only the DC-isolated ones.
-    reachable = nx.node_connected_component(graph, "0") if "0" in nodes else set()
-    for piece in nx.connected_components(dc):
-        if "0" in piece or not piece <= reachable:
-            continue
-        parts = set().union(*(touching[x] for x in piece))
-        found.append(CircuitError(
-            f"Node {_shown(piece)} has no DC path to ground (it touches only {_shown(parts)}): add a "
-            "resistor to ground or a bias path, or merge capacitors that sit in series.",
-            parts=parts, nodes=piece))
-
+    # Floating nodes are judged on the d.c. equations themselves (solve.floating), where
+    # controlled sources count; a graph picture would refuse a solvable follower.
     forest = nx.Graph()
     for el in els:
         if not isinstance(el, VOLTAGE_DEFINING):
