@@ -19,6 +19,7 @@ import numpy as np
 
 from ..core.band import Band
 from ..core.values import format_value
+from ..solve.mna import SHORT
 
 HALF_POWER_DB = 20 * math.log10(math.sqrt(2))
 """The −3 dB corner lies this many dB (3.0103) below the mid-band gain."""
@@ -42,6 +43,9 @@ PEAK_SHOWN_DB = 0.1
 PEAK_ROOM = 0.25
 """Above the mid band (or a peak) the magnitude axis leaves this fraction of its span for labels."""
 
+PAIR_TITLE = "Low band, pole–zero pairs: 1/2πτ, no corner of their own"
+PAIR_NOTE = ("a pole–zero pair: opening it costs less than 3 dB, so it sets no corner of its own, "
+             "and its share of ω_L overstates it")
 BAND_TITLES = {Band.HIGH: "High band: τ, share of b1", Band.LOW: "Low band: 1/2πτ, share of ω_L",
                Band.NEUTRAL: "No effect on the gain"}
 
@@ -480,11 +484,14 @@ def element_tooltip(result) -> str:
     lines = [f"{result.name}: {_BAND_WORDS[result.band]}" + (" (pinned)" if result.pinned else "")]
     if result.band != Band.NEUTRAL:
         lines.append(element_label(result))
+    if result.pole_zero_pair:
+        lines.append(PAIR_NOTE)
+    lines.append(f"State: {result.state_reason}")
     lines.append(f"Why: {result.reason}")
     return "\n".join(lines)
 
 
-def _group(band: Band, results: list, analysis) -> BandGroup:
+def _group(band: Band, results: list, analysis, pairs: bool = False) -> BandGroup:
     results = sorted(results, key=lambda r: (-r.share, r.name))
     top = {Band.HIGH: analysis.dominant_high, Band.LOW: analysis.dominant_low}.get(band)
     rows = []
@@ -510,15 +517,24 @@ def _group(band: Band, results: list, analysis) -> BandGroup:
             total += f" → f_L ≈ {format_value(analysis.f_low_estimate, 'Hz')}"
     else:
         total = "shorting or opening these leaves the gain as it is"
+    if pairs:
+        return BandGroup(band, PAIR_TITLE, PAIR_NOTE[0].upper() + PAIR_NOTE[1:], tuple(rows))
     return BandGroup(band, BAND_TITLES[band], total, tuple(rows))
 
 
 def bar_data(analysis) -> BarData:
-    """The time-constant bars of ``analysis``: one group per band that has elements."""
+    """The time-constant bars of ``analysis``: one group per band that has elements, and the
+    low band's pole–zero pairs in a group of their own after it."""
     by_band: dict = {Band.HIGH: [], Band.LOW: [], Band.NEUTRAL: []}
+    pairs = [r for r in analysis.elements.values() if r.pole_zero_pair]
     for r in analysis.elements.values():
-        by_band[r.band].append(r)
-    return BarData(tuple(_group(b, rs, analysis) for b, rs in by_band.items() if rs))
+        if not r.pole_zero_pair:
+            by_band[r.band].append(r)
+    groups = [_group(b, rs, analysis) for b, rs in by_band.items() if rs]
+    if pairs:
+        # Drawn apart, after the corner-setting low band: a pair moves no corner of its own.
+        groups.insert(sum(1 for b in (Band.HIGH, Band.LOW) if by_band[b]), _group(Band.LOW, pairs, analysis, pairs=True))
+    return BarData(tuple(groups))
 
 
 def _error_text(est, exact) -> str:
@@ -561,6 +577,9 @@ def verdict_data(analysis) -> VerdictData:
             corner = "f_H" if g.band == Band.HIGH else "f_L"
             limits.append(f"{top.name} sets {corner} ({top.share_text} of {_band_sum_name(g.band)})")
     dominant = "; ".join(limits) if limits else "no element sets a corner"
+    placed = [r.name for r in analysis.elements.values() if r.band == Band.NEUTRAL and r.state == SHORT]
+    if placed:
+        dominant += f"; shorted at mid band by their impedance: {', '.join(placed)}"
     return VerdictData(_gain_text(float(analysis.midband_gain), analysis.gain_unit),
                        _corner_text("f_H", analysis.f_high_estimate, analysis.f_high_exact),
                        _corner_text("f_L", analysis.f_low_estimate, analysis.f_low_exact),

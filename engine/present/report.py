@@ -204,7 +204,7 @@ def _bands_table(analysis) -> str:
     for r in analysis.elements.values():
         share = "—" if r.band == Band.NEUTRAL else f"{100 * r.share:.1f} %"
         rows.append((r.name, r.band + (" (pinned)" if r.pinned else ""), _fmt(r.resistance, "Ω"),
-                     _fmt(r.time_constant, "s"), share, r.reason))
+                     _fmt(r.time_constant, "s"), share, f"{r.reason}; {r.state_reason}"))
     return _table(("element", "band", "R seen", "τ", "share", "why"), rows, numeric=(2, 3, 4))
 
 

@@ -13,7 +13,8 @@ from ..core.values import format_value
 from .biasdata import BIAS_HEADINGS, bias_rows
 
 _ELEMENT_UNITS = {"capacitance": "F", "inductance": "H", "resistance": "Ω", "time_constant": "s",
-                  "share": "1", "gain_shorted": None, "gain_opened": None}
+                  "share": "1", "gain_shorted": None, "gain_opened": None, "midband_reactance": "Ω",
+                  "midband_resistance": "Ω"}
 
 
 def _number(x):
@@ -30,6 +31,7 @@ def _complex_list(values):
 
 def _element(r) -> dict:
     out = {"name": r.name, "nodes": list(r.nodes), "band": r.band, "pinned": r.pinned, "state": r.state,
+           "state_reason": r.state_reason, "pole_zero_pair": r.pole_zero_pair,
            "acts_in_band": r.acts_in_band, "reason": r.reason}
     for key in _ELEMENT_UNITS:
         if hasattr(r, key):
@@ -171,14 +173,21 @@ def format_table(a, title: str | None = None) -> str:
     level = f"{20 * math.log10(abs(a.midband_gain)):.1f}".replace("-", "−")
     lines.append(f"Mid-band gain  {gain} {unit}  ({level} {db}), band test at {format_value(a.midband_frequency, 'Hz')}")
     lines.append("")
-    rows = [("Element", "Band", "R", "τ", "Share")]
+    rows = [("Element", "Band", "Mid band", "R", "τ", "Share")]
     for r in a.elements.values():
-        band = r.band + (" (pinned)" if r.pinned else "") + (" *" if r.acts_in_band else "")
+        band = (r.band + (" (pinned)" if r.pinned else "") + (" *" if r.acts_in_band else "")
+                + (" (pair)" if r.pole_zero_pair else ""))
         share = "" if r.band == Band.NEUTRAL else f"{100 * r.share:.1f} %"
-        rows.append((r.name, band, _fmt(r.resistance, "Ω"), _fmt(r.time_constant, "s"), share))
+        state = "shorted" if r.state == SHORT else "open"
+        rows.append((r.name, band, state, _fmt(r.resistance, "Ω"), _fmt(r.time_constant, "s"), share))
     lines += _aligned(rows)
     if any(r.acts_in_band for r in a.elements.values()):
         lines.append("* acts inside the band")
+    if any(r.pole_zero_pair for r in a.elements.values()):
+        lines.append("(pair) a pole–zero pair: no corner of its own")
+    lines.append("")
+    lines.append("Mid-band states")
+    lines += [f"  {r.name}: {r.state_reason}" for r in a.elements.values()]
     lines.append("")
     corners = [("Upper corner", a.f_high_estimate, a.f_high_exact), ("Lower corner", a.f_low_estimate, a.f_low_exact)]
     for label, est, exact in corners:

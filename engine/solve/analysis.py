@@ -20,10 +20,12 @@ import numpy as np
 from ..core.band import Band
 from .bands import (IN_BAND_DB, NEUTRAL_DB, BandTest, band_tests, fixed_elements, parallel_capacitance,
                     parallel_groups)
-from .corners import brackets, corner, first_span, midband_guess, points_per_decade, second_order_corner, wide_sweep
+from .corners import (brackets, corners_around, first_span, midband_guess, points_per_decade, second_order_corner,
+                      wide_sweep)
 from ..network.elements import Capacitor, Inductor, ISource, VSource
 from ..core.errors import CircuitError
 from .dcop import OperatingPoint, solved
+from .floating import check_dc_solvable
 from .mna import OPEN, SHORT, build_system
 from .response import frequency_response, poles, zeros
 from . import step
@@ -38,6 +40,10 @@ PLACE_ROUNDS = 4
 """Rounds of placing the neutral elements by their impedance before the states must have settled."""
 DOMINANCE = 4.0
 """The second pole within this factor of the first: no dominant pole (the two-octave rule)."""
+ESTIMATE_TRUST = 0.25
+"""An estimate further than this fraction from its exact corner always comes with a warning saying why."""
+BANDS_APART = 10.0
+"""f_H/f_L below this (a decade): each band's elements still act near the other's corner."""
 RHP_ZERO_FACTOR = 10.0
 """A right-half-plane zero below this multiple of f_H is worth a warning."""
 PEAKING_DB = 0.1
@@ -117,6 +123,9 @@ class ElementResult:
     state_reason : str
         Its state and why, in words (``"shorted at mid band: 1/(2π·f_m·C) = 31.8 mΩ beside
         the 5 kΩ it sees"``).
+    pole_zero_pair : bool
+        A low-band element whose low-frequency state costs less than 3 dB: it makes a
+        pole–zero pair, not a corner of its own.
     """
 
     name: str
@@ -134,6 +143,7 @@ class ElementResult:
     midband_reactance: float
     midband_resistance: float
     state_reason: str
+    pole_zero_pair: bool
 
 
 @dataclass(frozen=True)
@@ -609,6 +619,7 @@ def prepare(c, bands=None, per_decade: int | None = None) -> Stage:
     reactive = tuple(el for el in c.elements.values() if isinstance(el, (Capacitor, Inductor)))
     pins = _check_pins(bands, {el.name for el in reactive})
     system = build_system(c)
+    check_dc_solvable(c, system)
     freqs, H = wide_sweep(system, first_span(c), per_decade or points_per_decade(system))
     freqs.flags.writeable = False
     H.flags.writeable = False
@@ -682,7 +693,7 @@ def classify(stage: Stage) -> Classification:
     Classification
     """
     freqs, H = stage.sweep_frequencies, stage.sweep_response
-    f_m = midband_guess(freqs, H)
+    f_m = midband_guess(stage.system, freqs, H)
     previous = None
     settled = False
     for _ in range(MAX_ROUNDS):
@@ -740,9 +751,8 @@ def exact_corners(stage: Stage, bands: Classification) -> ExactCorners:
     ExactCorners
     """
     level = abs(bands.midband_gain) / math.sqrt(2)
-    low_bracket, high_bracket = brackets(stage.sweep_frequencies, stage.sweep_response,
-                                         bands.midband_frequency, level)
-    return ExactCorners(corner(stage.system, low_bracket, level), corner(stage.system, high_bracket, level))
+    return ExactCorners(*corners_around(stage.system, stage.sweep_frequencies, stage.sweep_response,
+                                        bands.midband_frequency, level))
 
 
 def _results(stage, bands, est):
@@ -782,7 +792,8 @@ def _results(stage, bands, est):
         common = dict(name=el.name, nodes=el.nodes, band=band, pinned=el.name in stage.pins, resistance=resistance,
                       time_constant=tau, share=share, reason=reason, gain_shorted=test.gain_shorted,
                       gain_opened=test.gain_opened, acts_in_band=test.acts_in_band, state=state,
-                      midband_reactance=x, midband_resistance=seen, state_reason=why_state)
+                      midband_reactance=x, midband_resistance=seen, state_reason=why_state,
+                      pole_zero_pair=band == Band.LOW and el.name not in stage.fixed and _makes_pair(test, el))
         if isinstance(el, Capacitor):
             caps[el.name] = CapacitorResult(**common, capacitance=el.value)
         else:
@@ -873,11 +884,9 @@ def _element_notes(stage, results) -> list[str]:
             notes.append(f"{r.name} acts inside the band: shorting and opening it both lower the gain by more "
                          f"than {IN_BAND_DB:g} dB, so the bands are not separated and the estimates are weak.")
     for r in results.values():
-        if r.band != Band.LOW or r.name in stage.fixed:
-            continue
         is_cap = isinstance(r, CapacitorResult)
         low_gain, high_gain = (r.gain_opened, r.gain_shorted) if is_cap else (r.gain_shorted, r.gain_opened)
-        if high_gain > 0 and low_gain / high_gain > 1 / math.sqrt(2):
+        if r.pole_zero_pair:
             verb = "Opening" if is_cap else "Shorting"
             cost = (f"raises the gain by {20 * math.log10(low_gain / high_gain):.2f} dB" if low_gain >= high_gain
                     else f"costs only {20 * math.log10(high_gain / low_gain):.2f} dB")
@@ -920,6 +929,93 @@ def _high_band_notes(est, exact, known_zeros, too_many, limit) -> list[str]:
     return notes
 
 
+def _low_poles(est) -> list[float]:
+    """rad/s: the low band's exact pole magnitudes (of its own network), largest first."""
+    lam = est.short_circuit.exact
+    return sorted((1 / abs(v) for v in lam if abs(v) > 0), reverse=True)
+
+
+def _low_band_notes(est) -> list[str]:
+    """The low band's dominance test, the same two-octave rule as the high band's."""
+    # Magnitudes only: a complex pair (or a double pole, which comes out a hair complex) is
+    # two poles of one size, which no single one dominates.
+    p = _low_poles(est)
+    if len(p) >= 2 and p[0] < DOMINANCE * p[1]:
+        p1, p2 = (w / (2 * math.pi) for w in p[:2])
+        return [f"No pole dominates the low band: the second pole ({_hz(p2)}) is within {DOMINANCE:g}× of the "
+                f"first ({_hz(p1)}), so the estimate Σ1/τ, which adds them, is weak."]
+    return []
+
+
+def _why_off(side, stage, bands, est, exact, results, known_zeros) -> list[str]:
+    """The reasons, in a designer's words, that an estimate can be far from its exact corner."""
+    why = []
+    if exact.f_low and exact.f_high and exact.f_high / exact.f_low < BANDS_APART:
+        why.append(f"the bands are only {exact.f_high / exact.f_low:.1f}× apart (f_H/f_L), so each band's "
+                   "elements still act near the other's corner")
+    inside = [r.name for r in results.values() if r.acts_in_band]
+    if inside:
+        why.append(f"{_names(inside)} act{'s' if len(inside) == 1 else ''} inside the band")
+    oc = est.open_circuit
+    if side == Band.HIGH:
+        if oc.b2 is not None and oc.b1 > 0 and oc.b1 * oc.b1 < 4 * oc.b2:
+            why.append("the high band has complex poles, which one time constant cannot describe")
+        elif oc.exact is not None and len(oc.exact) >= 2 and abs(oc.exact[1]) > 0 and \
+                abs(oc.exact[0]) < DOMINANCE * abs(oc.exact[1]):
+            why.append("no pole dominates the high band (the second is within "
+                       f"{DOMINANCE:g}× of the first), and Σ τ lumps them into one")
+        if oc.b1 < 0:
+            why.append("the high band has feedback (b1 < 0)")
+        reference = 2 * math.pi * exact.f_high
+        near = [z for z in (known_zeros if known_zeros is not None else ()) if
+                0 < abs(z) < RHP_ZERO_FACTOR * reference and abs(z) > reference / RHP_ZERO_FACTOR]
+        if near:
+            z = min(near, key=abs)
+            half = "right" if z.real > 0 else "left"
+            why.append(f"a {half}-half-plane zero at {_hz(abs(z) / (2 * math.pi))} lies near f_H, and the "
+                       "time constants ignore zeros")
+    else:
+        pairs = [r.name for r in results.values() if r.pole_zero_pair]
+        if pairs:
+            why.append(f"{_names(pairs)} make{'s' if len(pairs) == 1 else ''} a pole–zero pair that Σ1/τ "
+                       "counts as a pole")
+        p = _low_poles(est)
+        if len(p) >= 2 and p[0] < DOMINANCE * p[1]:
+            why.append(f"no pole dominates the low band (the second is within {DOMINANCE:g}× of the first), "
+                       "and Σ1/τ adds them")
+    if not why:
+        why.append("the time constants interact more than a sum of them describes" if side == Band.HIGH else
+                   "the short-circuit time constants interact more than a sum of them describes")
+    return why
+
+
+def _error_notes(stage, bands, est, exact, results, known_zeros) -> list[str]:
+    """A warning for every estimate further than :data:`ESTIMATE_TRUST` from its exact corner."""
+    notes = []
+    for side, sym, estimate_, exact_ in ((Band.HIGH, "f_H", est.f_high, exact.f_high),
+                                         (Band.LOW, "f_L", est.f_low, exact.f_low)):
+        if not (estimate_ and exact_) or abs(estimate_ / exact_ - 1) <= ESTIMATE_TRUST:
+            continue
+        off = 100 * (estimate_ / exact_ - 1)
+        where = "above" if off > 0 else "below"
+        why = "; ".join(_why_off(side, stage, bands, est, exact, results, known_zeros))
+        notes.append(f"The {sym} estimate ({_hz(estimate_)}) is {abs(off):.0f} % {where} the exact corner "
+                     f"({_hz(exact_)}): {why}. Trust the exact corner.")
+    return notes
+
+
+def _names(names) -> str:
+    names = list(names)
+    return names[0] if len(names) == 1 else ", ".join(names[:-1]) + " and " + names[-1]
+
+
+def _makes_pair(test, el) -> bool:
+    """The element's low-frequency state costs less than 3 dB: a pole–zero pair, no corner."""
+    is_cap = isinstance(el, Capacitor)
+    low_gain, high_gain = (test.gain_opened, test.gain_shorted) if is_cap else (test.gain_shorted, test.gain_opened)
+    return high_gain > 0 and low_gain / high_gain > 1 / math.sqrt(2)
+
+
 def _peaking_note(stage, gain) -> list[str]:
     mag = np.abs(stage.sweep_response)
     top = int(np.argmax(mag))
@@ -954,4 +1050,9 @@ def warn(stage: Stage, bands: Classification, est: Estimates, exact: ExactCorner
     notes += _element_notes(stage, results)
     too_many = len(bands.members(stage, Band.HIGH)) > full_matrix_limit
     notes += _high_band_notes(est, exact, known_zeros, too_many, full_matrix_limit)
+    notes += _low_band_notes(est)
+    if exact.f_low and exact.f_high and exact.f_high / exact.f_low < BANDS_APART:
+        notes.append(f"The bands are only {exact.f_high / exact.f_low:.1f}× apart (f_H/f_L): the low-band elements "
+                     "still act near f_H and the high-band ones near f_L, so both estimates are weak.")
+    notes += _error_notes(stage, bands, est, exact, results, known_zeros)
     return notes + _peaking_note(stage, bands.midband_gain)

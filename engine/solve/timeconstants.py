@@ -193,11 +193,15 @@ class ShortCircuit:
         D_j / (Z⁻¹)_jj (s): C·R for a capacitor, L/R for an inductor.
     omega : float
         Σ 1/τ_j = tr((D·Z)⁻¹) (rad/s), the exact sum of the pole magnitudes when the poles are real.
+    exact : numpy.ndarray
+        Eigenvalues λ of D·Z (s), largest magnitude first: the low band's true time
+        constants, whose poles are −1/λ.
     """
 
     inverse_diagonal: np.ndarray
     time_constants: np.ndarray
     omega: float
+    exact: np.ndarray
 
 
 def short_circuit(lu, U: sp.csc_matrix, D: np.ndarray, names) -> ShortCircuit:
@@ -214,7 +218,7 @@ def short_circuit(lu, U: sp.csc_matrix, D: np.ndarray, names) -> ShortCircuit:
     n = U.shape[1]
     if n == 0:
         empty = np.zeros(0)
-        return ShortCircuit(empty, empty, 0.0)
+        return ShortCircuit(empty, empty, 0.0, empty.astype(complex))
     Z = port_matrix(lu, U)
     u, s, vt = la.svd(Z)
     if s[-1] <= _SINGULAR * s[0]:
@@ -226,4 +230,4 @@ def short_circuit(lu, U: sp.csc_matrix, D: np.ndarray, names) -> ShortCircuit:
             "part, or pin all but one of them to the neutral band.", parts=loop)
     inv_diag = np.einsum("ij,ji->i", vt.T / s[None, :], u.T)
     tau = D / inv_diag
-    return ShortCircuit(inv_diag, tau, float(np.sum(1.0 / tau)))
+    return ShortCircuit(inv_diag, tau, float(np.sum(1.0 / tau)), _eigenvalues(D, Z))

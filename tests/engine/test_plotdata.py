@@ -16,7 +16,9 @@ from bandsketch.engine.advise.tolerance import Histogram
 
 def _element(name, band, r, c, share, pinned=False):
     return SimpleNamespace(name=name, band=band, resistance=r, capacitance=c, time_constant=r * c,
-                           share=share, pinned=pinned, reason=f"reason for {name}")
+                           share=share, pinned=pinned, reason=f"reason for {name}",
+                           state="short" if band == "low" else "open", state_reason=f"state of {name}",
+                           pole_zero_pair=False)
 
 
 def _two_corner(am=-40.0, f_l=20.0, f_h=1e6, **extra):
