@@ -15,7 +15,7 @@ import numpy as np
 
 from ..core.errors import CircuitError
 from ..core.values import format_value
-from .bands import HIGH, LOW
+from ..core.band import Band
 from .waveform import MODAL_LIMIT, dc_gain, integrated_step, modal_step, modes
 
 RISE_FROM, RISE_TO, DELAY_LEVEL = 0.1, 0.9, 0.5
@@ -292,8 +292,8 @@ def _poles_hint(analysis) -> np.ndarray:
     if analysis.high_time_constants is not None:
         high = np.asarray(analysis.high_time_constants, dtype=complex)
     else:
-        high = np.asarray([el.time_constant for el in analysis.elements.values() if el.band == HIGH], dtype=complex)
-    low = np.asarray([el.time_constant for el in analysis.elements.values() if el.band == LOW], dtype=complex)
+        high = np.asarray([el.time_constant for el in analysis.elements.values() if el.band == Band.HIGH], dtype=complex)
+    low = np.asarray([el.time_constant for el in analysis.elements.values() if el.band == Band.LOW], dtype=complex)
     taus = np.concatenate([high, low])
     taus = taus[np.abs(taus) > 1e-12 * np.abs(taus).max(initial=0.0)]
     return -1 / taus
