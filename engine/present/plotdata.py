@@ -43,7 +43,8 @@ PEAK_SHOWN_DB = 0.1
 PEAK_ROOM = 0.25
 """Above the mid band (or a peak) the magnitude axis leaves this fraction of its span for labels."""
 
-PAIR_TITLE = "Low band, pole–zero pairs: 1/2πτ, no corner of their own"
+PAIR_TITLE = "Pole–zero pairs: 1/2πτ, no corner"
+PAIR_TOTAL = "opening each costs < 3 dB"
 PAIR_NOTE = ("a pole–zero pair: opening it costs less than 3 dB, so it sets no corner of its own, "
              "and its share of ω_L overstates it")
 BAND_TITLES = {Band.HIGH: "High band: τ, share of b1", Band.LOW: "Low band: 1/2πτ, share of ω_L",
@@ -518,7 +519,7 @@ def _group(band: Band, results: list, analysis, pairs: bool = False) -> BandGrou
     else:
         total = "shorting or opening these leaves the gain as it is"
     if pairs:
-        return BandGroup(band, PAIR_TITLE, PAIR_NOTE[0].upper() + PAIR_NOTE[1:], tuple(rows))
+        return BandGroup(band, PAIR_TITLE, PAIR_TOTAL, tuple(rows))
     return BandGroup(band, BAND_TITLES[band], total, tuple(rows))
 
 

@@ -903,8 +903,8 @@ def _high_band_notes(est, exact, known_zeros, too_many, limit) -> list[str]:
     if b1 < 0:
         notes.append("The open-circuit time constants add up to a negative b1: the high band has feedback "
                      "that the first-order estimate cannot describe; trust the exact corner.")
-    if oc.b2 is not None and b1 > 0 and b1 * b1 < 4 * oc.b2:
-        notes.append("The high band has complex poles (b1² < 4·b2): the response may peak, and the first-order "
+    if _complex_high_poles(oc):
+        notes.append("The high band has complex poles: the response may peak, and the first-order "
                      "estimate 1/(2π·b1) can be optimistic instead of conservative.")
     # A complex pair is reported above; dominance is a question about real poles.
     if oc.exact is not None and len(oc.exact) >= 2 and abs(oc.exact[1]) > 0 and oc.exact[0].imag == 0:
@@ -927,6 +927,14 @@ def _high_band_notes(est, exact, known_zeros, too_many, limit) -> list[str]:
     if exact.f_high is None and est.f_high is not None:
         notes.append("The exact gain never falls 3 dB above the mid band: there is no upper corner, only the estimate.")
     return notes
+
+
+def _complex_high_poles(oc) -> bool:
+    """The high band's slowest exact time constant is one of a complex pair; b1² < 4·b2 where
+    they are not known. (Two identical halves have b1² < 4·b2 with every pole real and double.)"""
+    if oc.exact is not None and len(oc.exact):
+        return abs(oc.exact[0].imag) > 1e-6 * abs(oc.exact[0])
+    return oc.b2 is not None and oc.b1 > 0 and oc.b1 * oc.b1 < 4 * oc.b2
 
 
 def _low_poles(est) -> list[float]:
@@ -958,7 +966,7 @@ def _why_off(side, stage, bands, est, exact, results, known_zeros) -> list[str]:
         why.append(f"{_names(inside)} act{'s' if len(inside) == 1 else ''} inside the band")
     oc = est.open_circuit
     if side == Band.HIGH:
-        if oc.b2 is not None and oc.b1 > 0 and oc.b1 * oc.b1 < 4 * oc.b2:
+        if _complex_high_poles(oc):
             why.append("the high band has complex poles, which one time constant cannot describe")
         elif oc.exact is not None and len(oc.exact) >= 2 and abs(oc.exact[1]) > 0 and \
                 abs(oc.exact[0]) < DOMINANCE * abs(oc.exact[1]):
