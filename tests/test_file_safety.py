@@ -38,6 +38,7 @@ REVIEWED = {("document.py", "setattr")}
 """Sites read and found safe: Document.set_meta checks the attribute name against a fixed tuple
 before its setattr, and the loader never calls it."""
 ALLOWED_IMPORTS = {"__future__", "json", "math", "os", "stat", "tempfile", "unicodedata", "pathlib", "re", "dataclasses",
+                   "enum",  # the Band enum (engine/core/band.py): a class definition, no code from data
                    "types", "typing", "collections", "functools"}
 
 
