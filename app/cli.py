@@ -1,7 +1,8 @@
 """The ``bandsketch`` command: open the window, or analyse a design without Qt.
 
 ``bandsketch [DESIGN] [--screenshot FILE.png] [--size WxH] [--select NAME]`` opens the window;
-``bandsketch analyze DESIGN [--json] [--csv FILE]`` prints the analysis;
+``bandsketch analyze DESIGN [--json] [--csv FILE]`` prints the analysis and the step figures;
+``bandsketch step DESIGN [--csv FILE] [--t-stop S] [--points N] [--json]`` the step response;
 ``bandsketch report DESIGN -o FILE.html`` writes the design report;
 ``bandsketch spread DESIGN --samples N --seed S [--json]`` runs the tolerance spread;
 ``bandsketch advise DESIGN [--knobs R1,RC] [--json]`` prints the advisor's suggestions. Qt is imported
@@ -16,7 +17,7 @@ import json
 import os
 import sys
 
-SUBCOMMANDS = ("analyze", "report", "spread", "advise")
+SUBCOMMANDS = ("analyze", "step", "report", "spread", "advise")
 
 
 def _size(text: str) -> tuple[int, int]:
@@ -55,6 +56,9 @@ def _analyze(args) -> int:
     from bandsketch.engine.design.designfile import load_design
     from bandsketch.engine.design.netlist import design_to_circuit, shorted_parts
     from bandsketch.engine.present.summary import analysis_to_dict, format_table, write_sweep_csv
+    from bandsketch.engine.core.errors import CircuitError
+    from bandsketch.engine.present.stepdata import time_responses
+    from bandsketch.engine.present.timesummary import format_time_table, time_domain_dict
 
     doc = load_design(args.design)
     analysis = analyze(design_to_circuit(doc), bands=dict(doc.band_pins))
@@ -63,12 +67,79 @@ def _analyze(args) -> int:
         print(f"bandsketch: {args.design}: {notice}", file=sys.stderr)
     # The sheet's notices lead the analysis's own warnings, in the table and the JSON alike.
     analysis = replace(analysis, _warnings=notices + tuple(analysis.warnings))
+    try:
+        step, pulse = time_responses(analysis)
+        no_step = None
+    except CircuitError as exc:
+        step = pulse = None
+        no_step = exc.message
     if args.json:
-        print(json.dumps(analysis_to_dict(analysis), indent=1, ensure_ascii=False))
+        data = analysis_to_dict(analysis)
+        data["time_domain"] = time_domain_dict(step, pulse) if step else {"problem": no_step}
+        print(json.dumps(data, indent=1, ensure_ascii=False))
     else:
         print(format_table(analysis, title=doc.title))
+        print(format_time_table(step, pulse) if step else f"Step response: none ({no_step})")
     if args.csv:
         write_sweep_csv(analysis, args.csv)
+    return 0
+
+
+def _positive_time(text: str) -> float:
+    from bandsketch.engine.core.values import parse_value
+
+    try:
+        value = parse_value(text)
+    except ValueError:
+        raise argparse.ArgumentTypeError(f"{text!r} is not a time like 2u or 1.5e-6") from None
+    if not value > 0:
+        raise argparse.ArgumentTypeError(f"{text!r}: the window must be longer than 0 s")
+    return value
+
+
+def _whole_number(what: str, lo: int, hi: int):
+    """An argparse type: a whole number of ``what`` from ``lo`` to ``hi``."""
+    def parse(text: str) -> int:
+        try:
+            n = int(text)
+        except ValueError:
+            raise argparse.ArgumentTypeError(f"{text!r} is not a whole number of {what}") from None
+        if not lo <= n <= hi:
+            raise argparse.ArgumentTypeError(f"{n} {what}: give {lo} to {hi}")
+        return n
+    return parse
+
+
+_points = _whole_number("points", 3, 1_000_000)
+
+
+def _step_parser() -> argparse.ArgumentParser:
+    p = argparse.ArgumentParser(prog="bandsketch step",
+                                description="The exact step response of a design, its figures and their estimates.")
+    p.add_argument("design", help="design file (.json)")
+    p.add_argument("--csv", metavar="FILE", help="write the waveform (time, exact, estimates) to FILE")
+    p.add_argument("--t-stop", type=_positive_time, metavar="S",
+                   help="end of the window in s, e.g. 2u (default: from the time constants)")
+    p.add_argument("--points", type=_points, default=2000, help="samples in the window (default 2000)")
+    p.add_argument("--json", action="store_true", help="print JSON instead of a table")
+    return p
+
+
+def _step(args) -> int:
+    from bandsketch.engine import analyze
+    from bandsketch.engine.design.designfile import load_design
+    from bandsketch.engine.design.netlist import design_to_circuit
+    from bandsketch.engine.present.timesummary import format_time_table, time_domain_dict, write_step_csv
+
+    doc = load_design(args.design)
+    step = analyze(design_to_circuit(doc), bands=dict(doc.band_pins)).step_response(args.t_stop, args.points)
+    if args.json:
+        print(json.dumps(time_domain_dict(step), indent=1, ensure_ascii=False))
+    else:
+        print(format_time_table(step), end="")
+    if args.csv:
+        write_step_csv(step, args.csv)
+        print(f"bandsketch: wrote {args.csv}", file=sys.stderr)
     return 0
 
 
@@ -125,14 +196,7 @@ def _advise(args) -> int:
     return 0
 
 
-def _samples(text: str) -> int:
-    try:
-        n = int(text)
-    except ValueError:
-        raise argparse.ArgumentTypeError(f"{text!r} is not a whole number of samples") from None
-    if not 1 <= n <= 10_000_000:
-        raise argparse.ArgumentTypeError(f"{n} samples: give 1 to 10000000")
-    return n
+_samples = _whole_number("samples", 1, 10_000_000)
 
 
 def _report(args) -> int:
@@ -173,6 +237,8 @@ def main(argv: list[str] | None = None) -> int:
     try:
         if argv and argv[0] == "analyze":
             return _analyze(_analyze_parser().parse_args(argv[1:]))
+        if argv and argv[0] == "step":
+            return _step(_step_parser().parse_args(argv[1:]))
         if argv and argv[0] == "report":
             return _report(_report_parser().parse_args(argv[1:]))
         if argv and argv[0] == "spread":

@@ -10,7 +10,7 @@ from __future__ import annotations
 
 import shiboken6
 from PySide6.QtCore import QEvent, QObject, QRectF, Qt
-from PySide6.QtWidgets import (QFileDialog, QHBoxLayout, QLabel, QMenu, QScrollArea, QSplitter,
+from PySide6.QtWidgets import (QFileDialog, QHBoxLayout, QLabel, QMenu, QScrollArea, QSplitter, QTabWidget,
                                QToolButton, QVBoxLayout, QWidget)
 
 from bandsketch.engine.core.band import Band
@@ -23,6 +23,7 @@ from .bars import TimeConstantBars
 from .bode import BodePlot
 from .runner import AnalysisRunner, Outcome
 from ..canvas.bias_notes import BiasNotes
+from .timeplot import TimePlot
 from .style import view_colours
 from .port_picture import PictureOverlay, picture_geometry
 from .verdict import ProblemBanner, VerdictStrip
@@ -55,6 +56,7 @@ class AnalysisPanel(QWidget):
         self.verdict = VerdictStrip()
         self.bars = TimeConstantBars()
         self.bode = BodePlot()
+        self.time = TimePlot()
         self.overlay = PictureOverlay()
         self.scene.addItem(self.overlay)
 
@@ -80,7 +82,7 @@ class AnalysisPanel(QWidget):
         tools.addWidget(self.dismiss_before)
         fit = QToolButton(text="Fit")
         fit.setToolTip("Show the whole sweep again after zooming or panning")
-        fit.clicked.connect(self.bode.fit)
+        fit.clicked.connect(lambda: self.plots.currentWidget().fit())
         tools.addWidget(fit)
         export = QToolButton(text="Export")
         export.setToolTip("Save the plot as a picture, or the swept curves as CSV")
@@ -92,7 +94,13 @@ class AnalysisPanel(QWidget):
         export.setMenu(menu)
         tools.addWidget(export)
         right_layout.addLayout(tools)
-        right_layout.addWidget(self.bode, 1)
+        # The time-domain view shares the Bode plot's place: one tab each.
+        self.plots = QTabWidget()
+        self.plots.setDocumentMode(True)
+        self.plots.addTab(self.bode, "Frequency")
+        self.plots.addTab(self.time, "Step and pulse")
+        self.plots.currentChanged.connect(self._plot_switched)
+        right_layout.addWidget(self.plots, 1)
 
         self.split = QSplitter(Qt.Orientation.Horizontal)
         self.split.addWidget(bars_scroll)
@@ -113,6 +121,7 @@ class AnalysisPanel(QWidget):
         self.bars.element_clicked.connect(self.select_element)
         self.bars.pin_requested.connect(self.pin_band)
         self.bode.hovered.connect(self.hover_readout.setText)
+        self.time.hovered.connect(self.hover_readout.setText)
         self.banner.show_requested.connect(self.show_problem)
         self._context = _CanvasMenus(self)
         window.view.viewport().installEventFilter(self._context)
@@ -139,6 +148,7 @@ class AnalysisPanel(QWidget):
             self.good = outcome
             self.bars.show_bars(outcome.bars)
             self.bode.show_response(outcome.bode)
+            self.time.show_response(outcome.step, outcome.pulse, problem=outcome.time_problem)
             self.verdict.show_verdict(outcome.verdict)
             self._mark_canvas(outcome)
             self.bias_notes.show(outcome.bias)
@@ -147,9 +157,10 @@ class AnalysisPanel(QWidget):
             self.good = None
             self.bars.show_bars(None)
             self.bode.show_response(None)
+            self.time.show_response(None, None)
             self.verdict.show_verdict(None)
         else:
-            for view in (self.bars, self.bode, self.verdict):
+            for view in (self.bars, self.bode, self.time, self.verdict):
                 view.set_stale(True)
             # A bias that no longer follows from the sheet must not stay written on it.
             self.bias_notes.show(None)
@@ -287,12 +298,16 @@ class AnalysisPanel(QWidget):
             self.restyle()
         super().changeEvent(event)
 
+    def _plot_switched(self, *_) -> None:
+        self.legend.setText(self.plots.currentWidget().legend_html())
+        self.hover_readout.clear()
+
     def restyle(self) -> None:
         """Take the colours of the current palette (light or dark)."""
         colours = view_colours()
-        for view in (self.bars, self.bode, self.verdict, self.banner, self.overlay):
+        for view in (self.bars, self.bode, self.time, self.verdict, self.banner, self.overlay):
             view.set_colours(colours)
-        self.legend.setText(self.bode.legend_html())
+        self._plot_switched()
 
 
 class _CanvasMenus(QObject):

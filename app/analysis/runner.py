@@ -21,6 +21,7 @@ from bandsketch.engine.core.errors import CircuitError
 from bandsketch.engine.present.biasdata import BiasMarks, bias_marks
 from bandsketch.engine.design.netlist import Netlist, build_netlist, connectivity_problems, design_to_circuit
 from bandsketch.engine.present.plotdata import BarData, BodeData, VerdictData, bar_data, bode_data, verdict_data
+from bandsketch.engine.present.stepdata import PulseData, StepData, time_views
 
 THREAD_AFTER_S = 0.030
 """A run slower than this (seconds) moves the next ones off the UI thread."""
@@ -44,6 +45,11 @@ class Outcome:
         The analysis, or None if the design is empty or cannot be analysed.
     bode, bars, verdict : BodeData, BarData, VerdictData or None
         What the views draw.
+    step, pulse : StepData, PulseData or None
+        What the time-domain view draws; None when the stage has no step response (then
+        ``time_problem`` says why).
+    time_problem : str or None
+        Why there is no step response (an unstable network), in words.
     problem : str or None
         Why the design cannot be analysed, naming the part or node.
     problem_parts : tuple of str
@@ -64,6 +70,9 @@ class Outcome:
     bode: BodeData | None = None
     bars: BarData | None = None
     verdict: VerdictData | None = None
+    step: StepData | None = None
+    pulse: PulseData | None = None
+    time_problem: str | None = None
     problem: str | None = None
     problem_parts: tuple = ()
     problem_points: tuple = ()
@@ -119,9 +128,14 @@ def analyse_design(doc: Document, generation: int = 0) -> Outcome:
         return _problem_outcome(generation, doc, nets,
                                 f"The analysis could not be completed ({type(exc).__name__}: {exc}); "
                                 "check the values of the parts you changed last.", started=started)
+    step = pulse = time_problem = None
+    try:
+        step, pulse = time_views(analysis)
+    except CircuitError as exc:
+        time_problem = exc.message
     point = analysis.operating_point
     return Outcome(generation, doc, nets, circuit, analysis, bode_data(analysis), bar_data(analysis),
-                   verdict_data(analysis), seconds=time.perf_counter() - started,
+                   verdict_data(analysis), step, pulse, time_problem, seconds=time.perf_counter() - started,
                    bias=None if point is None else bias_marks(doc, nets, point))
 
 
