@@ -24,6 +24,7 @@ from ..solve.analysis import analyze
 from ..design.netlist import design_to_circuit
 from ..advise.partvalues import part_values
 from .plotdata import bar_data, bode_data, db_unit, verdict_data
+from .reportstep import step_section
 from ..advise.sensitivity import FIGURE_TITLES, sensitivities
 from ..advise.suggest import suggest, verdict_line
 from ..advise.targets import check_targets, parse_targets
@@ -45,7 +46,9 @@ METHOD = (
     "from one factorisation of the modified nodal equations (Ho, Ruehli and Brennan, 1975), and the exact "
     "response, corners, poles and zeros are computed from the same equations. Sensitivities are adjoint "
     "derivatives of those figures; the tolerance spread is a seeded Monte Carlo of the exact figures "
-    "with every part drawn uniformly within its tolerance.")
+    "with every part drawn uniformly within its tolerance. The step response is exact (poles and residues "
+    "of the same equations, or their L-stable integration for large networks); its rise time is set "
+    "beside ln 9·b<sub>1</sub> ≈ 2.2·b<sub>1</sub> and beside the pair 1/(1 + b<sub>1</sub>s + b<sub>2</sub>s²).")
 
 REFERENCES = (
     "R. D. Thornton, C. L. Searle, D. O. Pederson, R. B. Adler, E. J. Angelo, <i>Multistage Transistor "
@@ -359,6 +362,7 @@ def build_report(doc, *, pictures: Pictures | None = None, samples: int = SPREAD
             "<h2>Time constants</h2>",
             f"<figure>{_png(pictures.bars, 'time-constant bars') if pictures.bars else _bars_svg(bar_data(analysis))}</figure>",
             "<h2>Corners</h2>", _corners_table(analysis),
+            "<h2>Step response</h2>", step_section(analysis),
             "<h2>Bands, resistances and time constants</h2>", _bands_table(analysis),
             "<h2>Elements</h2>", _elements_table(circuit),
             *(("<h2>Bias (DC operating point)</h2>",

@@ -39,13 +39,15 @@ def time_domain_dict(step, pulse=None) -> dict:
     return out
 
 
-def _value(x, unit) -> str:
+def figure_value_text(x, unit) -> str:
+    """A figure's value: a time with its prefix, a fraction in %; "—" when missing."""
     if x is None:
         return "—"
     return f"{100 * x:.2f} %" if unit == "fraction" else format_value(x, "s")
 
 
-def _error(f, estimate) -> str:
+def figure_error_text(f, estimate) -> str:
+    """An estimate's error: "+13.9 %" for a time, "−0.1 pt" for a fraction; empty when missing."""
     err = f.error(estimate)
     if err is None:
         return ""
@@ -59,10 +61,10 @@ def format_time_table(step, pulse=None) -> str:
              f"window {format_value(float(step.t[-1]), 's')})"]
     figures = list(step.figures) + (list(pulse.figures) if pulse is not None else [])
     for f in figures:
-        parts = [f"  {f.name:22s} {_value(f.exact, f.unit):>10s}"]
+        parts = [f"  {f.name:22s} {figure_value_text(f.exact, f.unit):>10s}"]
         for label, estimate in f.estimates.items():
             if estimate is not None:
-                parts.append(f"{label} {_value(estimate, f.unit)} {_error(f, estimate)}".rstrip())
+                parts.append(f"{label} {figure_value_text(estimate, f.unit)} {figure_error_text(f, estimate)}".rstrip())
         lines.append("   ".join(parts))
     if pulse is not None:
         lines.append(f"  (pulse of {format_value(pulse.width, 's')}; sag estimate ω_L·T)")

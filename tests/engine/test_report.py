@@ -65,7 +65,7 @@ def test_self_contained_with_method_and_caution(design):
     for ref in ("Thornton", "Cochrun", "Ho, Ruehli"):
         assert ref in report
     assert len(REFERENCES) >= 3
-    assert report.count("<svg") == 2  # Bode plot and bars drawn inline without Qt
+    assert report.count("<svg") == 3  # Bode plot, bars and step response drawn inline without Qt
 
 
 def test_app_pictures_are_embedded(tmp_path):
@@ -77,5 +77,5 @@ def test_app_pictures_are_embedded(tmp_path):
     write_report(doc, path, pictures=Pictures(schematic=png, bode=png), samples=200)
     text = path.read_text(encoding="utf-8")
     assert text.count("data:image/png;base64,") == 2
-    assert text.count("<svg") == 1  # the bars, which no picture was given for
+    assert text.count("<svg") == 2  # the bars, which no picture was given for, and the step response
     assert "The design sets no targets." in text

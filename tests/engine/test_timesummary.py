@@ -57,3 +57,15 @@ def test_step_command_refuses_bad_options_in_words(bad, capsys):
         main(["step", str(SAMPLE), *bad])
     assert exit_.value.code == 2
     assert "bandsketch step" in capsys.readouterr().err
+
+
+def test_report_has_the_step_plot_and_table():
+    from bandsketch.engine.present.report import build_report
+
+    text = build_report(load_design(SAMPLE), samples=50)
+    section = text[text.index("<h2>Step response</h2>"):]
+    section = section[:section.index("<h2>", 5)]
+    assert 'aria-label="Step response"' in section
+    for name in ("rise time (10–90 %)", "overshoot", "settling to 1 %", "delay to 50 %", "pulse sag"):
+        assert f"<td>{name}</td>" in section
+    assert "expect about 29 % overshoot" in section
