@@ -1,12 +1,17 @@
 """The ``bandsketch`` command: open the window, or analyse a design without Qt.
 
-``bandsketch [DESIGN] [--screenshot FILE.png] [--size WxH] [--select NAME]`` opens the window;
+``bandsketch [DESIGN | --sample NAME] [--screenshot FILE.png] [--size WxH] [--select NAME]`` opens
+the window; ``bandsketch samples`` lists the shipped samples;
 ``bandsketch analyze DESIGN [--json] [--csv FILE]`` prints the analysis and the step figures;
 ``bandsketch step DESIGN [--csv FILE] [--t-stop S] [--points N] [--json]`` the step response;
-``bandsketch report DESIGN -o FILE.html`` writes the design report;
+``bandsketch report DESIGN -o FILE.html|FILE.pdf`` writes the design report;
 ``bandsketch spread DESIGN --samples N --seed S [--json]`` runs the tolerance spread;
-``bandsketch advise DESIGN [--knobs R1,RC] [--json]`` prints the advisor's suggestions. Qt is imported
-only for the window, so the analysis runs where no Qt is installed or wanted.
+``bandsketch advise DESIGN [--knobs R1,RC] [--json]`` prints the advisor's suggestions. Every DESIGN
+may be ``--sample NAME`` instead. Qt is imported only for the window (and a report's pictures),
+so the analysis runs where no Qt is installed or wanted.
+
+Exit status (:data:`EXIT_CODES`): 0 done, 1 the work failed (an output could not be written),
+2 bad input (arguments, or a design that cannot be read or analysed).
 """
 
 from __future__ import annotations
@@ -17,7 +22,11 @@ import json
 import os
 import sys
 
-SUBCOMMANDS = ("analyze", "step", "report", "spread", "advise")
+SUBCOMMANDS = ("samples", "analyze", "step", "report", "spread", "advise")
+EXIT_OK, EXIT_FAILED, EXIT_BAD_INPUT = 0, 1, 2
+EXIT_CODES = {EXIT_OK: "done", EXIT_FAILED: "the work failed (an output could not be written)",
+              EXIT_BAD_INPUT: "bad input: arguments, or a design that cannot be read or analysed"}
+_EPILOG = "exit status: " + "; ".join(f"{k} {v}" for k, v in EXIT_CODES.items())
 
 
 def _size(text: str) -> tuple[int, int]:
@@ -30,22 +39,66 @@ def _size(text: str) -> tuple[int, int]:
     return w, h
 
 
+class _Version(argparse.Action):
+    # argparse's own version action wraps the line at the terminal width.
+    def __init__(self, option_strings, dest, **kw):
+        super().__init__(option_strings, dest, nargs=0, default=argparse.SUPPRESS, **kw)
+
+    def __call__(self, parser, namespace, values, option_string=None):
+        from bandsketch.engine.core.versions import version_line
+
+        print(version_line())
+        parser.exit(EXIT_OK)
+
+
 def _gui_parser() -> argparse.ArgumentParser:
     p = argparse.ArgumentParser(
-        prog="bandsketch",
+        prog="bandsketch", epilog=_EPILOG,
         description="Sketch an amplifier stage and see where its -3 dB corners fall. "
                     f"Subcommands: {', '.join(SUBCOMMANDS)} (bandsketch analyze -h).")
-    p.add_argument("design", nargs="?", help="design file to open (.json)")
+    p.add_argument("--version", action=_Version, help="print the version of Bandsketch and its libraries, and exit")
+    _design_argument(p, required=False)
     p.add_argument("--screenshot", metavar="FILE.png", help="save a picture of the window and exit")
     p.add_argument("--size", type=_size, metavar="WxH", help="window size, e.g. 1400x900")
     p.add_argument("--select", metavar="NAME", help="with --screenshot: show this element's test picture")
     return p
 
 
+def _design_argument(p: argparse.ArgumentParser, required: bool = True) -> None:
+    g = p.add_mutually_exclusive_group(required=required)
+    g.add_argument("design", nargs="?", help="design file (.json)")
+    g.add_argument("--sample", metavar="NAME", help="a sample that ships with Bandsketch instead of a file "
+                                                   "(bandsketch samples lists them)")
+
+
+def _load(args):
+    """The design the arguments name: a file, or a shipped sample."""
+    from bandsketch.engine.design.designfile import load_design
+    from bandsketch.engine.design.samples import load_sample
+
+    return load_sample(args.sample) if args.sample else load_design(args.design)
+
+
+def _samples_parser() -> argparse.ArgumentParser:
+    return argparse.ArgumentParser(prog="bandsketch samples", epilog=_EPILOG,
+                                   description="List the sample designs that ship with Bandsketch.")
+
+
+def _list_samples(args) -> int:
+    from bandsketch.engine.design.samples import list_samples
+
+    samples = list_samples()
+    width = max(len(s.name) for s in samples)
+    for s in samples:
+        print(f"{s.name.ljust(width)}  {s.title}: {s.summary}")
+    print(f"\nOpen one with: bandsketch --sample {samples[0].name}")
+    return EXIT_OK
+
+
 def _analyze_parser() -> argparse.ArgumentParser:
-    p = argparse.ArgumentParser(prog="bandsketch analyze",
+    p = argparse.ArgumentParser(prog="bandsketch analyze", epilog=_EPILOG,
                                 description="Print the time-constant analysis of a design.")
-    p.add_argument("design", help="design file (.json)")
+    _design_argument(p)
     p.add_argument("--json", action="store_true", help="print JSON instead of a table")
     p.add_argument("--csv", metavar="FILE", help="also write the exact sweep to FILE")
     return p
@@ -53,18 +106,17 @@ def _analyze_parser() -> argparse.ArgumentParser:
 
 def _analyze(args) -> int:
     from bandsketch.engine import analyze
-    from bandsketch.engine.design.designfile import load_design
     from bandsketch.engine.design.netlist import design_to_circuit, shorted_parts
     from bandsketch.engine.present.summary import analysis_to_dict, format_table, write_sweep_csv
     from bandsketch.engine.core.errors import CircuitError
     from bandsketch.engine.present.stepdata import time_responses
     from bandsketch.engine.present.timesummary import format_time_table, time_domain_dict
 
-    doc = load_design(args.design)
+    doc = _load(args)
     analysis = analyze(design_to_circuit(doc), bands=dict(doc.band_pins))
     notices = tuple(p.message for p in shorted_parts(doc))
     for notice in notices:
-        print(f"bandsketch: {args.design}: {notice}", file=sys.stderr)
+        print(f"bandsketch: {args.design or args.sample}: {notice}", file=sys.stderr)
     # The sheet's notices lead the analysis's own warnings, in the table and the JSON alike.
     analysis = replace(analysis, _warnings=notices + tuple(analysis.warnings))
     try:
@@ -82,7 +134,7 @@ def _analyze(args) -> int:
         print(format_time_table(step, pulse) if step else f"Step response: none ({no_step})")
     if args.csv:
         write_sweep_csv(analysis, args.csv)
-    return 0
+    return EXIT_OK
 
 
 def _positive_time(text: str) -> float:
@@ -114,9 +166,9 @@ _points = _whole_number("points", 3, 1_000_000)
 
 
 def _step_parser() -> argparse.ArgumentParser:
-    p = argparse.ArgumentParser(prog="bandsketch step",
+    p = argparse.ArgumentParser(prog="bandsketch step", epilog=_EPILOG,
                                 description="The exact step response of a design, its figures and their estimates.")
-    p.add_argument("design", help="design file (.json)")
+    _design_argument(p)
     p.add_argument("--csv", metavar="FILE", help="write the waveform (time, exact, estimates) to FILE")
     p.add_argument("--t-stop", type=_positive_time, metavar="S",
                    help="end of the window in s, e.g. 2u (default: from the time constants)")
@@ -127,11 +179,10 @@ def _step_parser() -> argparse.ArgumentParser:
 
 def _step(args) -> int:
     from bandsketch.engine import analyze
-    from bandsketch.engine.design.designfile import load_design
     from bandsketch.engine.design.netlist import design_to_circuit
     from bandsketch.engine.present.timesummary import format_time_table, time_domain_dict, write_step_csv
 
-    doc = load_design(args.design)
+    doc = _load(args)
     step = analyze(design_to_circuit(doc), bands=dict(doc.band_pins)).step_response(args.t_stop, args.points)
     if args.json:
         print(json.dumps(time_domain_dict(step), indent=1, ensure_ascii=False))
@@ -140,23 +191,24 @@ def _step(args) -> int:
     if args.csv:
         write_step_csv(step, args.csv)
         print(f"bandsketch: wrote {args.csv}", file=sys.stderr)
-    return 0
+    return EXIT_OK
 
 
 def _report_parser() -> argparse.ArgumentParser:
-    p = argparse.ArgumentParser(prog="bandsketch report",
-                                description="Write the design report: one self-contained HTML file.")
-    p.add_argument("design", help="design file (.json)")
-    p.add_argument("-o", "--output", required=True, metavar="FILE.html", help="where to write the report")
+    p = argparse.ArgumentParser(prog="bandsketch report", epilog=_EPILOG,
+                                description="Write the design report: one self-contained HTML file, or a PDF.")
+    _design_argument(p)
+    p.add_argument("-o", "--output", required=True, type=_report_path, metavar="FILE.html|FILE.pdf",
+                   help="where to write the report; .html or .htm writes HTML, .pdf writes PDF")
     p.add_argument("--samples", type=_samples, default=10_000, help="Monte Carlo samples (default 10000)")
     p.add_argument("--seed", type=int, default=1, help="Monte Carlo seed (default 1)")
     return p
 
 
 def _spread_parser() -> argparse.ArgumentParser:
-    p = argparse.ArgumentParser(prog="bandsketch spread",
+    p = argparse.ArgumentParser(prog="bandsketch spread", epilog=_EPILOG,
                                 description="Tolerance spread of the corners and the gain, with the yield.")
-    p.add_argument("design", help="design file (.json)")
+    _design_argument(p)
     p.add_argument("--samples", type=_samples, default=10_000, help="Monte Carlo samples (default 10000)")
     p.add_argument("--seed", type=int, default=1, help="seed; the same seed gives the same numbers (default 1)")
     p.add_argument("--json", action="store_true", help="print JSON instead of a summary")
@@ -199,23 +251,30 @@ def _advise(args) -> int:
 _samples = _whole_number("samples", 1, 10_000_000)
 
 
+def _report_path(text: str) -> str:
+    if not text.lower().endswith((".html", ".htm", ".pdf")):
+        raise argparse.ArgumentTypeError(f"{text!r}: name the report FILE.html (HTML) or FILE.pdf (PDF)")
+    return text
+
+
 def _report(args) -> int:
-    from bandsketch.engine.design.designfile import load_design
     from bandsketch.engine.present.report import write_report
 
-    write_report(load_design(args.design), args.output, samples=args.samples, seed=args.seed)
+    write_report(_load(args), args.output, samples=args.samples, seed=args.seed)
     print(f"bandsketch: wrote {args.output}")
-    return 0
+    return EXIT_OK
 
 
 def _spread(args) -> int:
-    from bandsketch.engine.design.designfile import load_design
-    from bandsketch.engine.advise.tolerance import spread_summary
+    from bandsketch.engine.advise.tolerance import spread_of_design, spread_to_dict
 
-    summary = spread_summary(load_design(args.design), args.samples, args.seed)
+    from .console import Progress
+
+    summary = spread_to_dict(spread_of_design(_load(args), args.samples, args.seed,
+                                              progress=Progress("spread")))
     if args.json:
         print(json.dumps(summary, indent=1, ensure_ascii=False))
-        return 0
+        return EXIT_OK
     from bandsketch.engine.core.values import format_value
 
     print(f"{summary['samples']} samples, seed {summary['seed']}, {summary['seconds']:.2f} s")
@@ -226,15 +285,20 @@ def _spread(args) -> int:
                   f"0.135 %..99.865 %: {format_value(st['p0.135'], unit)} .. {format_value(st['p99.865'], unit)}")
     for key, value in summary["yield"].items():
         print(f"  yield {key:10s} {100 * value:5.1f} %")
-    return 0
+    return EXIT_OK
 
 
 def main(argv: list[str] | None = None) -> int:
     """Entry point of the ``bandsketch`` console script; returns the exit status."""
     from bandsketch.engine.core.errors import CircuitError, DesignFileError
 
+    from .console import fall_back_to_ascii
+
+    fall_back_to_ascii()
     argv = sys.argv[1:] if argv is None else list(argv)
     try:
+        if argv and argv[0] == "samples":
+            return _list_samples(_samples_parser().parse_args(argv[1:]))
         if argv and argv[0] == "analyze":
             return _analyze(_analyze_parser().parse_args(argv[1:]))
         if argv and argv[0] == "step":
@@ -248,20 +312,23 @@ def main(argv: list[str] | None = None) -> int:
         args = _gui_parser().parse_args(argv)
         from bandsketch.app.gui import run_gui
 
-        return run_gui(args.design, screenshot=args.screenshot, size=args.size, select=args.select)
+        return run_gui(args.design, screenshot=args.screenshot, size=args.size, select=args.select,
+                       sample=args.sample)
     except BrokenPipeError:
         # The reader (e.g. `| head`) stopped early; that is not an error worth a message.
         # Point stdout at devnull so the flush at exit cannot fail again (Python docs, signal).
         os.dup2(os.open(os.devnull, os.O_WRONLY), sys.stdout.fileno())
-        return 0
+        return EXIT_OK
     except (CircuitError, DesignFileError) as exc:
         print(f"bandsketch: {exc}", file=sys.stderr)
-        return 2
+        return EXIT_BAD_INPUT
     except OSError as exc:
-        print(f"bandsketch: {exc.filename or ''}: {exc.strerror or exc}", file=sys.stderr)
-        return 2
+        # Designs are read through load_design (DesignFileError), so this is an output.
+        print(f"bandsketch: {exc.filename or 'output'}: could not be written ({exc.strerror or exc})",
+              file=sys.stderr)
+        return EXIT_FAILED
     except Exception as exc:  # the last guard: no traceback reaches the user
         from .guard import REPORT_HINT, unexpected
 
         print(f"bandsketch: unexpected failure ({unexpected(exc)}). {REPORT_HINT}", file=sys.stderr)
-        return 1
+        return EXIT_FAILED

@@ -55,3 +55,8 @@ def ask_restore(parent: QWidget, when: str, name: str) -> bool:
 def show_error(parent: QWidget, title: str, message: str) -> None:
     """Tell the user something could not be done, and why."""
     QMessageBox.warning(parent, title, message)
+
+
+def show_about(parent: QWidget, text: str) -> None:
+    """The About box: ``text`` is rich text (the versions)."""
+    QMessageBox.about(parent, "About Bandsketch", text)

@@ -49,7 +49,7 @@ def _report_unexpected_in(window) -> None:
 
 
 def run_gui(design_path: str | None = None, screenshot: str | None = None,
-            size: tuple[int, int] | None = None, select: str | None = None) -> int:
+            size: tuple[int, int] | None = None, select: str | None = None, sample: str | None = None) -> int:
     """Open the main window, optionally on a design; with ``screenshot``, save a picture and exit.
 
     Parameters
@@ -63,6 +63,8 @@ def run_gui(design_path: str | None = None, screenshot: str | None = None,
     select : str, optional
         With ``screenshot``: the capacitor or inductor (``Cin``, ``Q1.cmu``) whose test
         picture is drawn on the canvas.
+    sample : str, optional
+        A shipped sample to open instead of ``design_path`` (as an untitled copy).
 
     Returns
     -------
@@ -79,15 +81,16 @@ def run_gui(design_path: str | None = None, screenshot: str | None = None,
     from PySide6.QtCore import QEventLoop, QTimer
 
     from bandsketch.engine.design.designfile import load_design
+    from bandsketch.engine.design.samples import load_sample
     from bandsketch.engine.core.errors import DesignFileError
 
     from .main_window import MainWindow
 
     if screenshot:
         doc = None
-        if design_path:
+        if design_path or sample:
             try:
-                doc = load_design(design_path)
+                doc = load_sample(sample) if sample else load_design(design_path)
             except DesignFileError as exc:
                 print(f"bandsketch: {exc}", file=sys.stderr)
                 return 2
@@ -95,7 +98,7 @@ def run_gui(design_path: str | None = None, screenshot: str | None = None,
         window.resize(*(size or DEFAULT_SIZE))
         window.show()
         if doc is not None:
-            window.set_document(doc, design_path)
+            window.set_document(doc, None if sample else design_path)
         if select:
             window.analysis_panel.runner.wait()
             problem = window.analysis_panel.select_element(select)
@@ -119,7 +122,11 @@ def run_gui(design_path: str | None = None, screenshot: str | None = None,
     def start():
         # Work recovered from a crash comes first; the design named on the command line
         # then opens only if nothing was restored.
-        if not window.offer_recovery() and design_path:
+        if window.offer_recovery():
+            return
+        if sample:
+            window.open_sample(sample)
+        elif design_path:
             window.open_design(design_path)
 
     QTimer.singleShot(0, start)

@@ -14,6 +14,7 @@ from bandsketch.engine.design.designfile import (FORMAT_VERSION, document_from_d
 from bandsketch.engine.design.document import Document
 from bandsketch.engine.core.errors import DesignFileError
 from bandsketch.engine.design.parts import GRID
+from bandsketch.engine.design.samples import list_samples, load_sample
 from bandsketch.engine.present.report import Pictures
 
 from . import dialogs, edits, preferences
@@ -175,6 +176,8 @@ class MainWindow(QMainWindow):
             self.act_bias.isChecked()), ["B"], "Write the DC node voltages and each transistor's bias on the sheet")
         self.act_bias.setCheckable(True)
         self.act_bias.setChecked(True)
+        self.act_about = a("&About Bandsketch", lambda: dialogs.show_about(self, self.about_text()), [],
+                           "The version of Bandsketch and of what it runs on")
         self.act_undo.setEnabled(False)
         self.act_redo.setEnabled(False)
         self.stack.canUndoChanged.connect(self.act_undo.setEnabled)
@@ -192,6 +195,12 @@ class MainWindow(QMainWindow):
         file_menu.addActions([self.act_new, self.act_open])
         self.recent_menu = file_menu.addMenu("Open &recent")
         self.recent_menu.aboutToShow.connect(self._fill_recent)
+        self.sample_menu = file_menu.addMenu("Open sa&mple")
+        for sample in list_samples():
+            act = self.sample_menu.addAction(sample.title, lambda name=sample.name: self.open_sample(name))
+            act.setStatusTip(sample.summary)
+            act.setToolTip(sample.summary)
+        self.sample_menu.setToolTipsVisible(True)
         file_menu.addActions([self.act_save, self.act_save_as])
         file_menu.addSeparator()
         file_menu.addAction(self.act_quit)
@@ -216,6 +225,7 @@ class MainWindow(QMainWindow):
             view_menu.addAction(dock.toggleViewAction())
         help_menu = bar.addMenu("&Help")
         help_menu.addAction(self.act_help)
+        help_menu.addAction(self.act_about)
 
         tools = self.addToolBar("Main")
         tools.setObjectName("main_toolbar")
@@ -457,6 +467,34 @@ class MainWindow(QMainWindow):
         if self.keeper:
             self.keeper.discard()
         return True
+
+    def open_sample(self, name: str) -> bool:
+        """Open a shipped sample as an untitled copy (saving asks where, so the sample stays as shipped)."""
+        if not self.keep_or_drop_changes():
+            return False
+        try:
+            doc = load_sample(name)
+        except DesignFileError as exc:
+            dialogs.show_error(self, "Cannot open sample", str(exc))
+            return False
+        self.set_document(doc, None)
+        if self.keeper:
+            self.keeper.discard()
+        self.statusBar().showMessage(f"Opened the sample {doc.title}; Save as keeps your changes", 8000)
+        return True
+
+    def about_text(self) -> str:
+        """Rich text for the About box: what Bandsketch is, and the versions it runs with."""
+        from PySide6.QtCore import qVersion
+
+        from bandsketch.engine.core.versions import versions
+
+        rows = {**versions(), "Qt": qVersion()}
+        table = "".join(f"<tr><td>{k}</td><td>{v}</td></tr>" for k, v in rows.items())
+        return ("<p><b>Bandsketch</b>: where an amplifier stage's −3 dB corners fall, which capacitor "
+                "sets each, and what to change. Results are estimates: confirm them by full simulation "
+                "and measurement before building.</p>"
+                f"<table cellspacing=4>{table}</table><p>MIT licence.</p>")
 
     def save(self) -> bool:
         """Save to the design's file (asking where if it has none); True if saved."""

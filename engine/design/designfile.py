@@ -232,27 +232,30 @@ def load_design(path) -> Document:
         message names the file and the first fault found.
     """
     path = Path(path)
+    name = path.name or str(path.resolve())  # "." and ".." have no name of their own
+    if path.is_dir():
+        raise DesignFileError(f"{name}: is a folder; give the design file in it (a .json file)")
     try:
         size = path.stat().st_size
         if size > MAX_FILE_BYTES:
-            raise DesignFileError(f"{path.name}: {size / 1e6:.1f} MB is larger than a design file can be "
+            raise DesignFileError(f"{name}: {size / 1e6:.1f} MB is larger than a design file can be "
                                   f"({MAX_FILE_BYTES // (1024 * 1024)} MiB)")
         raw = path.read_bytes()
     except OSError as exc:
-        raise DesignFileError(f"{path.name}: cannot be read ({exc.strerror or exc})") from None
+        raise DesignFileError(f"{name}: cannot be read ({exc.strerror or exc})") from None
     try:
         data = json.loads(raw.decode("utf-8"), parse_constant=_refuse_constant,
                           parse_int=_parse_int, object_pairs_hook=_refuse_duplicate_keys)
     except UnicodeDecodeError:
-        raise DesignFileError(f"{path.name}: is not UTF-8 text") from None
+        raise DesignFileError(f"{name}: is not UTF-8 text") from None
     except RecursionError:
-        raise DesignFileError(f"{path.name}: is nested too deeply to be a design") from None
+        raise DesignFileError(f"{name}: is nested too deeply to be a design") from None
     except json.JSONDecodeError as exc:
-        raise DesignFileError(f"{path.name}: is not valid JSON (line {exc.lineno}, column {exc.colno}: "
+        raise DesignFileError(f"{name}: is not valid JSON (line {exc.lineno}, column {exc.colno}: "
                               f"{exc.msg}); it may be truncated or damaged") from None
     except ValueError as exc:
-        raise DesignFileError(f"{path.name}: {exc}") from None
-    return document_from_dict(data, path.name)
+        raise DesignFileError(f"{name}: {exc}") from None
+    return document_from_dict(data, name)
 
 
 def _refuse_constant(name: str):

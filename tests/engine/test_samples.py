@@ -53,3 +53,14 @@ def test_analysis_runs(doc):
     if not hasattr(analysis, "analyze"):
         pytest.skip("bandsketch.engine.solve.analysis has no analyze() yet")
     analysis.analyze(design_to_circuit(doc))
+
+
+def test_the_shipped_samples_are_the_repository_folder():
+    # bandsketch.samples is sample_designs/ (pyproject's package-dir); listing and loading go
+    # through importlib.resources, so they work the same from a wheel.
+    from bandsketch.engine.design.samples import list_samples, load_sample
+
+    assert [s.name for s in list_samples()] == [p.stem for p in SAMPLES]
+    for s, path in zip(list_samples(), SAMPLES):
+        assert load_sample(s.name).title == load_design(path).title == s.title
+        assert s.summary.endswith(".") and "\n" not in s.summary
