@@ -260,7 +260,15 @@ def _report_path(text: str) -> str:
 def _report(args) -> int:
     from bandsketch.engine.present.report import write_report
 
-    write_report(_load(args), args.output, samples=args.samples, seed=args.seed)
+    doc = _load(args)
+    if args.output.lower().endswith(".pdf"):
+        from .gui import offscreen_application
+        from .advisor.export import export_report
+
+        offscreen_application()
+        export_report(doc, args.output)
+    else:
+        write_report(doc, args.output, samples=args.samples, seed=args.seed)
     print(f"bandsketch: wrote {args.output}")
     return EXIT_OK
 

@@ -18,7 +18,16 @@ def _application():
         app = QApplication(sys.argv[:1])
     app.setOrganizationName("Bandsketch")
     app.setApplicationName("Bandsketch")
+    if app.platformName() == "offscreen":
+        _quiet_offscreen_notices()
     return app
+
+
+def offscreen_application():
+    """A QApplication on the offscreen platform (unless one runs already), for drawing
+    without a window: the command line's report."""
+    os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
+    return _application()
 
 
 def _quiet_offscreen_notices() -> None:
@@ -72,11 +81,7 @@ def run_gui(design_path: str | None = None, screenshot: str | None = None,
         Exit status: 0 on success, 2 if the design (for a screenshot) cannot be read, 1 if the
         picture cannot be written.
     """
-    if screenshot:
-        os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
-    app = _application()
-    if app.platformName() == "offscreen":
-        _quiet_offscreen_notices()
+    app = offscreen_application() if screenshot else _application()
 
     from PySide6.QtCore import QEventLoop, QTimer
 

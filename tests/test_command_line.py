@@ -81,7 +81,7 @@ def test_a_folder_is_named_and_refused(capsys, tmp_path, monkeypatch):
     monkeypatch.chdir(tmp_path)
     code, _, err = run(capsys, "analyze", ".")
     assert code == EXIT_BAD_INPUT
-    assert err.startswith(f"bandsketch: {tmp_path}: is a folder")
+    assert err.startswith(f"bandsketch: {tmp_path}: cannot be read: it is a folder")
     assert "Traceback" not in err
 
 
@@ -168,3 +168,11 @@ def test_spread_reports_progress_on_stderr(capsys, monkeypatch):
     assert code == EXIT_OK
     assert "spread: 100 %" in err and "%" not in out.split("\n")[0].replace("0.135 %", "")
     assert "samples, seed 1" in out
+
+
+@pytest.mark.parametrize("name, magic", [("r.pdf", b"%PDF-"), ("r.html", b"<!DOCTYPE html>"), ("R.HTM", b"<!DOCTYPE html>")])
+def test_the_report_is_written_in_the_format_its_name_says(capsys, tmp_path, name, magic):
+    code, out, _ = run(capsys, "report", "--sample", "ce_hydrophone_preamp", "--samples", "200",
+                       "-o", str(tmp_path / name))
+    assert code == EXIT_OK and name in out
+    assert (tmp_path / name).read_bytes().startswith(magic)

@@ -234,7 +234,7 @@ def load_design(path) -> Document:
     path = Path(path)
     name = path.name or str(path.resolve())  # "." and ".." have no name of their own
     if path.is_dir():
-        raise DesignFileError(f"{name}: is a folder; give the design file in it (a .json file)")
+        raise DesignFileError(f"{name}: cannot be read: it is a folder; give the design file in it (a .json file)")
     try:
         size = path.stat().st_size
         if size > MAX_FILE_BYTES:
