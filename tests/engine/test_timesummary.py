@@ -1,4 +1,8 @@
-"""The time-domain figures on the command line, in JSON and as a CSV waveform."""
+"""The time-domain figures on the command line, in JSON and as a CSV waveform.
+
+These check that every output carries the engine's own figures unchanged (common practice,
+no source); the figures themselves are held to closed forms and scipy.signal in test_step.py.
+"""
 
 from __future__ import annotations
 
