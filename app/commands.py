@@ -13,9 +13,11 @@ from itertools import count
 from PySide6.QtGui import QUndoCommand, QUndoStack
 
 from bandsketch.engine.design.document import Document
+from bandsketch.engine.design.parts import Field
 
 from . import edits
 from .edits import Patch
+from .engine_link import FieldCheck, check_field
 
 _RUN_ID = 1
 _run_serials = count(1)
@@ -110,6 +112,19 @@ class Editor:
     def patch(self, patch: Patch, text: str) -> None:
         """Do a complete gesture described by ``patch``."""
         self.push(PatchCommand(self.doc, patch, text))
+
+    def commit_field(self, name: str, f: Field, text: str) -> FieldCheck:
+        """Set field ``f`` of part ``name`` to ``text`` as one step, if the engine reads it.
+
+        The one path a typed field takes into the document (Properties and the in-place
+        editor): the verdict is returned for the caller to show; an unreadable text, or one
+        that changes nothing, pushes no step.
+        """
+        part = self.doc.parts[name]
+        verdict = check_field(self.doc, part, f, text)
+        if verdict.ok and text.strip() != part.params.get(f.key, ""):
+            self.patch(edits.edit_field(self.doc, name, f.key, text.strip()), f"Set {name} {f.label}")
+        return verdict
 
     def finish(self) -> None:
         """A gesture pushed in pieces (a drag) is over."""

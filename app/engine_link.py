@@ -14,7 +14,7 @@ from bandsketch.engine.design.document import Document, Part
 from bandsketch.engine.core.errors import BadValueError, CircuitError
 from bandsketch.engine.design.parts import KINDS, Field
 from bandsketch.engine.core.values import format_value
-from bandsketch.engine.design.schema import is_numeric, parse_field
+from bandsketch.engine.design.schema import parse_field
 from bandsketch.engine.solve.dcop import operating_point
 
 
@@ -44,7 +44,7 @@ def check_field(doc: Document, part: Part, f: Field, text: str) -> FieldCheck:
         if other is None or other.kind != "vsource":
             return FieldCheck(False, f"{part.name} {f.label}: '{text}' is not a voltage source on this sheet; "
                                      "name the source whose current is sensed")
-    if not is_numeric(f):
+    if not f.numeric:
         return FieldCheck(True, text)
     if part.kind in devices.MODELS:
         try:
@@ -52,7 +52,7 @@ def check_field(doc: Document, part: Part, f: Field, text: str) -> FieldCheck:
         except BadValueError as exc:
             if exc.field == f.key:
                 return FieldCheck(False, exc.message)
-    return FieldCheck(True, _formatted(parse_field(part.name, f, text), f))
+    return FieldCheck(True, format_value(parse_field(part.name, f, text), f.unit))
 
 
 def shown_value(part: Part, f: Field, *, unit: bool = True) -> str:
@@ -61,20 +61,13 @@ def shown_value(part: Part, f: Field, *, unit: bool = True) -> str:
     ``unit=False`` leaves the unit off (a gain in V/V reads better as a bare number).
     """
     text = part.params.get(f.key, "")
-    if not is_numeric(f) or not text.strip():
+    if not f.numeric or not text.strip():
         return text
     try:
         value = parse_field(part.name, f, text)
     except BadValueError:
         return text
-    return _formatted(value, f) if unit else format_value(value)
-
-
-def _formatted(value: float, f: Field) -> str:
-    # A prefix before "1/V" would read as a prefixed volt, so that unit goes after a space.
-    if f.unit == "1/V":
-        return f"{format_value(value)} /V"
-    return format_value(value, f.unit)
+    return format_value(value, f.unit if unit else "")
 
 
 def connectivity_problems(doc: Document) -> list:

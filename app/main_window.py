@@ -406,8 +406,7 @@ class MainWindow(QMainWindow):
         """
         self.controller.set_mode(Mode.SELECT)
         self.scene.clearSelection()
-        previous = Document()
-        previous.replace_all(self.doc)
+        previous = self.doc.copy()
         try:
             self.doc.replace_all(doc)
         except Exception:

@@ -13,7 +13,7 @@ from PySide6.QtWidgets import (QCheckBox, QComboBox, QFormLayout, QGroupBox, QLa
 
 from bandsketch.engine.core.band import Band
 from bandsketch.engine.design.schema import sourcing_problem, text_problem
-from bandsketch.engine.design.document import Change, Document
+from bandsketch.engine.design.document import Change, ChangeKind, Document
 from bandsketch.engine.design.parts import KINDS, Field
 from bandsketch.engine.design.sourcing import DEFAULT_SERIES, SERIES_NAMES, tolerance_fraction
 from bandsketch.engine.advise.knobs import has_device_fields, is_design_choice
@@ -216,10 +216,10 @@ class PropertiesPanel(QWidget):
             self._design_form()
 
     def _on_change(self, change: Change) -> None:
-        if change.what == "reset":
+        if change.what is ChangeKind.RESET:
             self.show_selection((), ())
             return
-        if self.part_name is not None and change.what == "part_changed" and change.key == self.part_name:
+        if self.part_name is not None and change.what is ChangeKind.PART_CHANGED and change.key == self.part_name:
             self.part_name = change.new_key
         if self.part_name is not None and self.part_name not in self.doc.parts:
             self.show_selection((), ())
@@ -364,8 +364,7 @@ class PropertiesPanel(QWidget):
         for choice in f.choices:
             box.addItem(MODE_NAMES.get(choice, choice), choice)
         box.setCurrentIndex(box.findData(part.params.get(f.key)))
-        box.currentIndexChanged.connect(lambda i: self.editor.patch(
-            edits.edit_field(self.doc, self.part_name, f.key, box.itemData(i)), f"Set {self.part_name} {f.label}"))
+        box.currentIndexChanged.connect(lambda i: self.editor.commit_field(self.part_name, f, box.itemData(i)))
         return box
 
     def _sensed(self, part, f: Field) -> QComboBox:
@@ -382,13 +381,9 @@ class PropertiesPanel(QWidget):
 
     # -- committing ---------------------------------------------------------------------------
     def _set_field(self, entry: _Entry | None, f: Field, text: str) -> None:
-        part = self.doc.parts[self.part_name]
-        verdict = check_field(self.doc, part, f, text)
+        verdict = self.editor.commit_field(self.part_name, f, text)
         if entry is not None:
             entry.show_verdict(verdict.ok, verdict.shown)
-        if verdict.ok and text.strip() != part.params.get(f.key, ""):
-            self.editor.patch(edits.edit_field(self.doc, part.name, f.key, text.strip()),
-                              f"Set {part.name} {f.label}")
 
     def _rename(self, entry: _Entry, text: str) -> None:
         text = text.strip()

@@ -12,7 +12,7 @@ from __future__ import annotations
 
 from collections import Counter, defaultdict
 
-from bandsketch.engine.design.document import Change, Document
+from bandsketch.engine.design.document import PART_CHANGES, WIRE_CHANGES, Change, ChangeKind, Document
 
 Point = tuple[int, int]
 
@@ -104,12 +104,12 @@ class SheetIndex:
     # -- keeping up ----------------------------------------------------------------------
     def follow(self, change: Change) -> tuple[set, set]:
         """Bring the index up to date after one change; return the junctions (added, removed)."""
-        if change.what == "reset":
+        if change.what is ChangeKind.RESET:
             before = self.junctions
             self._reset()
             return self.junctions - before, before - self.junctions
         dirty: set = set()
-        if change.what in ("part_added", "part_removed", "part_changed"):
+        if change.what in PART_CHANGES:
             old = self._pins.pop(change.key, None)
             if old is not None:
                 self._drop_pins(old)
@@ -120,7 +120,7 @@ class SheetIndex:
                 new = tuple(part.pins().values())
                 self._add_pins(name, new)
                 dirty.update(new)
-        elif change.what in ("wire_added", "wire_removed", "wire_changed"):
+        elif change.what in WIRE_CHANGES:
             old = self._wires.get(change.key)
             if old is not None:
                 dirty |= self._wire_points(old)

@@ -22,14 +22,14 @@ from PySide6.QtWidgets import (QFormLayout, QGridLayout, QHBoxLayout, QHeaderVie
                                QLineEdit, QProgressBar, QPushButton, QSpinBox, QTableWidget,
                                QTableWidgetItem, QTabWidget, QVBoxLayout, QWidget)
 
-from bandsketch.engine.design.document import Document
+from bandsketch.engine.design.document import ChangeKind, Document
 from bandsketch.engine.core.errors import Cancelled, CircuitError
 from bandsketch.engine.present.plotdata import histogram_axis
 from bandsketch.engine.advise.sensitivity import FIGURE_TITLES, FIGURES, sensitivities
 from bandsketch.engine.design.schema import target_problem
 from bandsketch.engine.advise.search import search
 from bandsketch.engine.advise.suggest import suggest, verdict_line
-from bandsketch.engine.advise.targets import TARGET_LABELS, check_targets, parse_targets, value_text
+from bandsketch.engine.advise.targets import TARGET_LABELS, check_targets, parse_targets
 from bandsketch.engine.present.plotdata import bode_data
 from bandsketch.engine.advise.tolerance import spread_of_design
 from bandsketch.engine.core.values import format_value
@@ -50,14 +50,6 @@ def _hz(f) -> str:
 _SPREAD_TITLES = {"f_high": "f_H", "f_low": "f_L", "gain": "|A_m|"}
 _TARGET_FIELDS = (("f_high_min", "Minimum f_H", "e.g. 1M"), ("f_low_max", "Maximum f_L", "e.g. 20"),
                   ("gain", "Mid-band gain", "e.g. 100 or 40 dB"), ("gain_tolerance", "Gain tolerance", "e.g. 10 % or 1 dB"))
-
-
-def snapshot(doc: Document) -> Document:
-    """A copy of ``doc`` for a worker thread; later edits do not touch it."""
-    copy = Document(doc.title)
-    copy.replace_all(doc)
-    copy.description = doc.description
-    return copy
 
 
 class _Relay(QObject):
@@ -213,7 +205,7 @@ class AdvisorPanel(QWidget):
         self.editor.patch(edits.set_target(self.doc, key, text), f"Set {TARGET_LABELS[key]} target")
 
     def _doc_changed(self, change) -> None:
-        if change.what in ("meta", "reset"):
+        if change.what in (ChangeKind.SETTINGS, ChangeKind.RESET):
             self._show_targets()
 
     def _show_targets(self) -> None:
@@ -378,7 +370,7 @@ class AdvisorPanel(QWidget):
         targets = self._targets_now()
         if targets is None:
             return
-        doc = snapshot(self.doc)
+        doc = self.doc.copy()
         self._busy(True)
         self.jobs.start("suggest", lambda progress, cancel: suggest(doc, targets, progress=progress, cancel=cancel))
 
@@ -388,7 +380,7 @@ class AdvisorPanel(QWidget):
         if targets is None:
             return
         names = [n.strip() for n in self.search_knobs.text().replace(";", ",").split(",") if n.strip()] or None
-        doc = snapshot(self.doc)
+        doc = self.doc.copy()
         self._busy(True)
         self.jobs.start("search", lambda progress, cancel: search(doc, targets, names, progress=progress,
                                                                   cancel=cancel))
@@ -409,8 +401,8 @@ class AdvisorPanel(QWidget):
             unit = e.gain_unit
             first = s.changes[0]
             between = "" if first.lower is None or len(s.changes) > 1 else \
-                f"{first.knob.series}: {value_text(first.lower, first.knob.unit)} … {value_text(first.upper, first.knob.unit)}"
-            now = ", ".join(value_text(abs(c.knob.nominal), c.knob.unit) for c in s.changes)
+                f"{first.knob.series}: {format_value(first.lower, first.knob.unit)} … {format_value(first.upper, first.knob.unit)}"
+            now = ", ".join(format_value(abs(c.knob.nominal), c.knob.unit) for c in s.changes)
             cells = (s.label, now, between, _hz(e.f_high), _hz(e.f_low),
                      format_value(abs(e.gain), unit) if math.isfinite(e.gain) else "—",
                      ", ".join(d.text for d in e.devices) or "—",
@@ -514,7 +506,7 @@ class AdvisorPanel(QWidget):
 
     def run_spread(self) -> None:
         """Start the Monte Carlo on the worker thread."""
-        doc, samples, seed = snapshot(self.doc), self.samples.value(), self.seed.value()
+        doc, samples, seed = self.doc.copy(), self.samples.value(), self.seed.value()
         self.spread_button.setEnabled(False)
         self.cancel_button.setEnabled(True)
         self.spread_progress.setValue(0)
@@ -564,7 +556,7 @@ class AdvisorPanel(QWidget):
         from .export import export_report
 
         try:
-            export_report(snapshot(self.doc), path, self.pictures() if self.pictures else None, self.spread)
+            export_report(self.doc.copy(), path, self.pictures() if self.pictures else None, self.spread)
         except (CircuitError, OSError) as exc:
             message = f"The report was not written: {getattr(exc, 'message', None) or exc}"
         else:

@@ -85,13 +85,6 @@ class Outcome:
         return self.analysis is not None
 
 
-def snapshot(doc: Document) -> Document:
-    """A copy of ``doc`` that later edits do not touch (parts and wires are immutable values)."""
-    copy = Document(doc.title)
-    copy.replace_all(doc)
-    return copy
-
-
 def _problem_outcome(generation, doc, nets, message, parts=(), points=(), started=0.0) -> Outcome:
     return Outcome(generation, doc, nets, problem=message, problem_parts=tuple(parts),
                    problem_points=tuple(points), seconds=time.perf_counter() - started)
@@ -103,7 +96,7 @@ def analyse_design(doc: Document, generation: int = 0) -> Outcome:
     Parameters
     ----------
     doc : Document
-        A snapshot (see :func:`snapshot`): it is read from another thread.
+        A copy (:meth:`Document.copy`): it is read from another thread.
     generation : int
         Carried into the outcome.
     """
@@ -183,7 +176,7 @@ class AnalysisRunner(QObject):
     def request(self, doc: Document) -> None:
         """Analyse ``doc`` as it is now; a newer request supersedes this one."""
         self._generation += 1
-        job = (self._generation, snapshot(doc))
+        job = (self._generation, doc.copy())
         if self._running:
             self._pending = job
         else:

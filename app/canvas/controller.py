@@ -57,12 +57,6 @@ class _Drag:
     moved: bool = False
 
 
-def _copy(doc: Document) -> Document:
-    snapshot = Document()
-    snapshot.replace_all(doc)
-    return snapshot
-
-
 class CanvasController(QObject):
     """Owns the canvas mode and turns presses, drags and clicks into edits.
 
@@ -307,7 +301,7 @@ class CanvasController(QObject):
             item.setSelected(True)
         names, wires = self.scene.selected_names(), self.scene.selected_wire_ids()
         if names or wires:
-            self._drag = _Drag(new_run(), pos, _copy(self.doc), names, wires)
+            self._drag = _Drag(new_run(), pos, self.doc.copy(), names, wires)
         return True
 
     def _drag_to(self, pos: QPointF) -> None:

@@ -7,15 +7,14 @@ from PySide6.QtWidgets import QLabel, QLineEdit
 
 from bandsketch.engine.design.parts import KINDS
 
-from .. import edits
 from ..commands import Editor
-from ..engine_link import check_field, is_numeric, kind_fields
+from ..engine_link import kind_fields
 from .view import SchematicView
 
 
 def main_field(part):
     """The field a double-click edits: the part's first numeric field, or None."""
-    return next((f for f in kind_fields(part) if is_numeric(f) and f.key != "mode"), None)
+    return next((f for f in kind_fields(part) if f.numeric and f.key != "mode"), None)
 
 
 class InplaceEditor(QLineEdit):
@@ -54,8 +53,7 @@ class InplaceEditor(QLineEdit):
         if self.name not in doc.parts:
             self.close_editor()
             return True
-        part = doc.parts[self.name]
-        verdict = check_field(doc, part, self.field, self.text())
+        verdict = self._editor.commit_field(self.name, self.field, self.text())
         if not verdict.ok:
             self.setStyleSheet(f"QLineEdit {{ border: 2px solid {self._view.scene().theme.problem.name()}; }}")
             self.reason.setText(verdict.shown)
@@ -64,9 +62,6 @@ class InplaceEditor(QLineEdit):
             self.reason.move(self.x(), self.y() + self.height() + 2)
             self.reason.setVisible(True)
             return False
-        if self.text().strip() != part.params.get(self.field.key, ""):
-            self._editor.patch(edits.edit_field(doc, self.name, self.field.key, self.text().strip()),
-                               f"Set {self.name} {self.field.label}")
         self.close_editor()
         return True
 

@@ -9,7 +9,7 @@ from PySide6.QtGui import QPen
 from PySide6.QtWidgets import QGraphicsScene
 
 from bandsketch.engine.core.band import Band
-from bandsketch.engine.design.document import Change, Document
+from bandsketch.engine.design.document import Change, ChangeKind, Document
 from bandsketch.engine.design.parts import GRID
 
 from .. import edits
@@ -62,24 +62,24 @@ class SchematicScene(QGraphicsScene):
     def _on_change(self, change: Change) -> None:
         what, key = change.what, change.key
         added, removed = self.index.follow(change)
-        if what == "reset":
+        if what is ChangeKind.RESET:
             self._rebuild()
             return
-        if what == "part_added":
+        if what is ChangeKind.PART_ADDED:
             self._add_part(key)
-        elif what == "part_removed":
+        elif what is ChangeKind.PART_REMOVED:
             self.removeItem(self._parts.pop(key))
-        elif what == "part_changed":
+        elif what is ChangeKind.PART_CHANGED:
             item = self._parts.pop(key)
             self._parts[change.new_key] = item
             item.show(self.doc.parts[change.new_key], is_input=self.doc.input_source == change.new_key)
-        elif what == "wire_added":
+        elif what is ChangeKind.WIRE_ADDED:
             self._add_wire(key)
-        elif what == "wire_removed":
+        elif what is ChangeKind.WIRE_REMOVED:
             self.removeItem(self._wires.pop(key))
-        elif what == "wire_changed":
+        elif what is ChangeKind.WIRE_CHANGED:
             self._wires[key].show(self.doc.wires[key])
-        elif what == "meta":
+        elif what is ChangeKind.SETTINGS:
             for name, item in self._parts.items():
                 is_input = self.doc.input_source == name
                 if is_input != item.is_input:

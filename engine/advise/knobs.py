@@ -15,7 +15,7 @@ import math
 from dataclasses import dataclass
 
 from ..core.errors import BadValueError
-from ..core.values import parse_value
+from ..design.schema import parse_field
 from ..design.parts import KINDS
 from ..design.sourcing import series_of
 
@@ -26,7 +26,6 @@ DESIGN_CHOICES = frozenset({
 })
 """(kind, field key) pairs a designer chooses; every other numeric field is device physics."""
 
-_PARSER_UNITS = {"Ω", "F", "H", "S", "V/V", "A/A", "V", "A", "Hz", "K"}
 
 
 @dataclass(frozen=True)
@@ -107,8 +106,7 @@ def knobs(doc, only=None) -> tuple:
             if not text:
                 continue
             try:
-                value = parse_value(text, unit=f.unit if f.unit in _PARSER_UNITS else None, part=part.name,
-                                    field=f.label, allow_negative=f.allow_negative, allow_zero=True)
+                value = parse_field(part.name, f, text)
             except BadValueError:
                 continue
             if value == 0 or not math.isfinite(value):

@@ -17,7 +17,6 @@ from scipy.optimize import brentq
 
 from . import eseries
 from ..solve.analysis import analyze
-from ..design.document import Document
 from ..core.errors import BadValueError, Cancelled, CircuitError
 from ..design.netlist import design_to_circuit
 from ..core.values import format_value, parse_value
@@ -204,13 +203,6 @@ class TargetCheck:
     text: str
 
 
-def value_text(value: float, unit: str, digits: int = 3) -> str:
-    """A value with its unit; a per-volt value keeps its prefix apart from the unit."""
-    if unit == "1/V":
-        return f"{format_value(value, '', digits)} /V"
-    return format_value(value, unit, digits)
-
-
 def _corner_check(key, sym, op, target, exact, estimate) -> TargetCheck:
     minimum = key == "f_high_min"
     target_text = f"{sym} {op} {format_value(target, 'Hz')}"
@@ -293,8 +285,7 @@ _ROOT_XTOL = 1e-5
 """brentq's tolerance on ln(value): the root is found to 0.001 %."""
 def with_field(doc, part: str, key: str, text: str):
     """A copy of ``doc`` with one field's text changed (the original is not touched)."""
-    copy = Document(doc.title)
-    copy.replace_all(doc)
+    copy = doc.copy()
     copy.replace_part(part, copy.parts[part].with_params(**{key: text}))
     return copy
 
@@ -494,7 +485,7 @@ def remedy_for(doc, knob: Knob, target: str, targets: Targets, series: str | Non
     x0 = abs(knob.nominal)
     what = TARGET_LABELS[target]
     t_exact = _root(fig, estimate=False)
-    lo, hi = value_text(x0 / 10 ** SEARCH_DECADES, knob.unit), value_text(x0 * 10 ** SEARCH_DECADES, knob.unit)
+    lo, hi = format_value(x0 / 10 ** SEARCH_DECADES, knob.unit), format_value(x0 * 10 ** SEARCH_DECADES, knob.unit)
     if t_exact is None:
         return Remedy(target, knob, None, None, None, None, None,
                       f"no single value of {knob.label} from {lo} to {hi} meets the {what} target")
@@ -521,9 +512,9 @@ def remedy_for(doc, knob: Knob, target: str, targets: Targets, series: str | Non
         apply_value = _rounded_toward(exact, passes)
     apply_text = None if apply_value is None else format_value(sign * apply_value, "", digits=3)
     est_text = "the estimate has no answer in that range" if estimate is None else \
-        f"the estimate would say {value_text(estimate, knob.unit)}"
-    text = f"{knob.label} = {value_text(exact, knob.unit, 4)} meets it ({est_text})"
+        f"the estimate would say {format_value(estimate, knob.unit)}"
+    text = f"{knob.label} = {format_value(exact, knob.unit, 4)} meets it ({est_text})"
     if knob.standard:
-        text += (f"; {used}: {value_text(standard, knob.unit)}" if standard is not None
+        text += (f"; {used}: {format_value(standard, knob.unit)}" if standard is not None
                  else f"; no {used} value near it meets it")
     return Remedy(target, knob, exact, estimate, standard, used, apply_text, text)

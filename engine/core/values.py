@@ -44,6 +44,10 @@ _UNIT_NAMES = {
     "A/V2": "amperes per volt squared",  # A/V², as NFKC folds it
     "√V": "square-root volts",
 }
+UNITS = frozenset(_UNIT_NAMES)
+"""The units the value parser knows (a unit written in a text is checked against them); the one
+table the parser, the design schema, the advisor and the app read. A field in another unit
+(°C, %) is parsed unit-free."""
 # Siemens and amperes per volt are the same unit; a gm field takes either.
 _QUANTITY = {symbol: symbol for symbol in _UNIT_NAMES} | {"S": "A/V"}
 
@@ -240,7 +244,8 @@ def format_value(x: float, unit: str = "", digits: int = 3) -> str:
     x : float
         The value in the unit's SI base unit (ohms, farads, hertz, ...).
     unit : str, optional
-        The unit symbol to append (``"Ω"``, ``"F"``); none if empty.
+        The unit symbol to append (``"Ω"``, ``"F"``); none if empty. A per-volt value keeps
+        its prefix apart from the unit (``"20m /V"``), which would otherwise read as millivolts.
     digits : int, optional
         Significant figures to keep; trailing zeros are dropped.
 
@@ -258,6 +263,8 @@ def format_value(x: float, unit: str = "", digits: int = 3) -> str:
     """
     if digits < 1:
         raise ValueError(f"digits must be at least 1, not {digits}")
+    if unit == "1/V":
+        return f"{format_value(x, '', digits)} /V"
     x = float(x)
     if math.isnan(x):
         return "nan"
@@ -288,3 +295,38 @@ def format_value(x: float, unit: str = "", digits: int = 3) -> str:
 def _strip_zeros(number):
     """Drop trailing zeros after the decimal point, and the point if bare."""
     return number.rstrip("0").rstrip(".") if "." in number else number
+
+
+def db_unit(gain_unit: str) -> str:
+    """What 20·log10|H| is in.
+
+    Parameters
+    ----------
+    gain_unit : str
+        The gain's unit: ``"V/V"`` for a voltage input, ``"V/A"`` for a current input.
+
+    Returns
+    -------
+    str
+        ``"dBΩ"`` for a V/A transimpedance, ``"dB"`` otherwise.
+    """
+    return "dBΩ" if gain_unit == "V/A" else "dB"
+
+
+def error_text(estimate: float | None, exact: float | None) -> str:
+    """An estimate's error against the exact value, signed, in per cent.
+
+    Parameters
+    ----------
+    estimate, exact : float or None
+        The two values, in the same unit (Hz for a corner, s for a time).
+
+    Returns
+    -------
+    str
+        ``"+2.0 %"`` or ``"−13.9 %"`` (a minus sign, U+2212); empty when either value is
+        missing or the exact value is zero.
+    """
+    if estimate is None or not exact:
+        return ""
+    return f"{100 * (estimate - exact) / exact:+.1f} %".replace("-", "−")

@@ -9,6 +9,7 @@ immutable values; an edit replaces one with another, which is what makes undo ex
 from __future__ import annotations
 
 from dataclasses import dataclass, field, replace
+from enum import Enum
 from types import MappingProxyType
 from typing import Mapping
 
@@ -85,13 +86,31 @@ class Wire:
         object.__setattr__(self, "points", pts)
 
 
+class ChangeKind(Enum):
+    """What kind of primitive change a :class:`Change` announces."""
+
+    PART_ADDED = "part added"
+    PART_REMOVED = "part removed"
+    PART_CHANGED = "part changed"
+    WIRE_ADDED = "wire added"
+    WIRE_REMOVED = "wire removed"
+    WIRE_CHANGED = "wire changed"
+    SETTINGS = "settings"
+    """Title, description, input source, a band pin or a target."""
+    RESET = "reset"
+    """Everything at once (open, new, restore)."""
+
+
+PART_CHANGES = frozenset({ChangeKind.PART_ADDED, ChangeKind.PART_REMOVED, ChangeKind.PART_CHANGED})
+WIRE_CHANGES = frozenset({ChangeKind.WIRE_ADDED, ChangeKind.WIRE_REMOVED, ChangeKind.WIRE_CHANGED})
+
+
 @dataclass(frozen=True)
 class Change:
-    """What one primitive change touched: ``what`` is one of ``part_added``, ``part_removed``,
-    ``part_changed``, ``wire_added``, ``wire_removed``, ``wire_changed``, ``meta``, ``reset``;
-    ``key`` is the part name or wire id (for a rename, the old name; ``new_key`` the new)."""
+    """What one primitive change touched: ``what`` is its :class:`ChangeKind`; ``key`` is the
+    part name or wire id (for a rename, the old name; ``new_key`` the new)."""
 
-    what: str
+    what: ChangeKind
     key: object = None
     new_key: object = None
 
@@ -170,13 +189,13 @@ class Document:
             raise ValueError(problem)
         self._parts[part.name] = part
         self._lower[part.name.lower()] = part.name
-        self.changed.emit(Change("part_added", part.name))
+        self.changed.emit(Change(ChangeKind.PART_ADDED, part.name))
 
     def remove_part(self, name: str) -> Part:
         """Remove a part and return it."""
         part = self._parts.pop(name)
         del self._lower[name.lower()]
-        self.changed.emit(Change("part_removed", name))
+        self.changed.emit(Change(ChangeKind.PART_REMOVED, name))
         return part
 
     def replace_part(self, name: str, part: Part) -> None:
@@ -205,7 +224,7 @@ class Document:
             if self.input_source == name:
                 self.input_source = part.name
         self._parts[part.name] = part
-        self.changed.emit(Change("part_changed", name, part.name))
+        self.changed.emit(Change(ChangeKind.PART_CHANGED, name, part.name))
 
     def add_wire(self, wire: Wire) -> None:
         """Add a wire whose id is unused."""
@@ -214,12 +233,12 @@ class Document:
         _check(schema.wire_problem(wire.points))
         self._wires[wire.id] = wire
         self._next_wire = max(self._next_wire, wire.id + 1)
-        self.changed.emit(Change("wire_added", wire.id))
+        self.changed.emit(Change(ChangeKind.WIRE_ADDED, wire.id))
 
     def remove_wire(self, wire_id: int) -> Wire:
         """Remove a wire and return it."""
         wire = self._wires.pop(wire_id)
-        self.changed.emit(Change("wire_removed", wire_id))
+        self.changed.emit(Change(ChangeKind.WIRE_REMOVED, wire_id))
         return wire
 
     def replace_wire(self, wire: Wire) -> None:
@@ -228,7 +247,7 @@ class Document:
             raise KeyError(wire.id)
         _check(schema.wire_problem(wire.points))
         self._wires[wire.id] = wire
-        self.changed.emit(Change("wire_changed", wire.id))
+        self.changed.emit(Change(ChangeKind.WIRE_CHANGED, wire.id))
 
     def set_meta(self, **changes) -> None:
         """Change ``title``, ``description`` or ``input_source``."""
@@ -238,7 +257,7 @@ class Document:
             problem = None if value is None and key == "input_source" else schema.text_problem(value)
             _check(problem and f"the {key} {problem}")
             setattr(self, key, value)
-        self.changed.emit(Change("meta"))
+        self.changed.emit(Change(ChangeKind.SETTINGS))
 
     def set_band_pin(self, element: str, band: Band | str | None) -> None:
         """Pin ``element`` to ``Band.LOW`` or ``Band.HIGH`` (or their words), or unpin it with None."""
@@ -247,7 +266,7 @@ class Document:
         else:
             _check(schema.band_problem(element, band))
             self._band_pins[element] = Band(band)
-        self.changed.emit(Change("meta"))
+        self.changed.emit(Change(ChangeKind.SETTINGS))
 
     def set_target(self, key: str, text: str | None) -> None:
         """Set a target's text, or clear it with None or ''."""
@@ -258,7 +277,7 @@ class Document:
             self._targets[key] = text
         else:
             self._targets.pop(key, None)
-        self.changed.emit(Change("meta"))
+        self.changed.emit(Change(ChangeKind.SETTINGS))
 
     def replace_all(self, other: "Document") -> None:
         """Take every part, wire and setting of ``other`` (open, new, restore); one reset notice."""
@@ -271,7 +290,14 @@ class Document:
         self._band_pins = dict(other._band_pins)
         self._targets = dict(other._targets)
         self.read_version = other.read_version
-        self.changed.emit(Change("reset"))
+        self.changed.emit(Change(ChangeKind.RESET))
+
+    def copy(self) -> "Document":
+        """A copy that later edits of this document do not touch (parts and wires are immutable
+        values, so the copy shares them); it has its own signals, with nothing connected."""
+        twin = Document(self.title)
+        twin.replace_all(self)
+        return twin
 
     def finish_edit(self) -> None:
         """Announce that a user gesture is complete, so views may recompute."""

@@ -19,10 +19,11 @@ from __future__ import annotations
 
 import math
 import re
+import unicodedata
 
 from ..core.band import Band
 from ..core.errors import BadValueError
-from ..core.values import parse_value
+from ..core.values import UNITS, parse_value
 from .parts import KINDS, ROTATIONS, Field
 from .sourcing import KNOB_CHOICES, SERIES_NAMES, tolerance_fraction
 
@@ -36,10 +37,6 @@ NAME_RE = re.compile(r"[A-Za-z][A-Za-z0-9_]*")
 """What a part or net name may look like (whole, with ``fullmatch``): a letter, then letters, digits or _."""
 TARGET_KEYS = ("f_high_min", "f_low_max", "gain", "gain_tolerance")
 """Design targets a document may hold (texts, parsed by the engine's value parser)."""
-TEXT_UNITS = {"choice", "name", "net"}
-"""Field units that hold text, not a number."""
-_PARSER_UNITS = {"Ω", "F", "H", "S", "A/V", "V/V", "A/A", "V", "A", "Hz", "K", "", "1/V"}
-"""Units the value parser knows; other numeric fields (°C, %) are parsed unit-free."""
 
 
 def text_problem(text) -> str | None:
@@ -72,16 +69,11 @@ def name_problem(name) -> str | None:
     return None
 
 
-def is_numeric(f: Field) -> bool:
-    """Whether a field holds a number (rather than a choice or a name)."""
-    return f.unit not in TEXT_UNITS
-
-
 def parse_field(part_name: str, f: Field, text: str) -> float:
     """The value of a numeric field's text, raising BadValueError naming part and field."""
     return parse_value(
         text,
-        unit=f.unit if f.unit in _PARSER_UNITS else None,
+        unit=f.unit if unicodedata.normalize("NFKC", f.unit) in UNITS else None,
         part=part_name,
         field=f.label,
         allow_zero=f.allow_negative or f.optional,

@@ -18,7 +18,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from ..core.band import Band
-from ..core.values import format_value
+from ..core.values import db_unit, error_text, format_value
 from ..solve.mna import SHORT
 
 HALF_POWER_DB = 20 * math.log10(math.sqrt(2))
@@ -329,11 +329,6 @@ DB_FLOOR = -400.0
 """Where a transmission zero's −∞ dB is drawn: far below any view, and a finite number to plot."""
 
 
-def db_unit(gain_unit: str) -> str:
-    """What 20·log10|H| is in: ``"dB"`` for a V/V gain, ``"dBΩ"`` for a V/A transimpedance."""
-    return "dBΩ" if gain_unit == "V/A" else "dB"
-
-
 def _db(h) -> np.ndarray:
     with np.errstate(divide="ignore"):
         return np.maximum(20 * np.log10(np.abs(h)), DB_FLOOR)
@@ -538,15 +533,11 @@ def bar_data(analysis) -> BarData:
     return BarData(tuple(groups))
 
 
-def _error_text(est, exact) -> str:
-    return f"{100 * (est - exact) / exact:+.1f} %"
-
-
 def _corner_text(sym: str, est, exact) -> str:
     est, exact = _positive(est), _positive(exact)
     if est and exact:
         return (f"{sym} ≈ {format_value(est, 'Hz')} estimated, {format_value(exact, 'Hz')} exact "
-                f"({_error_text(est, exact)})")
+                f"({error_text(est, exact)})")
     if est:
         return f"{sym} ≈ {format_value(est, 'Hz')} estimated; the exact gain never falls 3 dB"
     if exact:

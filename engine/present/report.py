@@ -23,13 +23,13 @@ from ..core.band import Band
 from ..solve.analysis import analyze
 from ..design.netlist import design_to_circuit
 from ..advise.partvalues import part_values
-from .plotdata import bar_data, bode_data, db_unit, verdict_data
+from .plotdata import bar_data, bode_data, verdict_data
 from .reportstep import step_section
 from ..advise.sensitivity import FIGURE_TITLES, sensitivities
 from ..advise.suggest import suggest, verdict_line
 from ..advise.targets import check_targets, parse_targets
 from ..advise.tolerance import spread_of_design
-from ..core.values import format_value
+from ..core.values import db_unit, error_text, format_value
 from .biasdata import BIAS_HEADINGS, bias_rows
 
 CAUTION = ("These are design estimates from a linear small-signal model. Confirm them by full "
@@ -213,7 +213,7 @@ def _bands_table(analysis) -> str:
 
 def _corners_table(analysis) -> str:
     def err(est, ex):
-        return "—" if not (est and ex) else f"{100 * (est - ex) / ex:+.1f} %"
+        return error_text(est, ex) or "—"
 
     rows = [("f_H", _fmt(analysis.f_high_estimate, "Hz"), _fmt(analysis.f_high_estimate_2nd, "Hz"),
              _fmt(analysis.f_high_exact, "Hz"), err(analysis.f_high_estimate, analysis.f_high_exact)),

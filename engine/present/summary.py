@@ -9,7 +9,7 @@ import numpy as np
 
 from ..core.band import Band
 from ..solve.mna import SHORT
-from ..core.values import format_value
+from ..core.values import db_unit, error_text, format_value
 from .biasdata import BIAS_HEADINGS, bias_rows
 
 _ELEMENT_UNITS = {"capacitance": "F", "inductance": "H", "resistance": "Ω", "time_constant": "s",
@@ -125,9 +125,8 @@ def _fmt(x, unit):
 
 
 def _error(estimate, exact):
-    if estimate is None or exact is None:
-        return ""
-    return f"(error {100 * (estimate / exact - 1):+.1f} %)".replace("-", "−")
+    text = error_text(estimate, exact)
+    return f"(error {text})" if text else ""
 
 
 ROOTS_LISTED_UP_TO = 40
@@ -167,7 +166,7 @@ def format_table(a, title: str | None = None) -> str:
     title : str, optional
         Heading; the circuit's title by default.
     """
-    unit, db = a.gain_unit, "dBΩ" if a.gain_unit == "V/A" else "dB"
+    unit, db = a.gain_unit, db_unit(a.gain_unit)
     lines = [title or a.title, ""]
     gain = f"{a.midband_gain:.4g}".replace("-", "−")
     level = f"{20 * math.log10(abs(a.midband_gain)):.1f}".replace("-", "−")

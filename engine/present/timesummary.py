@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import csv
 
-from ..core.values import format_value
+from ..core.values import error_text, format_value
 from .summary import _number
 
 ESTIMATE_KEYS = {"first order": "first_order", "second order": "second_order", "from f_H": "from_bandwidth"}
@@ -48,11 +48,10 @@ def figure_value_text(x, unit) -> str:
 
 def figure_error_text(f, estimate) -> str:
     """An estimate's error: "+13.9 %" for a time, "−0.1 pt" for a fraction; empty when missing."""
+    if f.unit != "fraction":
+        return error_text(estimate, f.exact)
     err = f.error(estimate)
-    if err is None:
-        return ""
-    text = f"{100 * err:+.1f} pt" if f.unit == "fraction" else f"{100 * err:+.1f} %"
-    return text.replace("-", "−")
+    return "" if err is None else f"{100 * err:+.1f} pt".replace("-", "−")
 
 
 def format_time_table(step, pulse=None) -> str:

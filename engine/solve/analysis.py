@@ -32,7 +32,7 @@ from . import step
 from .timeconstants import (FULL_MATRIX_LIMIT, factorize, open_circuit, port_columns, port_diagonal, port_weights,
                             short_circuit)
 from ..network.validate import validate
-from ..core.values import format_value
+from ..core.values import db_unit, format_value
 
 MAX_ROUNDS = 6
 """Classification rounds before the analysis gives up waiting for the bands to settle."""
@@ -760,7 +760,7 @@ def _results(stage, bands, est):
     oc, sc = est.open_circuit, est.short_circuit
     high = bands.members(stage, Band.HIGH)
     total_c = parallel_capacitance(bands.members(stage, Band.LOW))
-    unit_db = "dBΩ" if stage.gain_unit == "V/A" else "dB"
+    unit_db = db_unit(stage.gain_unit)
     position = {el.name: j for j, el in enumerate(high)}
     caps, inds = {}, {}
     for el in stage.reactive:

@@ -19,7 +19,7 @@ from bandsketch.app import dialogs
 from bandsketch.app.recovery import RecoveryKeeper
 from bandsketch.engine.core.errors import DesignFileError
 from bandsketch.engine.design.designfile import load_design, save_design
-from bandsketch.engine.design.document import Document
+from bandsketch.engine.design.document import ChangeKind, Document
 from sheet import place, snapshot
 
 CE_DESIGN = Path(__file__).with_name("invented_ce_stage.json")
@@ -114,7 +114,7 @@ def test_a_view_failing_on_an_opened_design_puts_the_old_one_back(qtbot, window,
     steps = window.stack.count()
 
     def broken(change):
-        if change.what == "reset" and window.doc.title == "not shown":
+        if change.what is ChangeKind.RESET and window.doc.title == "not shown":
             raise KeyError("a view could not draw it")
 
     window.doc.changed.connect(broken)
