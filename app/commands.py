@@ -126,6 +126,20 @@ class Editor:
             self.patch(edits.edit_field(self.doc, name, f.key, text.strip()), f"Set {name} {f.label}")
         return verdict
 
+    def rename(self, name: str, text: str) -> str | None:
+        """Rename part ``name`` to ``text`` as one step, if ``text`` may be its name.
+
+        The one path a typed name takes (Properties and the in-place editor): returns why
+        the name cannot be, or None (a name unchanged pushes no step).
+        """
+        text = text.strip()
+        if text == name:
+            return None
+        problem = self.doc.name_problem(text, current=name)
+        if problem is None:
+            self.push(RenameCommand(self.doc, name, text))
+        return problem
+
     def finish(self) -> None:
         """A gesture pushed in pieces (a drag) is over."""
         self.doc.finish_edit()

@@ -100,7 +100,7 @@ def pin_points(doc: Document) -> Counter:
     return Counter(pt for p in doc.parts.values() for pt in p.pins().values())
 
 
-def _on_segment(pt: Point, a: Point, b: Point) -> bool:
+def on_segment(pt: Point, a: Point, b: Point) -> bool:
     """Whether ``pt`` lies strictly inside the orthogonal segment a-b."""
     (x, y), (ax, ay), (bx, by) = pt, a, b
     if ax == bx == x:
@@ -341,7 +341,7 @@ def add_wire(doc: Document, points) -> Patch:
         for other in doc.wires.values():
             o = patch.wires.get(other.id, (None, other))[1]
             for i, (a, b) in enumerate(zip(o.points, o.points[1:])):
-                if _on_segment(end, a, b):
+                if on_segment(end, a, b):
                     split = o.points[: i + 1] + (end,) + o.points[i + 1:]
                     patch.wires[other.id] = (other, Wire(other.id, split))
                     break

@@ -107,6 +107,7 @@ class MainWindow(QMainWindow):
         self.controller.mode_changed.connect(self._mode_changed)
         self.controller.message.connect(lambda text: self.statusBar().showMessage(text, 6000))
         self.controller.value_edit_requested.connect(self.edit_value_in_place)
+        self.controller.name_edit_requested.connect(self.edit_name_in_place)
         self.stack.cleanChanged.connect(self._update_title)
         self.stack.indexChanged.connect(self._update_title)
         self.doc.edited.connect(self._update_problem_count)
@@ -161,7 +162,8 @@ class MainWindow(QMainWindow):
         self.act_duplicate = a("D&uplicate", self.duplicate, ["Ctrl+D"], "Copy and paste the selection at once")
         self.act_delete = a("&Delete", self.delete_selection, [K.Delete, "Backspace"], "Remove the selection")
         self.act_select_all = a("Select &all", self.select_all, [K.SelectAll])
-        self.act_rotate = a("&Rotate", lambda: self.turn(True), ["Ctrl+R"], "Turn the selection a quarter clockwise")
+        self.act_rotate = a("&Rotate", lambda: self.turn(True), ["T", "Ctrl+R"],
+                            "Turn the part being placed, or the selection, a quarter clockwise")
         self.act_mirror = a("&Mirror", lambda: self.turn(False), ["Ctrl+M"], "Flip the selection left to right")
         self.act_rename = a("Re&name…", self.rename_selected, ["F2"], "Rename the selected part")
         self.act_prefs = a("Pre&ferences…", self.show_preferences, [K.Preferences])
@@ -383,6 +385,11 @@ class MainWindow(QMainWindow):
         if main_field(part) is None:
             return
         self.inplace = InplaceEditor(self.view, self.editor, name)
+
+    def edit_name_in_place(self, name: str) -> None:
+        """Open the in-place editor on a part's name."""
+        self.scene.select([name])
+        self.inplace = InplaceEditor(self.view, self.editor, name, rename=True)
 
     def toggle_help(self) -> None:
         if self.help_dock.isVisible() and not self.help_dock.visibleRegion().isEmpty():

@@ -21,7 +21,7 @@ from bandsketch.engine.advise.tolerance import DEFAULT_TOLERANCES
 from bandsketch.engine.core.values import format_value
 
 from . import edits
-from .commands import Editor, RenameCommand, RunCommand, new_run
+from .commands import Editor, RunCommand, new_run
 from .engine_link import check_field, derived_values, kind_fields
 from .theme import Theme
 
@@ -386,14 +386,8 @@ class PropertiesPanel(QWidget):
             entry.show_verdict(verdict.ok, verdict.shown)
 
     def _rename(self, entry: _Entry, text: str) -> None:
-        text = text.strip()
-        if text == self.part_name:
-            entry.show_verdict(True, "")
-            return
-        problem = self.doc.name_problem(text, current=self.part_name)
+        problem = self.editor.rename(self.part_name, text)
         entry.show_verdict(problem is None, problem or "")
-        if problem is None:
-            self.editor.push(RenameCommand(self.doc, self.part_name, text))
 
     def _set_title(self, entry: _Entry, text: str) -> None:
         problem = text_problem(text)

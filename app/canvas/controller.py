@@ -15,12 +15,15 @@ from PySide6.QtGui import QColor, QPainterPath, QPen
 from PySide6.QtWidgets import QGraphicsEllipseItem, QGraphicsPathItem, QGraphicsRectItem
 
 from bandsketch.engine.design.document import Document, Part
-from bandsketch.engine.design.parts import KINDS
+from bandsketch.engine.design.parts import GRID, KINDS
 
 from .. import edits
 from ..commands import Editor, RunCommand, new_run
 from .items import Z_PREVIEW, PartItem, WireItem
-from .scene import SchematicScene
+from .scene import PIN_REACH, SchematicScene
+
+NEAR_MISS_PX = 12.0
+"""A wire click this many screen pixels from a pin (or a wire) lands on it, at any zoom."""
 
 
 class Mode(Enum):
@@ -74,6 +77,8 @@ class CanvasController(QObject):
     """A short hint or result for the status bar."""
     value_edit_requested = Signal(str)
     """The user asked to edit a part's value in place (its name)."""
+    name_edit_requested = Signal(str)
+    """The user asked to rename a part in place (its name)."""
 
     def __init__(self, scene: SchematicScene, editor: Editor):
         super().__init__()
@@ -134,7 +139,7 @@ class CanvasController(QObject):
         self._ghost.setVisible(False)
         self.scene.addItem(self._ghost)
         self.message.emit(f"Click to place {KINDS[template.kind].title.lower()}; "
-                          "Ctrl+R turns it, Esc stops")
+                          "T turns it, Ctrl+M mirrors it, Esc stops")
 
     def _drop_ghost(self) -> None:
         if self._ghost is not None:
@@ -244,7 +249,8 @@ class CanvasController(QObject):
         return False
 
     def double_click(self, event, pos: QPointF) -> bool:
-        """A double click: finishes a wire, or opens a part's value for editing."""
+        """A double click: finishes a wire, or opens a part's name (on its name text) or its
+        value (anywhere else on it) for editing."""
         if event.button() != Qt.MouseButton.LeftButton:
             return False
         if self.mode is Mode.WIRE:
@@ -253,7 +259,11 @@ class CanvasController(QObject):
         if self.mode is Mode.SELECT:
             item = self._item_at(pos)
             if isinstance(item, PartItem):
-                self.value_edit_requested.emit(item.name)
+                on_name = item.name_rect()
+                if on_name is not None and on_name.adjusted(-2, -2, 2, 2).contains(item.mapFromScene(pos)):
+                    self.name_edit_requested.emit(item.name)
+                else:
+                    self.value_edit_requested.emit(item.name)
                 return True
         return False
 
@@ -279,8 +289,9 @@ class CanvasController(QObject):
     def _select_press(self, pos: QPointF, shift: bool) -> bool:
         item = self._item_at(pos)
         pin = self.scene.pin_at(pos)
-        if pin is not None and not shift and not (isinstance(item, PartItem) and item.isSelected()):
-            # Pressing a pin starts a wire from it; the canvas goes back to Select when done.
+        if pin is not None and not shift:
+            # A pin starts a wire even on a selected part (the one just placed, say): a part
+            # moves by its body. The canvas goes back to Select when the wire is done.
             self._wire_return = Mode.SELECT
             self.mode = Mode.WIRE
             self.mode_changed.emit(self.mode)
@@ -330,15 +341,45 @@ class CanvasController(QObject):
         self.message.emit("Click a pin or grid point to start a wire; click to bend, "
                           "double-click or a pin to finish; Esc stops")
 
+    def _reach(self) -> float:
+        """How far (scene units) a wire click may miss a pin: a few pixels on screen, at
+        least :data:`PIN_REACH`, and under half a grid step apart from the pin's own point so
+        that the grid points beside a pin stay reachable."""
+        zoom = self.scene.views()[0].zoom() if self.scene.views() else 1.0
+        return min(max(PIN_REACH, NEAR_MISS_PX / zoom), 0.75 * GRID)
+
     def _anchor(self, pos: QPointF):
         """Where a click lands: a pin, a point on a wire, else the nearest grid point."""
-        pin = self.scene.pin_at(pos)
+        reach = self._reach()
+        pin = self.scene.pin_at(pos, reach)
         if pin is not None:
             return pin[2], True
-        on_wire = self.scene.wire_point_at(pos)
+        on_wire = self.scene.wire_point_at(pos, reach)
         if on_wire is not None:
             return on_wire, True
-        return (edits.snap(pos.x()), edits.snap(pos.y())), False
+        point = (edits.snap(pos.x()), edits.snap(pos.y()))
+        return point, point in edits.pin_points(self.doc)
+
+    def _landing(self, pos: QPointF):
+        """The points a click at ``pos`` adds to the wire, and whether they end on a
+        connection. A run that passes over a pin and stops a grid step or less beyond it,
+        on nothing, is a near miss: it ends on that pin, so no stub dangles past it."""
+        point, connects = self._anchor(pos)
+        route = self._route(point)
+        if connects:
+            return route, True
+        pins = edits.pin_points(self.doc)
+        pts = [self._wire[-1], *route]
+        left = sum(abs(b[0] - a[0]) + abs(b[1] - a[1]) for a, b in zip(pts, pts[1:]))
+        for i, (a, b) in enumerate(zip(pts, pts[1:])):
+            length = abs(b[0] - a[0]) + abs(b[1] - a[1])
+            for pin in pins:
+                if pin != a and edits.on_segment(pin, a, b):
+                    beyond = left - (abs(pin[0] - a[0]) + abs(pin[1] - a[1]))
+                    if beyond <= GRID:
+                        return [*route[:i], pin], True
+            left -= length
+        return route, False
 
     def _route(self, target) -> list:
         """Points from the wire's last point to ``target``, orthogonal with at most one bend."""
@@ -359,27 +400,30 @@ class CanvasController(QObject):
         return [corner, target]
 
     def _wire_click(self, pos: QPointF) -> None:
-        point, connects = self._anchor(pos)
         if not self._wire:
-            self._wire = [point]
+            self._wire = [self._anchor(pos)[0]]
             self._wire_hover(pos)
             return
-        if point == self._wire[-1]:
+        route, connects = self._landing(pos)
+        if route[-1] == self._wire[-1]:
             return
-        self._wire.extend(self._route(point))
+        self._wire.extend(route)
         if connects:
             self._finish_wire()
         else:
             self._wire_hover(pos)
 
     def _wire_hover(self, pos: QPointF) -> None:
-        point, connects = self._anchor(pos)
-        self._target.setVisible(connects)
-        self._target.setPos(*point)
         if not self._wire:
+            point, connects = self._anchor(pos)
+            self._target.setVisible(connects)
+            self._target.setPos(*point)
             self._preview.setVisible(False)
             return
-        pts = self._wire + self._route(point)
+        route, connects = self._landing(pos)
+        self._target.setVisible(connects)
+        self._target.setPos(*route[-1])
+        pts = self._wire + route
         path = QPainterPath(QPointF(*pts[0]))
         for pt in pts[1:]:
             path.lineTo(QPointF(*pt))

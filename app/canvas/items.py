@@ -217,6 +217,13 @@ class PartItem(_Lit, QGraphicsItem):
             self._texts[-1] = _Text(text, QPointF(body.right() + LABEL_GAP,
                                                   c.y() + nf.ascent() - nf.height() / 2), True)
 
+    def name_rect(self) -> QRectF | None:
+        """Where the part's name is written (item coordinates), or None if it shows none."""
+        if KINDS[self.part.kind].inside or not KINDS[self.part.kind].named or not self._texts:
+            return None
+        text, nf = self._texts[0], QFontMetricsF(name_font())
+        return QRectF(text.origin.x(), text.origin.y() - nf.ascent(), nf.horizontalAdvance(text.text), nf.height())
+
     def set_theme(self, theme: Theme, style: ResistorStyle) -> None:
         """Redraw in new colours or with another resistor style."""
         self._theme = theme

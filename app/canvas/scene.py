@@ -205,9 +205,10 @@ class SchematicScene(QGraphicsScene):
             if w in self._wires:
                 self._wires[w].setSelected(True)
 
-    def pin_at(self, pos: QPointF):
-        """The pin nearest ``pos`` within reach, as (part name, pin name, (x, y)), or None."""
-        best, best_d = None, PIN_REACH
+    def pin_at(self, pos: QPointF, reach: float = PIN_REACH):
+        """The pin nearest ``pos`` within ``reach`` (scene units), as (part name, pin name,
+        (x, y)), or None."""
+        best, best_d = None, reach
         for part in self.doc.parts.values():
             for pin, (x, y) in part.pins().items():
                 d = math.hypot(x - pos.x(), y - pos.y())
@@ -215,14 +216,14 @@ class SchematicScene(QGraphicsScene):
                     best, best_d = (part.name, pin, (x, y)), d
         return best
 
-    def wire_point_at(self, pos: QPointF):
-        """The grid point on a wire nearest ``pos`` within reach, or None."""
+    def wire_point_at(self, pos: QPointF, reach: float = PIN_REACH):
+        """The grid point on a wire nearest ``pos`` within ``reach`` (scene units), or None."""
         for w in self.doc.wires.values():
             for (ax, ay), (bx, by) in zip(w.points, w.points[1:]):
-                if ax == bx and abs(pos.x() - ax) <= PIN_REACH and min(ay, by) - PIN_REACH <= pos.y() <= max(ay, by) + PIN_REACH:
+                if ax == bx and abs(pos.x() - ax) <= reach and min(ay, by) - reach <= pos.y() <= max(ay, by) + reach:
                     y = min(max(edits.snap(pos.y()), min(ay, by)), max(ay, by))
                     return (ax, y)
-                if ay == by and abs(pos.y() - ay) <= PIN_REACH and min(ax, bx) - PIN_REACH <= pos.x() <= max(ax, bx) + PIN_REACH:
+                if ay == by and abs(pos.y() - ay) <= reach and min(ax, bx) - reach <= pos.x() <= max(ax, bx) + reach:
                     x = min(max(edits.snap(pos.x()), min(ax, bx)), max(ax, bx))
                     return (x, ay)
         return None
