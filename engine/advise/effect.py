@@ -101,6 +101,11 @@ def log_margin(check) -> float:
     Positive inside the target: ln(f_H / f_H,min), ln(f_L,max / f_L), or the gain's distance
     in dB to the nearer edge of its window converted to nepers (dB·ln 10 / 20). A missing
     corner (the gain never falls 3 dB there) meets its target by a wide margin.
+
+    Parameters
+    ----------
+    check : bandsketch.engine.advise.targets.TargetCheck
+        A judged target; its ``margin`` is a fraction for a corner, dB for the gain.
     """
     if check.margin is None:
         return 10.0
@@ -145,6 +150,16 @@ def effect_of(doc, targets: Targets) -> Effect:
 
 
 def effect_of_analysis(analysis, targets: Targets, doc) -> Effect:
-    """:func:`effect_of` for an analysis of ``doc`` already made."""
+    """:func:`effect_of` for an analysis of ``doc`` already made.
+
+    Parameters
+    ----------
+    analysis : bandsketch.engine.solve.analysis.Analysis
+        An analysis of ``doc``.
+    targets : bandsketch.engine.advise.targets.Targets
+        The targets, SI units (Hz; the gain in V/V, Ω for a current input).
+    doc : bandsketch.engine.design.document.Document
+        The design analysed (for its devices' bias regions).
+    """
     return Effect(analysis.f_high_exact, analysis.f_low_exact, float(analysis.midband_gain), analysis.gain_unit,
                   check_targets(targets, analysis, analysis.gain_unit), _devices(analysis, doc))

@@ -67,7 +67,15 @@ class Knob:
 
 
 def is_design_choice(kind: str, key: str) -> bool:
-    """Whether field ``key`` of a part of ``kind`` is the designer's choice by default."""
+    """Whether field ``key`` of a part of ``kind`` is the designer's choice by default.
+
+    Parameters
+    ----------
+    kind : str
+        Key into :data:`bandsketch.engine.design.parts.KINDS`.
+    key : str
+        The field's key (``"value"``, ``"isat"``).
+    """
     return (kind, key) in DESIGN_CHOICES
 
 
@@ -116,5 +124,11 @@ def knobs(doc, only=None) -> tuple:
 
 
 def has_device_fields(kind: str) -> bool:
-    """Whether a part of ``kind`` has any numeric field that is device physics."""
+    """Whether a part of ``kind`` has any numeric field that is device physics.
+
+    Parameters
+    ----------
+    kind : str
+        Key into :data:`bandsketch.engine.design.parts.KINDS`.
+    """
     return any(f.numeric and f.knob and not is_design_choice(kind, f.key) for f in KINDS[kind].fields)

@@ -108,13 +108,21 @@ def part_values(circuit) -> tuple:
     return tuple(out)
 
 
-def stamp_coefficient(element, value: float) -> float:
+def _stamp_coefficient(element, value: float) -> float:
     """The number an element's stamp is linear in: 1/R for a resistor, the value otherwise."""
     return 1.0 / value if isinstance(element, Resistor) else float(value)
 
 
 def with_value(element, value: float):
-    """A copy of ``element`` holding ``value`` (SI units) instead of its own number."""
+    """A copy of ``element`` holding ``value`` (SI units) instead of its own number.
+
+    Parameters
+    ----------
+    element : Resistor, Capacitor, Inductor or a controlled source
+        A resistor, capacitor, inductor or controlled source.
+    value : float
+        The new value in the element's SI unit (Ω, F, H, S, V/V ...).
+    """
     return replace(element, **{_VALUE_ATTR[type(element)][0]: value})
 
 
@@ -195,7 +203,7 @@ def parametric_system(circuit, names, states=None) -> ParametricSystem:
     coefs = np.zeros(k)
     for i, name in enumerate(names):
         el = circuit.elements[name]
-        p0 = stamp_coefficient(el, getattr(el, _VALUE_ATTR[type(el)][0]))
+        p0 = _stamp_coefficient(el, getattr(el, _VALUE_ATTR[type(el)][0]))
         # Doubling is exact in binary, so the difference is the pattern to rounding of the sums.
         p1 = 2.0 * p0 if p0 != 0 else 1.0
         other = build_system(circuit.with_elements({name: with_value(el, _value_for_coefficient(el, p1))}), states)
@@ -216,7 +224,7 @@ def coefficients_for(system: ParametricSystem, circuit, factors: np.ndarray) -> 
     circuit : bandsketch.engine.network.circuit.Circuit
         The circuit the system was read from (to know which elements are resistors).
     factors : numpy.ndarray
-        (m, k) value multipliers (1 = nominal), one row per sample.
+        (m, k) value multipliers (dimensionless, 1 = nominal), one row per sample.
 
     Returns
     -------

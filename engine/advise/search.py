@@ -11,7 +11,7 @@ the sheet, bias included, and only that full analysis decides. The answer is the
 combination that meets every target with the most margin, or the one that comes closest
 with what it still misses, or a plain statement that no combination in reach can.
 
-:func:`propose_knobs` picks the pair when the designer does not: the two knobs whose
+:func:`_propose_knobs` picks the pair when the designer does not: the two knobs whose
 sensitivities to the targets (failing ones weighted first) move them most independently.
 """
 
@@ -111,7 +111,7 @@ def _margins(targets: Targets, analysis, fh, fl, gain) -> np.ndarray:
     return np.min(np.vstack(cols), axis=0) if cols else np.zeros(np.size(gain))
 
 
-def propose_knobs(doc, targets: Targets, count: int = 2) -> tuple:
+def _propose_knobs(doc, targets: Targets, count: int = 2) -> tuple:
     """The knobs a search should try: the pair that moves the targets most independently.
 
     Each knob bought by value gets its row of sensitivities d ln(figure)/d ln(value) for
@@ -155,7 +155,7 @@ def search(doc, targets: Targets, chosen=None, *, span: float = SPAN_DECADES, li
         The design (not changed).
     targets : Targets
     chosen : sequence of str, optional
-        Two or three part names or knob labels; by default :func:`propose_knobs`.
+        Two or three part names or knob labels; by default :func:`_propose_knobs`.
     span : float
         Decades searched either side of each knob's present value.
     limit : int
@@ -181,7 +181,7 @@ def search(doc, targets: Targets, chosen=None, *, span: float = SPAN_DECADES, li
     if targets.is_empty():
         raise ValueError("the design has no targets to meet; set f_H, f_L or gain targets first")
     if chosen is None:
-        picked = propose_knobs(doc, targets)
+        picked = _propose_knobs(doc, targets)
     else:
         found = {k.label: k for k in knobs(doc)} | {k.part: k for k in knobs(doc) if k.key == "value"}
         missing = [n for n in chosen if n not in found]

@@ -145,7 +145,15 @@ class Advice:
 
 
 def apply_changes(doc, changes):
-    """A copy of ``doc`` with each :class:`Change` written into its field."""
+    """A copy of ``doc`` with each :class:`Change` written into its field.
+
+    Parameters
+    ----------
+    doc : bandsketch.engine.design.document.Document
+        Not changed.
+    changes : sequence of Change
+        The values to write, SI units.
+    """
     out = doc
     for c in changes:
         out = with_field(out, c.knob.part, c.knob.key, c.text)
@@ -153,7 +161,13 @@ def apply_changes(doc, changes):
 
 
 def change_text(value: float) -> str:
-    """The field text for an applied value: the shortest that reads back exactly."""
+    """The field text for an applied value: the shortest that reads back exactly.
+
+    Parameters
+    ----------
+    value : float
+        The value in the field's SI unit.
+    """
     return format_value(value, "", digits=3) if float(f"{value:.3g}") == value else field_text(value)
 
 
@@ -162,6 +176,16 @@ def yield_of(doc, targets: Targets, samples: int = YIELD_SAMPLES, seed: int = 1)
 
     The design is analysed again from the sheet, then spread under its parts' tolerances
     (:func:`bandsketch.engine.advise.tolerance.design_tolerances`).
+
+    Parameters
+    ----------
+    doc : bandsketch.engine.design.document.Document
+    targets : bandsketch.engine.advise.targets.Targets
+        The targets, SI units (Hz; the gain in V/V, Ω for a current input).
+    samples : int
+        Monte Carlo samples.
+    seed : int
+        Seed of the random generator.
     """
     if targets.is_empty():
         return None
@@ -262,7 +286,12 @@ def _miss(check) -> str:
 
 
 def verdict_line(effect: Effect) -> str:
-    """``"meets every target"`` or what it misses and by how much, in words."""
+    """``"meets every target"`` or what it misses and by how much, in words.
+
+    Parameters
+    ----------
+    effect : bandsketch.engine.advise.effect.Effect
+    """
     if effect.problem:
         return f"cannot be analysed: {effect.problem}"
     missed = [_miss(c) for c in effect.checks if not c.passed]

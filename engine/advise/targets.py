@@ -284,14 +284,32 @@ SEARCH_DECADES = 2.0
 _ROOT_XTOL = 1e-5
 """brentq's tolerance on ln(value): the root is found to 0.001 %."""
 def with_field(doc, part: str, key: str, text: str):
-    """A copy of ``doc`` with one field's text changed (the original is not touched)."""
+    """A copy of ``doc`` with one field's text changed (the original is not touched).
+
+    Parameters
+    ----------
+    doc : bandsketch.engine.design.document.Document
+        Not changed.
+    part : str
+        The part's name.
+    key : str
+        The field's key.
+    text : str
+        The new field text (``"4k7"``).
+    """
     copy = doc.copy()
     copy.replace_part(part, copy.parts[part].with_params(**{key: text}))
     return copy
 
 
 def field_text(value: float) -> str:
-    """A field text for a trial value that reads back to 12 significant figures."""
+    """A field text for a trial value that reads back to 12 significant figures.
+
+    Parameters
+    ----------
+    value : float
+        The trial value in the field's SI unit.
+    """
     return f"{value:.12g}"
 
 
@@ -423,6 +441,16 @@ def exact_root(doc, knob: Knob, target: str, targets: Targets) -> float | None:
     The same search as :func:`values_that_meet` (within :data:`SEARCH_DECADES` decades
     either way of the present value), without the estimate's answer or a standard value;
     None when no value in reach meets the target.
+
+    Parameters
+    ----------
+    doc : bandsketch.engine.design.document.Document
+    knob : bandsketch.engine.advise.knobs.Knob
+        The value searched (SI units).
+    target : str
+        Which target: ``"f_high_min"``, ``"f_low_max"`` or ``"gain"``.
+    targets : bandsketch.engine.advise.targets.Targets
+        The targets, SI units (Hz; the gain in V/V, Ω for a current input).
     """
     fig = _Figure(doc, knob, target, targets)
     t = _root(fig, estimate=False)
@@ -473,13 +501,13 @@ def values_that_meet(doc, target: str, targets: Targets, series: str | None = No
     for i, knob in enumerate(all_knobs):
         if cancel is not None and cancel():
             raise Cancelled()
-        found.append(remedy_for(doc, knob, target, targets, series))
+        found.append(_remedy_for(doc, knob, target, targets, series))
         if progress is not None:
             progress(i + 1, len(all_knobs))
     return tuple(sorted(found, key=lambda r: (r.exact_value is None, r.change, r.knob.label)))
 
 
-def remedy_for(doc, knob: Knob, target: str, targets: Targets, series: str | None = None) -> Remedy:
+def _remedy_for(doc, knob: Knob, target: str, targets: Targets, series: str | None = None) -> Remedy:
     """The value of one knob that alone meets ``target`` (see :func:`values_that_meet`)."""
     fig = _Figure(doc, knob, target, targets)
     x0 = abs(knob.nominal)

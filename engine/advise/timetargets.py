@@ -52,7 +52,13 @@ class TimeTargets:
 
 def parse_time_targets(texts) -> TimeTargets:
     """Read ``{"rise_time_max": "20n", "overshoot_max": "5 %", ...}``; a bad text is a
-    :class:`BadValueError` naming the target."""
+    :class:`BadValueError` naming the target.
+
+    Parameters
+    ----------
+    texts : Mapping[str, str]
+        Target key -> text: times in s (``"20n"``), overshoot as a per cent (``"5 %"``).
+    """
     values = {}
     for key, text in dict(texts).items():
         if key not in TIME_TARGETS:
@@ -84,7 +90,14 @@ def _estimate(step, attr):
 
 
 def check_time_targets(targets: TimeTargets, step) -> tuple[TargetCheck, ...]:
-    """Each set target judged on the exact figures of ``step`` (a StepResponse)."""
+    """Each set target judged on the exact figures of ``step`` (a StepResponse).
+
+    Parameters
+    ----------
+    targets : TimeTargets
+        Times in s, the overshoot a fraction of the final value.
+    step : bandsketch.engine.solve.step.StepResponse
+    """
     out = []
     for key, (sym, attr, unit) in TIME_TARGETS.items():
         target = getattr(targets, key)
@@ -112,7 +125,13 @@ def check_time_targets(targets: TimeTargets, step) -> tuple[TargetCheck, ...]:
 
 def rise_time_sensitivities(sens) -> dict[str, float]:
     """Part value label -> d ln t_r,est / d ln x (per cent per per cent) from the adjoint
-    sensitivities (:func:`bandsketch.engine.advise.sensitivity.sensitivities`)."""
+    sensitivities (:func:`bandsketch.engine.advise.sensitivity.sensitivities`).
+
+    Parameters
+    ----------
+    sens : bandsketch.engine.advise.sensitivity.Sensitivities
+        Normalised sensitivities (d ln f / d ln x, dimensionless).
+    """
     return {row.value.label: -row.high_estimate for row in sens.rows if row.high_estimate is not None}
 
 
@@ -120,6 +139,18 @@ def value_that_meets_time_target(doc, part: str, key: str, target_key: str, targ
     """The value of ``part``'s field ``key`` (SI) whose exact step figure equals ``target``
     (``target_key`` one of :data:`TIME_TARGETS`), searched from 1/100 to 100 times the present
     value; None when no value in that range reaches it.
+
+    Parameters
+    ----------
+    doc : bandsketch.engine.design.document.Document
+    part : str
+        The part's name.
+    key : str
+        The field's key.
+    target_key : str
+        One of :data:`TIME_TARGETS`.
+    target : float
+        The figure wanted: a time in s, or a fraction of the final value.
 
     Raises
     ------

@@ -275,7 +275,7 @@ def exact_figures(circuit, analysis, elements, factors) -> tuple:
     elements : sequence of str
         The elements whose values are scaled (each one a part value, :func:`part_values`).
     factors : numpy.ndarray
-        (m, k) multipliers of those values, one row per variant.
+        (m, k) multipliers of those values (dimensionless, 1 = nominal), one row per variant.
 
     Returns
     -------
@@ -565,6 +565,11 @@ def spread_to_dict(spread: Spread) -> dict:
 
     Percentiles 0.135 and 99.865 are the ±3σ points of a normal distribution, the span
     designers usually quote; the spread itself need not be normal.
+
+    Parameters
+    ----------
+    spread : Spread
+        Frequencies in Hz, gains in the gain unit.
     """
     fh0, fl0, am0 = spread.nominal
     return {
@@ -584,13 +589,17 @@ def spread_to_dict(spread: Spread) -> dict:
 
 
 def spread_of_design(doc, samples: int = 10_000, seed: int = 1, **kw) -> Spread:
-    """:func:`monte_carlo` of a design document with its targets and its parts' tolerances."""
+    """:func:`monte_carlo` of a design document with its targets and its parts' tolerances.
+
+    Parameters
+    ----------
+    doc : bandsketch.engine.design.document.Document
+    samples : int
+        Monte Carlo samples.
+    seed : int
+        Seed of the random generator.
+    """
     circuit = design_to_circuit(doc)
     analysis = analyze(circuit, bands=dict(doc.band_pins))
     return monte_carlo(circuit, analysis, design_tolerances(doc, circuit), samples=samples, seed=seed,
                        targets=parse_targets(doc.targets), gain_unit=analysis.gain_unit, **kw)
-
-
-def spread_summary(doc, samples: int = 10_000, seed: int = 1) -> dict:
-    """The tolerance spread of a design as a JSON-ready dict (see :func:`spread_to_dict`)."""
-    return spread_to_dict(spread_of_design(doc, samples, seed))

@@ -45,7 +45,12 @@ MAX_PARTS = 20000
 
 
 def document_to_dict(doc: Document) -> dict:
-    """The JSON-ready form of a document."""
+    """The JSON-ready form of a document.
+
+    Parameters
+    ----------
+    doc : bandsketch.engine.design.document.Document
+    """
     return {
         "format": FORMAT_NAME,
         "version": FORMAT_VERSION,
@@ -225,6 +230,11 @@ def _document_from_dict(data) -> Document:
 def load_design(path) -> Document:
     """Read a design file.
 
+    Parameters
+    ----------
+    path : str or os.PathLike
+        The design file.
+
     Raises
     ------
     DesignFileError
@@ -281,6 +291,12 @@ def _refuse_duplicate_keys(pairs) -> dict:
 
 def save_design(doc: Document, path) -> None:
     """Write a design file atomically (temporary file, fsync, rename).
+
+    Parameters
+    ----------
+    doc : bandsketch.engine.design.document.Document
+    path : str or os.PathLike
+        Where to write it.
 
     Raises
     ------

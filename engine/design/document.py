@@ -116,7 +116,13 @@ class Change:
 
 
 class Document:
-    """A design: parts, wires, the chosen input source, band pins, targets and a title."""
+    """A design: parts, wires, the chosen input source, band pins, targets and a title.
+
+    Parameters
+    ----------
+    title : str
+        What the design is called (shown in the window's title and the report).
+    """
 
     def __init__(self, title: str = "Untitled design") -> None:
         self.changed = Signal()
@@ -159,7 +165,13 @@ class Document:
         return not self._parts and not self._wires
 
     def new_name(self, kind: str) -> str:
-        """The lowest free automatic name for a new part of ``kind`` (R1, R2 ... C1 ...)."""
+        """The lowest free automatic name for a new part of ``kind`` (R1, R2 ... C1 ...).
+
+        Parameters
+        ----------
+        kind : str
+            Key into :data:`bandsketch.engine.design.parts.KINDS`.
+        """
         prefix = KINDS[kind].prefix
         n = 1
         while f"{prefix}{n}".lower() in self._lower:
@@ -167,7 +179,15 @@ class Document:
         return f"{prefix}{n}"
 
     def name_problem(self, name: str, current: str | None = None) -> str | None:
-        """Why ``name`` cannot be given to a part (now called ``current``), or None if it can."""
+        """Why ``name`` cannot be given to a part (now called ``current``), or None if it can.
+
+        Parameters
+        ----------
+        name : str
+            The proposed name.
+        current : str, optional
+            The part's present name (its own name is no clash).
+        """
         problem = schema.name_problem(name)
         if problem:
             return problem
@@ -183,7 +203,12 @@ class Document:
     # -- primitive changes (the undo commands call these) ---------------------
     # Each refuses, with ValueError and the schema's reason, what a design file could not hold.
     def add_part(self, part: Part) -> None:
-        """Add a part whose name is free and whose every field the schema accepts."""
+        """Add a part whose name is free and whose every field the schema accepts.
+
+        Parameters
+        ----------
+        part : Part
+        """
         problem = schema.part_problem(part) or self.name_problem(part.name)
         if problem:
             raise ValueError(problem)
@@ -192,14 +217,28 @@ class Document:
         self.changed.emit(Change(ChangeKind.PART_ADDED, part.name))
 
     def remove_part(self, name: str) -> Part:
-        """Remove a part and return it."""
+        """Remove a part and return it.
+
+        Parameters
+        ----------
+        name : str
+            The part's name.
+        """
         part = self._parts.pop(name)
         del self._lower[name.lower()]
         self.changed.emit(Change(ChangeKind.PART_REMOVED, name))
         return part
 
     def replace_part(self, name: str, part: Part) -> None:
-        """Replace part ``name`` by ``part`` (which may carry a new name), keeping its place."""
+        """Replace part ``name`` by ``part`` (which may carry a new name), keeping its place.
+
+        Parameters
+        ----------
+        name : str
+            The part's present name.
+        part : Part
+            Its replacement.
+        """
         old = self._parts[name]
         # Only what changed is judged again, so a drag of many parts stays cheap.
         changed = {k: v for k, v in part.params.items() if old.params.get(k) != v}
@@ -227,7 +266,12 @@ class Document:
         self.changed.emit(Change(ChangeKind.PART_CHANGED, name, part.name))
 
     def add_wire(self, wire: Wire) -> None:
-        """Add a wire whose id is unused."""
+        """Add a wire whose id is unused.
+
+        Parameters
+        ----------
+        wire : Wire
+        """
         if wire.id in self._wires:
             raise ValueError(f"wire id {wire.id} is taken")
         _check(schema.wire_problem(wire.points))
@@ -236,13 +280,23 @@ class Document:
         self.changed.emit(Change(ChangeKind.WIRE_ADDED, wire.id))
 
     def remove_wire(self, wire_id: int) -> Wire:
-        """Remove a wire and return it."""
+        """Remove a wire and return it.
+
+        Parameters
+        ----------
+        wire_id : int
+        """
         wire = self._wires.pop(wire_id)
         self.changed.emit(Change(ChangeKind.WIRE_REMOVED, wire_id))
         return wire
 
     def replace_wire(self, wire: Wire) -> None:
-        """Replace the wire with the same id."""
+        """Replace the wire with the same id.
+
+        Parameters
+        ----------
+        wire : Wire
+        """
         if wire.id not in self._wires:
             raise KeyError(wire.id)
         _check(schema.wire_problem(wire.points))
@@ -260,7 +314,14 @@ class Document:
         self.changed.emit(Change(ChangeKind.SETTINGS))
 
     def set_band_pin(self, element: str, band: Band | str | None) -> None:
-        """Pin ``element`` to ``Band.LOW`` or ``Band.HIGH`` (or their words), or unpin it with None."""
+        """Pin ``element`` to ``Band.LOW`` or ``Band.HIGH`` (or their words), or unpin it with None.
+
+        Parameters
+        ----------
+        element : str
+            A capacitor's or inductor's name (``C1``, ``Q1.cmu``).
+        band : Band, str or None
+        """
         if band is None:
             self._band_pins.pop(element, None)
         else:
@@ -269,7 +330,15 @@ class Document:
         self.changed.emit(Change(ChangeKind.SETTINGS))
 
     def set_target(self, key: str, text: str | None) -> None:
-        """Set a target's text, or clear it with None or ''."""
+        """Set a target's text, or clear it with None or ''.
+
+        Parameters
+        ----------
+        key : str
+            One of :data:`TARGET_KEYS`.
+        text : str or None
+            The value's text: Hz for a corner (``"1M"``), V/V or dB for the gain.
+        """
         if key not in TARGET_KEYS:
             raise KeyError(key)
         if text:
@@ -280,7 +349,13 @@ class Document:
         self.changed.emit(Change(ChangeKind.SETTINGS))
 
     def replace_all(self, other: "Document") -> None:
-        """Take every part, wire and setting of ``other`` (open, new, restore); one reset notice."""
+        """Take every part, wire and setting of ``other`` (open, new, restore); one reset notice.
+
+        Parameters
+        ----------
+        other : Document
+            Not changed.
+        """
         self._parts = dict(other._parts)
         self._lower = dict(other._lower)
         self._wires = dict(other._wires)

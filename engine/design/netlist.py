@@ -64,7 +64,12 @@ class Netlist:
 
 
 def build_netlist(doc) -> Netlist:
-    """Join the pins and wires of ``doc`` into named nets."""
+    """Join the pins and wires of ``doc`` into named nets.
+
+    Parameters
+    ----------
+    doc : bandsketch.engine.design.document.Document
+    """
     uf = _Union()
     at_point = defaultdict(list)
     pin_pos = {}
@@ -183,6 +188,10 @@ def _circuit_and_errors(doc):
 def design_to_circuit(doc) -> Circuit:
     """The circuit a design draws, validated.
 
+    Parameters
+    ----------
+    doc : bandsketch.engine.design.document.Document
+
     Raises
     ------
     CircuitError
@@ -202,6 +211,10 @@ def connectivity_problems(doc) -> list[Problem]:
     """Every problem that stops ``doc`` from being analysed, with sheet points to mark.
 
     Bad values are reported first; the circuit checks run only once every value reads.
+
+    Parameters
+    ----------
+    doc : bandsketch.engine.design.document.Document
     """
     c, nets, errors = _circuit_and_errors(doc)
     if not any(isinstance(e, BadValueError) for e in errors):
@@ -216,7 +229,14 @@ def connectivity_problems(doc) -> list[Problem]:
 
 def shorted_parts(doc, nets: Netlist | None = None) -> list[Problem]:
     """Parts whose pins all sit on one net: each does nothing in the circuit, which is
-    almost never what was meant, so each is a notice (the analysis still runs)."""
+    almost never what was meant, so each is a notice (the analysis still runs).
+
+    Parameters
+    ----------
+    doc : bandsketch.engine.design.document.Document
+    nets : Netlist, optional
+        The nets of ``doc``, if already built.
+    """
     nets = nets or build_netlist(doc)
     out = []
     for part in doc.parts.values():

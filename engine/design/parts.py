@@ -336,6 +336,15 @@ def transform_point(x: int, y: int, rotation: int, mirror: bool) -> tuple[int, i
     """Map a point of a part's own frame into the sheet's axes (before translation).
 
     Mirroring flips x first; rotation then turns clockwise on screen (y grows downwards).
+
+    Parameters
+    ----------
+    x, y : int
+        The point in the part's own frame, scene units.
+    rotation : int
+        Degrees clockwise: 0, 90, 180 or 270.
+    mirror : bool
+        Flipped left-to-right before rotating.
     """
     if mirror:
         x = -x

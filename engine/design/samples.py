@@ -60,6 +60,11 @@ def list_samples() -> tuple[Sample, ...]:
 def load_sample(name: str) -> Document:
     """The sample design called ``name`` (as :func:`list_samples` names it).
 
+    Parameters
+    ----------
+    name : str
+        The sample's name.
+
     Raises
     ------
     DesignFileError

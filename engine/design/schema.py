@@ -43,6 +43,11 @@ def text_problem(text) -> str | None:
     """Why ``text`` cannot be held by a design (not text, too long, a broken character), or None.
 
     The reason reads after a colon: ``f"{where}: {problem}"``.
+
+    Parameters
+    ----------
+    text : object
+        What a design would hold.
     """
     if not isinstance(text, str):
         return f"expected text, found {type(text).__name__}"
@@ -58,7 +63,13 @@ def text_problem(text) -> str | None:
 
 
 def name_problem(name) -> str | None:
-    """Why ``name`` cannot name a part or a net (whatever else the sheet holds), or None."""
+    """Why ``name`` cannot name a part or a net (whatever else the sheet holds), or None.
+
+    Parameters
+    ----------
+    name : object
+        The proposed name.
+    """
     problem = text_problem(name)
     if problem:
         return f"the name: {problem}"
@@ -70,7 +81,17 @@ def name_problem(name) -> str | None:
 
 
 def parse_field(part_name: str, f: Field, text: str) -> float:
-    """The value of a numeric field's text, raising BadValueError naming part and field."""
+    """The value of a numeric field's text, raising BadValueError naming part and field.
+
+    Parameters
+    ----------
+    part_name : str
+        For the message.
+    f : bandsketch.engine.design.parts.Field
+        Its ``unit`` is the value's SI unit.
+    text : str
+        As typed (``"4k7"``).
+    """
     return parse_value(
         text,
         unit=f.unit if unicodedata.normalize("NFKC", f.unit) in UNITS else None,
@@ -88,6 +109,17 @@ def field_problem(part_name: str, f: Field, text, *, typed: bool = True) -> str 
     name); ``typed=True`` adds what an entry accepts (a value where one is needed, and one
     that reads within the usable range). Neither asks the sheet: that a sensed source exists,
     or that a block's model accepts the value, is for the analysis (and the panel) to say.
+
+    Parameters
+    ----------
+    part_name : str
+        For the message.
+    f : bandsketch.engine.design.parts.Field
+        Its ``unit`` is the value's SI unit.
+    text : object
+        The field text.
+    typed : bool
+        Whether to judge it as an entry would (see above).
     """
     where = f"{part_name} {f.label}"
     problem = text_problem(text)
@@ -111,7 +143,17 @@ def field_problem(part_name: str, f: Field, text, *, typed: bool = True) -> str 
 
 def params_problem(kind: str, part_name: str, params) -> str | None:
     """Why a part of ``kind`` cannot hold these field texts (an unknown field, a text a design
-    cannot hold), or None."""
+    cannot hold), or None.
+
+    Parameters
+    ----------
+    kind : str
+        Key into :data:`bandsketch.engine.design.parts.KINDS`.
+    part_name : str
+        For the message.
+    params : Mapping[str, str]
+        Field key -> text.
+    """
     entry = KINDS[kind]
     known = {f.key: f for f in entry.fields}
     for key, text in params.items():
@@ -124,7 +166,13 @@ def params_problem(kind: str, part_name: str, params) -> str | None:
 
 
 def coordinate_problem(value) -> str | None:
-    """Why ``value`` cannot be a sheet coordinate (scene units), or None."""
+    """Why ``value`` cannot be a sheet coordinate (scene units), or None.
+
+    Parameters
+    ----------
+    value : object
+        The coordinate, scene units.
+    """
     if isinstance(value, bool) or not isinstance(value, (int, float)):
         return f"expected a number, found {type(value).__name__}"
     # abs() first: a huge JSON integer (10**400) cannot be turned into a float.
@@ -135,7 +183,13 @@ def coordinate_problem(value) -> str | None:
 
 
 def wire_problem(points) -> str | None:
-    """Why a wire cannot run through these (x, y) points, or None."""
+    """Why a wire cannot run through these (x, y) points, or None.
+
+    Parameters
+    ----------
+    points : sequence of (int, int)
+        Sheet points, scene units.
+    """
     if not 2 <= len(points) <= MAX_WIRE_POINTS:
         return f"a wire needs 2 to {MAX_WIRE_POINTS} points, not {len(points)}"
     for x, y in points:
@@ -146,7 +200,17 @@ def wire_problem(points) -> str | None:
 
 
 def placement_problem(part_name: str, rotation, mirror) -> str | None:
-    """Why a part cannot be turned or flipped so, or None."""
+    """Why a part cannot be turned or flipped so, or None.
+
+    Parameters
+    ----------
+    part_name : str
+        For the message.
+    rotation : object
+        Degrees clockwise: 0, 90, 180 or 270.
+    mirror : object
+        Flipped left-to-right (a bool).
+    """
     if isinstance(rotation, bool) or rotation not in ROTATIONS:
         return f"{part_name}: rotation {rotation!r} is not one of {ROTATIONS}"
     if not isinstance(mirror, bool):
@@ -155,7 +219,19 @@ def placement_problem(part_name: str, rotation, mirror) -> str | None:
 
 
 def sourcing_problem(knob, series, tolerance, part_name: str | None = None) -> str | None:
-    """Why a part cannot be bought and changed so (see :mod:`.sourcing`), or None."""
+    """Why a part cannot be bought and changed so (see :mod:`.sourcing`), or None.
+
+    Parameters
+    ----------
+    knob : object
+        One of :data:`~.sourcing.KNOB_CHOICES`.
+    series : object
+        An IEC 60063 series name (``"E24"``).
+    tolerance : object
+        A per cent text (``"5 %"``) or empty.
+    part_name : str, optional
+        For the message.
+    """
     who = f"{part_name} " if part_name else ""
     for key, text in (("knob", knob), ("series", series), ("tolerance", tolerance)):
         problem = text_problem(text)
@@ -173,7 +249,12 @@ def sourcing_problem(knob, series, tolerance, part_name: str | None = None) -> s
 
 
 def part_problem(part) -> str | None:
-    """Why a placed part (a :class:`~.document.Part`) cannot be in a design, or None."""
+    """Why a placed part (a :class:`~.document.Part`) cannot be in a design, or None.
+
+    Parameters
+    ----------
+    part : bandsketch.engine.design.document.Part
+    """
     if part.kind not in KINDS:
         return f"unknown kind {part.kind!r} (known: {', '.join(KINDS)})"
     problem = name_problem(part.name)
@@ -191,7 +272,15 @@ def part_problem(part) -> str | None:
 
 def band_problem(element, band) -> str | None:
     """Why ``element`` cannot be pinned to ``band``, or None (the element may be a block's
-    capacitor, ``Q1.cmu``, so only its text is judged)."""
+    capacitor, ``Q1.cmu``, so only its text is judged).
+
+    Parameters
+    ----------
+    element : object
+        The element's name.
+    band : object
+        A :class:`~bandsketch.engine.core.band.Band` or its word.
+    """
     problem = text_problem(element)
     if problem:
         return f"the pinned element's name: {problem}"
@@ -204,7 +293,15 @@ def band_problem(element, band) -> str | None:
 
 def target_problem(key, text) -> str | None:
     """Why ``text`` cannot be held as target ``key``, or None. Whether it reads as a value is
-    the advisor's to say, beside the target, as with any half-typed entry."""
+    the advisor's to say, beside the target, as with any half-typed entry.
+
+    Parameters
+    ----------
+    key : object
+        One of :data:`TARGET_KEYS`.
+    text : object
+        The target's text (``"1M"``, ``"40 dB"``).
+    """
     if key not in TARGET_KEYS:
         return f"unknown target {key!r} (known: {', '.join(TARGET_KEYS)})"
     problem = text_problem(text)

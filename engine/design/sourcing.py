@@ -68,7 +68,14 @@ class Sourcing:
 
 
 def series_of(kind: str, sourcing: Sourcing) -> str | None:
-    """The series a part of ``kind`` is bought from, or None for a kind not bought by value."""
+    """The series a part of ``kind`` is bought from, or None for a kind not bought by value.
+
+    Parameters
+    ----------
+    kind : str
+        Key into :data:`bandsketch.engine.design.parts.KINDS`.
+    sourcing : Sourcing
+    """
     if kind not in DEFAULT_SERIES:
         return None
     return sourcing.series or DEFAULT_SERIES[kind]
@@ -76,6 +83,13 @@ def series_of(kind: str, sourcing: Sourcing) -> str | None:
 
 def tolerance_fraction(text: str, part: str | None = None) -> float | None:
     """A tolerance text as a fraction (``"5 %"`` -> 0.05); None for an empty text.
+
+    Parameters
+    ----------
+    text : str
+        A per cent text (``"5 %"``).
+    part : str, optional
+        For the message.
 
     Raises
     ------

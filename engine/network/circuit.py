@@ -48,7 +48,7 @@ class LargeBlock:
     model: object
 
 
-def node_name(node) -> str:
+def _node_name(node) -> str:
     """Canonical node name: ``"0"`` for ground (``0``, ``gnd``, ``GND``, ``ground``)."""
     text = str(node).strip()
     if not text:
@@ -159,21 +159,63 @@ class Circuit:
         return parse_value(value, unit=unit, part=name, field=field, **kw)
 
     def resistor(self, name, a, b, value):
-        """Resistor of ``value`` Ω between nodes ``a`` and ``b``."""
-        return self._add(Resistor(name, node_name(a), node_name(b), self._value(name, "value", value, "Ω")))
+        """Resistor of ``value`` Ω between nodes ``a`` and ``b``.
+
+        Parameters
+        ----------
+        name : str
+            Unique element name (``R1``).
+        a, b : str or int
+            Node names; ``0`` or ``"0"`` is ground.
+        value : float or str
+            Resistance, Ω: a number or a text such as ``"4k7"``.
+        """
+        return self._add(Resistor(name, _node_name(a), _node_name(b), self._value(name, "value", value, "Ω")))
 
     def capacitor(self, name, a, b, value):
-        """Capacitor of ``value`` F between nodes ``a`` and ``b``."""
-        return self._add(Capacitor(name, node_name(a), node_name(b), self._value(name, "value", value, "F")))
+        """Capacitor of ``value`` F between nodes ``a`` and ``b``.
+
+        Parameters
+        ----------
+        name : str
+            Unique element name (``R1``).
+        a, b : str or int
+            Node names; ``0`` or ``"0"`` is ground.
+        value : float or str
+            Capacitance, F: a number or a text such as ``"2n2"``.
+        """
+        return self._add(Capacitor(name, _node_name(a), _node_name(b), self._value(name, "value", value, "F")))
 
     def inductor(self, name, a, b, value):
-        """Inductor of ``value`` H between nodes ``a`` and ``b``."""
-        return self._add(Inductor(name, node_name(a), node_name(b), self._value(name, "value", value, "H")))
+        """Inductor of ``value`` H between nodes ``a`` and ``b``.
+
+        Parameters
+        ----------
+        name : str
+            Unique element name (``R1``).
+        a, b : str or int
+            Node names; ``0`` or ``"0"`` is ground.
+        value : float or str
+            Inductance, H: a number or a text such as ``"10u"``.
+        """
+        return self._add(Inductor(name, _node_name(a), _node_name(b), self._value(name, "value", value, "H")))
 
     def vsource(self, name, p, n, dc=0.0, ac=1.0):
         """Independent voltage source: ``dc`` V at the operating point, ``ac`` V when it is
-        the input (a short in small signal otherwise)."""
-        el = self._add(VSource(name, node_name(p), node_name(n),
+        the input (a short in small signal otherwise).
+
+        Parameters
+        ----------
+        name : str
+            Unique element name (``R1``).
+        p, n : str or int
+            Positive and negative nodes.
+        dc : float or str
+            V at the operating point.
+        ac : float or str
+            V of the small signal when it is the input.
+        """
+        el = self._add(VSource(name, _node_name(p), _node_name(n),
                                self._value(name, "ac", ac, "V", allow_negative=True, allow_zero=True),
                                self._value(name, "dc", dc, "V", allow_negative=True, allow_zero=True)))
         self.input_name = self.input_name or name
@@ -181,8 +223,20 @@ class Circuit:
 
     def isource(self, name, into, out_of, dc=0.0, ac=1.0):
         """Independent current source pushing ``dc`` A into ``into`` at the operating point and
-        ``ac`` A when it is the input (an open in small signal otherwise)."""
-        el = self._add(ISource(name, node_name(into), node_name(out_of),
+        ``ac`` A when it is the input (an open in small signal otherwise).
+
+        Parameters
+        ----------
+        name : str
+            Unique element name (``R1``).
+        into, out_of : str or int
+            The node the current is pushed into and the node it leaves.
+        dc : float or str
+            A at the operating point.
+        ac : float or str
+            A of the small signal when it is the input.
+        """
+        el = self._add(ISource(name, _node_name(into), _node_name(out_of),
                                self._value(name, "ac", ac, "A", allow_negative=True, allow_zero=True),
                                self._value(name, "dc", dc, "A", allow_negative=True, allow_zero=True)))
         self.input_name = self.input_name or name
@@ -193,8 +247,17 @@ class Circuit:
 
         Rails of the same name are one rail: adding it again on the same node at the same
         voltage returns the rail already there. A rail is never the signal input.
+
+        Parameters
+        ----------
+        name : str
+            Unique element name (``R1``).
+        node : str or int
+            The node it holds.
+        dc : float or str
+            V against ground.
         """
-        node, value = node_name(node), self._value(name, "dc", dc, "V", allow_negative=True, allow_zero=True)
+        node, value = _node_name(node), self._value(name, "dc", dc, "V", allow_negative=True, allow_zero=True)
         old = self._elements.get(name)
         if isinstance(old, Rail) and old.p == node and old.dc == value:
             return old
@@ -204,23 +267,71 @@ class Circuit:
         return self._add(Rail(name, node, "0", 0.0, value))
 
     def vccs(self, name, out_p, out_n, ctl_p, ctl_n, gm):
-        """gm·(v(ctl_p) − v(ctl_n)) flowing from ``out_p`` through it to ``out_n``; gm in S."""
-        return self._add(VCCS(name, node_name(out_p), node_name(out_n), node_name(ctl_p), node_name(ctl_n),
+        """gm·(v(ctl_p) − v(ctl_n)) flowing from ``out_p`` through it to ``out_n``; gm in S.
+
+        Parameters
+        ----------
+        name : str
+            Unique element name (``R1``).
+        out_p, out_n : str or int
+            Output nodes.
+        ctl_p, ctl_n : str or int
+            Controlling nodes.
+        gm : float or str
+            Transconductance, S.
+        """
+        return self._add(VCCS(name, _node_name(out_p), _node_name(out_n), _node_name(ctl_p), _node_name(ctl_n),
                               self._value(name, "gm", gm, "S", allow_negative=True, allow_zero=True)))
 
     def vcvs(self, name, out_p, out_n, ctl_p, ctl_n, gain):
-        """v(out_p) − v(out_n) = gain·(v(ctl_p) − v(ctl_n)); gain in V/V."""
-        return self._add(VCVS(name, node_name(out_p), node_name(out_n), node_name(ctl_p), node_name(ctl_n),
+        """v(out_p) − v(out_n) = gain·(v(ctl_p) − v(ctl_n)); gain in V/V.
+
+        Parameters
+        ----------
+        name : str
+            Unique element name (``R1``).
+        out_p, out_n : str or int
+            Output nodes.
+        ctl_p, ctl_n : str or int
+            Controlling nodes.
+        gain : float or str
+            V/V.
+        """
+        return self._add(VCVS(name, _node_name(out_p), _node_name(out_n), _node_name(ctl_p), _node_name(ctl_n),
                               self._value(name, "gain", gain, "V/V", allow_negative=True, allow_zero=True)))
 
     def cccs(self, name, out_p, out_n, sensed_vsource, gain):
-        """gain·i(sensed_vsource) flowing from ``out_p`` through it to ``out_n``; gain in A/A."""
-        return self._add(CCCS(name, node_name(out_p), node_name(out_n), str(sensed_vsource),
+        """gain·i(sensed_vsource) flowing from ``out_p`` through it to ``out_n``; gain in A/A.
+
+        Parameters
+        ----------
+        name : str
+            Unique element name (``R1``).
+        out_p, out_n : str or int
+            Output nodes.
+        sensed_vsource : str
+            The voltage source whose current controls it.
+        gain : float or str
+            A/A.
+        """
+        return self._add(CCCS(name, _node_name(out_p), _node_name(out_n), str(sensed_vsource),
                               self._value(name, "gain", gain, "A/A", allow_negative=True, allow_zero=True)))
 
     def ccvs(self, name, out_p, out_n, sensed_vsource, r):
-        """v(out_p) − v(out_n) = r·i(sensed_vsource); r in Ω."""
-        return self._add(CCVS(name, node_name(out_p), node_name(out_n), str(sensed_vsource),
+        """v(out_p) − v(out_n) = r·i(sensed_vsource); r in Ω.
+
+        Parameters
+        ----------
+        name : str
+            Unique element name (``R1``).
+        out_p, out_n : str or int
+            Output nodes.
+        sensed_vsource : str
+            The voltage source whose current controls it.
+        r : float or str
+            Transresistance, Ω.
+        """
+        return self._add(CCVS(name, _node_name(out_p), _node_name(out_n), str(sensed_vsource),
                               self._value(name, "r", r, "Ω", allow_negative=True, allow_zero=True)))
 
     def _block(self, kind, name, pins, given):
@@ -230,7 +341,7 @@ class Circuit:
         if name in self._elements or name in self._blocks:
             raise CircuitError(f"the name {name} is used twice; give each part its own name", parts=(name,))
         given = {k: v for k, v in given.items() if v is not None}
-        pins = {k: node_name(v) for k, v in pins.items()}
+        pins = {k: _node_name(v) for k, v in pins.items()}
         model = MODELS[kind]
         if model.large is not None and block_mode(kind, given) == "bias":
             return self._large_block(kind, name, pins, model.large(name, given))
@@ -264,6 +375,17 @@ class Circuit:
         (s), ``cjc0`` (F), ``vjc`` (V), ``mjc``, ``temp`` (K), ``polarity`` ("npn" or "pnp").
         Returns the block; its ``values`` report g_m, r_π, r_o, C_π (for a block biased from
         the circuit, once an analysis or :func:`operating_point` has solved the bias).
+
+        Parameters
+        ----------
+        name : str
+            Unique element name (``R1``).
+        collector, base, emitter : str or int
+            Terminal nodes.
+        substrate : str or int
+            The node C_cs returns to; ground by default.
+        **values
+            Field values, SI units as listed above (numbers or texts).
         """
         return self._block("bjt", name, {"collector": collector, "base": base, "emitter": emitter,
                                          "substrate": substrate}, values)
@@ -275,22 +397,63 @@ class Circuit:
         ``lam`` or ``va``), or, to bias it from the circuit, the square-law model: ``vth``
         (V), ``kp`` (A/V²), optional ``lam`` (1/V), ``gamma`` (√V), ``phi`` (2φ_F, V),
         ``polarity`` ("n" or "p"); optional ``gmb``, ``cgs``, ``cgd``, ``cdb``, ``csb``.
+
+        Parameters
+        ----------
+        name : str
+            Unique element name (``R1``).
+        drain, gate, source : str or int
+            Terminal nodes.
+        bulk : str or int, optional
+            The bulk node; the source by default.
+        **values
+            Field values, SI units as listed above (numbers or texts).
         """
         return self._block("mosfet", name, {"drain": drain, "gate": gate, "source": source,
                                             "bulk": source if bulk is None else bulk}, values)
 
     def opamp(self, name, plus, minus, out, a0="100k", fu="10M", rout=None, rin=None):
-        """Single-pole op-amp: A(s) = A₀ / (1 + s A₀ / (2π f_u)), with optional r_out, r_in (Ω)."""
+        """Single-pole op-amp: A(s) = A₀ / (1 + s A₀ / (2π f_u)), with optional r_out, r_in (Ω).
+
+        Parameters
+        ----------
+        name : str
+            Unique element name (``R1``).
+        plus, minus, out : str or int
+            Non-inverting input, inverting input and output nodes.
+        a0 : float or str
+            Open-loop d.c. gain A₀, V/V.
+        fu : float or str
+            Unity-gain frequency f_u, Hz.
+        rout : float or str, optional
+            Output resistance, Ω (0 when absent).
+        rin : float or str, optional
+            Input resistance between the inputs, Ω (infinite when absent).
+        """
         return self._block("opamp", name, {"plus": plus, "minus": minus, "out": out},
                            {"a0": a0, "fu": fu, "rout": rout, "rin": rin})
 
     def input(self, source_name: str) -> None:
-        """Choose which independent source is the signal input."""
+        """Choose which independent source is the signal input.
+
+        Parameters
+        ----------
+        source_name : str
+            An independent voltage or current source of the circuit.
+        """
         self.input_name = source_name
 
     def output(self, p, n="0") -> None:
-        """Choose the output: v(p) − v(n); ``n`` defaults to ground."""
-        self.output_nodes = (node_name(p), node_name(n))
+        """Choose the output: v(p) − v(n); ``n`` defaults to ground.
+
+        Parameters
+        ----------
+        p : str or int
+            The output node.
+        n : str or int
+            The reference node; ground by default.
+        """
+        self.output_nodes = (_node_name(p), _node_name(n))
 
     def with_elements(self, replacements: dict) -> "Circuit":
         """A copy in which some primitive elements are replaced (same names), e.g. for what-if.

@@ -25,7 +25,13 @@ ELEMENTARY_CHARGE = 1.602176634e-19
 
 
 def thermal_voltage(temperature: float) -> float:
-    """Thermal voltage V_T = kT/q in volts at ``temperature`` in kelvin."""
+    """Thermal voltage V_T = kT/q in volts at ``temperature`` in kelvin.
+
+    Parameters
+    ----------
+    temperature : float
+        K.
+    """
     return BOLTZMANN * temperature / ELEMENTARY_CHARGE
 
 
@@ -154,7 +160,15 @@ _OPERATING_POINT_KEY = {"bjt": "ic", "mosfet": "id"}
 
 def block_mode(kind: str, given: dict) -> str:
     """The model mode a transistor's values ask for: ``"small_signal"``, ``"operating_point"``
-    or ``"bias"`` (from the circuit); as ``given["mode"]`` names it, else read from what is given."""
+    or ``"bias"`` (from the circuit); as ``given["mode"]`` names it, else read from what is given.
+
+    Parameters
+    ----------
+    kind : str
+        ``"bjt"`` or ``"mosfet"``.
+    given : dict
+        The block's field texts or numbers (SI units).
+    """
     mode = given.get("mode")
     if mode:
         return mode
@@ -238,7 +252,7 @@ class LargeBjt:
         return out
 
 
-def bjt_large(name: str, given: dict) -> LargeBjt:
+def _bjt_large(name: str, given: dict) -> LargeBjt:
     """Read a BJT's large-signal parameters: ``isat`` (A), ``beta``, optional ``beta_r``
     (default 1), ``va`` (V), ``temp`` (K, default 300), ``ft`` (Hz) or ``tf`` (s), ``cjc0``
     (F) with ``vjc`` (V, default 0.75) and ``mjc`` (default 0.33), ``cmu``, ``ccs`` (F),
@@ -275,7 +289,7 @@ class LargeMos:
         return {"gm": gm, "gmb": gmb, "ro": 1.0 / gds if gds > 0 else math.inf, **self.caps}
 
 
-def mosfet_large(name: str, given: dict) -> LargeMos:
+def _mosfet_large(name: str, given: dict) -> LargeMos:
     """Read a MOSFET's large-signal parameters: ``vth`` (V), ``kp`` (A/V²), optional ``lam``
     (1/V), ``gamma`` (√V) with ``phi`` (2φ_F, V, default 0.7), ``polarity`` (n or p) and the
     fixed ``cgs``, ``cgd``, ``cdb``, ``csb`` (F)."""
@@ -289,6 +303,13 @@ def mosfet_large(name: str, given: dict) -> LargeMos:
 
 def opamp_values(name: str, given: dict) -> dict:
     """Resolve a single-pole op-amp: ``a0`` (V/V), ``fu`` (Hz), optional ``rout``, ``rin`` (Ω).
+
+    Parameters
+    ----------
+    name : str
+        Block name, used in error messages.
+    given : dict
+        Field texts or numbers, units as above.
 
     Returns
     -------
@@ -384,8 +405,8 @@ class BlockModel:
 
 
 MODELS = MappingProxyType({
-    "bjt": BlockModel(bjt_values, _expand_bjt, bjt_large),
-    "mosfet": BlockModel(mosfet_values, _expand_mosfet, mosfet_large),
+    "bjt": BlockModel(bjt_values, _expand_bjt, _bjt_large),
+    "mosfet": BlockModel(mosfet_values, _expand_mosfet, _mosfet_large),
     "opamp": BlockModel(opamp_values, _expand_opamp),
 })
 """Every block kind's model, by kind."""
@@ -402,5 +423,10 @@ def expand(block: Block) -> list:
     pole node ``<block>.x`` driven by 1 S·(v₊ − v₋) with ``<block>.cp`` = 1/(2π f_p) F; an
     ideal A₀·v_x stage; r_out to the output. Zero capacitances and infinite resistances
     are left out.
+
+    Parameters
+    ----------
+    block : Block
+        A resolved block (SI values).
     """
     return MODELS[block.kind].expand(block)

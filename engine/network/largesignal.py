@@ -100,7 +100,13 @@ def bjt_currents(vbe, vbc, isat, beta, beta_r, va, vt):
 
 
 def bjt_region(vbe, vbc) -> str:
-    """The region a BJT is in, from its junction voltages (device polarity, V)."""
+    """The region a BJT is in, from its junction voltages (device polarity, V).
+
+    Parameters
+    ----------
+    vbe, vbc : float
+        Junction voltages, V (device polarity).
+    """
     be, bc = vbe > JUNCTION_ON, vbc > JUNCTION_ON
     if be and bc:
         return "saturated"
@@ -194,7 +200,15 @@ def mos_current(vgs, vds, vbs, vth0, kp, lam, gamma, phi):
 
 
 def mos_region(vgs, vds, vth) -> str:
-    """The region a MOSFET is in (device polarity, V): cut off, triode or saturation."""
+    """The region a MOSFET is in (device polarity, V): cut off, triode or saturation.
+
+    Parameters
+    ----------
+    vgs, vds : float
+        Terminal voltages, V (device polarity).
+    vth : float
+        Threshold voltage, V.
+    """
     vov = vgs - vth
     if vov <= 0:
         return "cut off"

@@ -27,6 +27,10 @@ def _electrical_pairs(el):
 def problems(circuit) -> list[CircuitError]:
     """Every problem that stops ``circuit`` from being analysed, most basic first.
 
+    Parameters
+    ----------
+    circuit : bandsketch.engine.network.circuit.Circuit
+
     Returns
     -------
     list of CircuitError
@@ -126,7 +130,12 @@ def problems(circuit) -> list[CircuitError]:
 
 
 def validate(circuit) -> None:
-    """Raise the first of :func:`problems` as a :class:`~bandsketch.engine.core.errors.CircuitError`, if any."""
+    """Raise the first of :func:`problems` as a :class:`~bandsketch.engine.core.errors.CircuitError`, if any.
+
+    Parameters
+    ----------
+    circuit : bandsketch.engine.network.circuit.Circuit
+    """
     found = problems(circuit)
     if found:
         raise found[0]

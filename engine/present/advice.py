@@ -60,7 +60,7 @@ def _effect(e) -> dict:
             "devices": [{"name": d.name, "region": d.region, "ok": d.ok} for d in e.devices]}
 
 
-def suggestion_to_dict(s) -> dict:
+def _suggestion_to_dict(s) -> dict:
     """One single-knob suggestion as JSON-ready data (SI numbers, null where there is none).
 
     Keys: ``part``, ``field``, ``value`` (as applied, SI), ``meets_all``, ``f_high``, ``f_low``
@@ -80,12 +80,20 @@ def suggestion_to_dict(s) -> dict:
 
 
 def advice_to_dict(advice, found=None) -> dict:
-    """The whole advice as JSON-ready data: ``suggestions`` (see :func:`suggestion_to_dict`),
+    """The whole advice as JSON-ready data: ``suggestions`` (see :func:`_suggestion_to_dict`),
     ``before`` (the design as it stands), ``unmet`` (targets no single knob meets), ``knobs``
-    and, after a search, ``combination`` (its ``changes``, verdict and ``text``)."""
+    and, after a search, ``combination`` (its ``changes``, verdict and ``text``).
+
+    Parameters
+    ----------
+    advice : Advice
+        From :func:`advise_design`.
+    found : bandsketch.engine.advise.search.SearchResult, optional
+        A search of knobs together, if one was run.
+    """
     out = {"before": _effect(advice.before), "meets_all_now": advice.before.meets_all,
            "knobs": [k.label for k in advice.knobs], "unmet": list(advice.unmet),
-           "suggestions": [suggestion_to_dict(s) for s in advice.suggestions]}
+           "suggestions": [_suggestion_to_dict(s) for s in advice.suggestions]}
     if found is not None:
         best = found.best
         out["combination"] = {
@@ -103,7 +111,17 @@ def _hz(f) -> str:
 
 
 def advice_table(advice, found=None, title: str = "") -> str:
-    """The advice as a plain-text table for a terminal."""
+    """The advice as a plain-text table for a terminal.
+
+    Parameters
+    ----------
+    advice : Advice
+        From :func:`advise_design`.
+    found : bandsketch.engine.advise.search.SearchResult, optional
+        A search of knobs together, if one was run.
+    title : str
+        Heading; none if empty.
+    """
     unit = advice.before.gain_unit
     lines = [f"Advice for {title}" if title else "Advice",
              f"now: f_H {_hz(advice.before.f_high)}, f_L {_hz(advice.before.f_low)}, "

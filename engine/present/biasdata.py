@@ -51,7 +51,7 @@ class BiasMarks:
     devices: Mapping
 
 
-def device_lines(bias) -> tuple:
+def _device_lines(bias) -> tuple:
     """The bias of one transistor in a few short lines (its own polarity)."""
     if bias.kind == "bjt":
         return (f"IC {format_value(bias.ic, 'A')}", f"VCE {format_value(bias.vce, 'V')}", bias.region)
@@ -82,7 +82,7 @@ def bias_marks(doc, netlist, point) -> BiasMarks:
     for name, bias in point.devices.items():
         wrong = bias.region != REGION_OK[bias.kind]
         said = next((w for w in point.warnings if w.startswith(f"{name} ")), None)
-        devices[name] = DeviceNote(device_lines(bias), said if wrong else None)
+        devices[name] = DeviceNote(_device_lines(bias), said if wrong else None)
     for part in doc.parts.values():
         # A rail's current is written once, beside the first of its symbols.
         net = KINDS[part.kind].joins(part.params) if part.kind == "rail" else None
@@ -93,7 +93,13 @@ def bias_marks(doc, netlist, point) -> BiasMarks:
 
 
 def bias_rows(point) -> tuple:
-    """Rows of the bias table: (device, region, current, V_BE/V_GS, V_CE/V_DS, g_m, r_o) as texts."""
+    """Rows of the bias table: (device, region, current, V_BE/V_GS, V_CE/V_DS, g_m, r_o) as texts.
+
+    Parameters
+    ----------
+    point : bandsketch.engine.solve.dcop.OperatingPoint
+        Currents in A, voltages in V.
+    """
     rows = []
     for name, b in point.devices.items():
         current, control, output = (b.ic, b.vbe, b.vce) if b.kind == "bjt" else (b.id, b.vgs, b.vds)

@@ -264,7 +264,13 @@ class VerdictData:
 
 
 def part_of(element: str) -> str:
-    """The sheet part an element belongs to: ``Q1`` for the block-internal ``Q1.cmu``."""
+    """The sheet part an element belongs to: ``Q1`` for the block-internal ``Q1.cmu``.
+
+    Parameters
+    ----------
+    element : str
+        An element's name.
+    """
     return element.split(".", 1)[0]
 
 
@@ -318,7 +324,12 @@ def sweep_range(analysis) -> tuple:
 
 
 def sweep_frequencies(analysis) -> np.ndarray:
-    """Log-spaced sweep frequencies (Hz) over :func:`sweep_range`."""
+    """Log-spaced sweep frequencies (Hz) over :func:`sweep_range`.
+
+    Parameters
+    ----------
+    analysis : bandsketch.engine.solve.analysis.Analysis
+    """
     lo, hi = sweep_range(analysis)
     decades = math.log10(hi / lo)
     n = int(min(MAX_POINTS, max(200, round(decades * POINTS_PER_DECADE))))
@@ -344,7 +355,12 @@ def _curve(f, h, reference_deg: float, anchor_hz: float) -> Curve:
 
 
 def midband_frequency(analysis) -> float:
-    """A frequency (Hz) inside the mid band: between the corners, or well clear of the only one."""
+    """A frequency (Hz) inside the mid band: between the corners, or well clear of the only one.
+
+    Parameters
+    ----------
+    analysis : bandsketch.engine.solve.analysis.Analysis
+    """
     f_lo = _positive(analysis.f_low_exact) or _positive(analysis.f_low_estimate)
     f_hi = _positive(analysis.f_high_exact) or _positive(analysis.f_high_estimate)
     if f_lo and f_hi:
@@ -520,7 +536,12 @@ def _group(band: Band, results: list, analysis, pairs: bool = False) -> BandGrou
 
 def bar_data(analysis) -> BarData:
     """The time-constant bars of ``analysis``: one group per band that has elements, and the
-    low band's pole–zero pairs in a group of their own after it."""
+    low band's pole–zero pairs in a group of their own after it.
+
+    Parameters
+    ----------
+    analysis : bandsketch.engine.solve.analysis.Analysis
+    """
     by_band: dict = {Band.HIGH: [], Band.LOW: [], Band.NEUTRAL: []}
     pairs = [r for r in analysis.elements.values() if r.pole_zero_pair]
     for r in analysis.elements.values():
@@ -639,6 +660,11 @@ def histogram_axis(hist) -> HistogramAxis:
 
     Labels use :func:`bandsketch.engine.core.values.format_value` with as many digits as it takes for
     neighbouring ticks to read differently.
+
+    Parameters
+    ----------
+    hist : bandsketch.engine.advise.tolerance.Histogram
+        Values in the figure's unit (Hz, or the gain unit).
     """
     marks = [float(hist.edges[0]), float(hist.edges[-1])] + [v for v, _ in hist.target_lines]
     if hist.nominal:

@@ -382,7 +382,14 @@ def build_report(doc, *, pictures: Pictures | None = None, samples: int = SPREAD
 
 
 def write_report(doc, path, **kw) -> None:
-    """Write :func:`build_report` of ``doc`` to ``path`` (UTF-8); keywords as for it."""
+    """Write :func:`build_report` of ``doc`` to ``path`` (UTF-8); keywords as for it.
+
+    Parameters
+    ----------
+    doc : bandsketch.engine.design.document.Document
+    path : str or os.PathLike
+        Where to write the HTML.
+    """
     text = build_report(doc, **kw)
     with open(path, "w", encoding="utf-8") as fh:
         fh.write(text)

@@ -24,7 +24,7 @@ def _e(text) -> str:
     return html.escape(str(text), quote=True)
 
 
-def step_svg(data) -> str:
+def _step_svg(data) -> str:
     """A :class:`~bandsketch.engine.present.stepdata.StepData` as an SVG picture."""
     t = data.time
     curves = [c for c in (data.exact, data.first_order, data.second_order) if c is not None]
@@ -76,7 +76,12 @@ def step_svg(data) -> str:
 
 
 def step_section(analysis) -> str:
-    """The section's HTML: the plot, then each figure exact and estimated with its error."""
+    """The section's HTML: the plot, then each figure exact and estimated with its error.
+
+    Parameters
+    ----------
+    analysis : bandsketch.engine.solve.analysis.Analysis
+    """
     try:
         step, pulse = time_responses(analysis)
     except CircuitError as exc:
@@ -97,7 +102,7 @@ def step_section(analysis) -> str:
                                       for i, v in enumerate(row)) + "</tr>")
     table.append("</table>")
     notes = "".join(f"<li>{_e(w)}</li>" for w in step.warnings)
-    return "\n".join([f"<figure>{step_svg(step_data(step))}</figure>", *table,
+    return "\n".join([f"<figure>{_step_svg(step_data(step))}</figure>", *table,
                       f'<p class="small">Sag for a pulse of {_e(format_value(pulse.width, "s"))}; '
                       'the sag estimate is ω<sub>L</sub>·T. Errors of times are relative, of '
                       'fractions in percentage points.</p>',

@@ -21,7 +21,7 @@ DC_PULSE_WIDTHS = 5.0
 """A stage with no low band gets a pulse this many step windows wide."""
 
 
-def time_unit(t_max: float) -> tuple[float, str]:
+def _time_unit(t_max: float) -> tuple[float, str]:
     """(scale in s, label): the unit a time axis reaching ``t_max`` s reads best in."""
     scale, label = _PREFIXES[0]
     for s, name in _PREFIXES:
@@ -127,8 +127,14 @@ def _pct(x) -> str:
 
 
 def step_data(step) -> StepData:
-    """The step plot's data from a :class:`~bandsketch.engine.solve.step.StepResponse`."""
-    scale, label = time_unit(float(step.t[-1]))
+    """The step plot's data from a :class:`~bandsketch.engine.solve.step.StepResponse`.
+
+    Parameters
+    ----------
+    step : bandsketch.engine.solve.step.StepResponse
+        Times in s, the output in the gain unit.
+    """
+    scale, label = _time_unit(float(step.t[-1]))
     final = step.final_value
     markers = []
     for when, level, name in ((step.time_10, 0.1, "10 %"), (step.time_90, 0.9, "90 %")):
@@ -146,7 +152,7 @@ def step_data(step) -> StepData:
                     final_text=format_value(final, "Ω" if step.gain_unit == "V/A" else "V/V"), warnings=step.warnings)
 
 
-def default_pulse_width(analysis, step) -> float:
+def _default_pulse_width(analysis, step) -> float:
     """s: wide enough for the low band's estimated sag to be 10 % (ω_L·T = 0.1); with no low
     band, :data:`DC_PULSE_WIDTHS` step windows."""
     omega = analysis.omega_low_estimate
@@ -155,9 +161,9 @@ def default_pulse_width(analysis, step) -> float:
     return DC_PULSE_WIDTHS * float(step.t[-1])
 
 
-def pulse_data(pulse) -> PulseData:
+def _pulse_data(pulse) -> PulseData:
     """The pulse plot's data from a :class:`~bandsketch.engine.solve.step.PulseResponse`."""
-    scale, label = time_unit(float(pulse.t[-1]))
+    scale, label = _time_unit(float(pulse.t[-1]))
     summary = (f"pulse {_s(pulse.width)} · sag {_pct(pulse.sag)} "
                f"(est. ω_L·T {_pct(pulse.sag_estimate)})")
     return PulseData(time=pulse.t / scale, time_label=label, exact=pulse.y / pulse.final_value,
@@ -166,7 +172,11 @@ def pulse_data(pulse) -> PulseData:
 
 def time_responses(analysis):
     """(StepResponse, PulseResponse) of an analysis: the step on the high band's time scale,
-    the pulse of :func:`default_pulse_width`.
+    the pulse of :func:`_default_pulse_width`.
+
+    Parameters
+    ----------
+    analysis : bandsketch.engine.solve.analysis.Analysis
 
     Raises
     ------
@@ -174,10 +184,15 @@ def time_responses(analysis):
         The stage has no step response (it is unstable).
     """
     step = analysis.step_response()
-    return step, analysis.pulse_response(default_pulse_width(analysis, step))
+    return step, analysis.pulse_response(_default_pulse_width(analysis, step))
 
 
 def time_views(analysis) -> tuple[StepData, PulseData]:
-    """Both time plots' data for an analysis (see :func:`time_responses`)."""
+    """Both time plots' data for an analysis (see :func:`time_responses`).
+
+    Parameters
+    ----------
+    analysis : bandsketch.engine.solve.analysis.Analysis
+    """
     step, pulse = time_responses(analysis)
-    return step_data(step), pulse_data(pulse)
+    return step_data(step), _pulse_data(pulse)

@@ -48,6 +48,10 @@ def analysis_to_dict(a) -> dict:
     ``time_constant: 0``). ``midband_states`` lists the elements shorted and opened in the
     mid-band network: every test picture is that network with its own element replaced by
     the test source, and the sources in ``zeroed`` zeroed.
+
+    Parameters
+    ----------
+    a : bandsketch.engine.solve.analysis.Analysis
     """
     gain = a.gain_unit
     states = {"shorted": [], "opened": []}
@@ -207,7 +211,14 @@ def format_table(a, title: str | None = None) -> str:
 
 
 def write_sweep_csv(a, path) -> None:
-    """Write the exact sweep to ``path``: frequency (Hz), |H| (gain unit), |H| (dB), phase (degrees)."""
+    """Write the exact sweep to ``path``: frequency (Hz), |H| (gain unit), |H| (dB), phase (degrees).
+
+    Parameters
+    ----------
+    a : bandsketch.engine.solve.analysis.Analysis
+    path : str or os.PathLike
+        Where to write the CSV.
+    """
     f, H = a.sweep_frequencies, a.sweep_response
     with open(path, "w", newline="", encoding="utf-8") as out:
         w = csv.writer(out)

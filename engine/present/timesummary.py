@@ -22,7 +22,13 @@ def _figure_dict(f) -> dict:
 def time_domain_dict(step, pulse=None) -> dict:
     """The step (and pulse) figures of ``step``/``pulse`` as plain data; times in s, the
     overshoot, undershoot and sag as fractions of the final value; each estimate's error
-    relative for a time, a difference for a fraction."""
+    relative for a time, a difference for a fraction.
+
+    Parameters
+    ----------
+    step : bandsketch.engine.solve.step.StepResponse
+    pulse : bandsketch.engine.solve.step.PulseResponse, optional
+    """
     out = {
         "method": step.method, "final_value": _number(step.final_value), "gain_unit": step.gain_unit,
         "window_s": _number(step.t[-1]), "points": int(step.t.size),
@@ -40,14 +46,30 @@ def time_domain_dict(step, pulse=None) -> dict:
 
 
 def figure_value_text(x, unit) -> str:
-    """A figure's value: a time with its prefix, a fraction in %; "—" when missing."""
+    """A figure's value: a time with its prefix, a fraction in %; "—" when missing.
+
+    Parameters
+    ----------
+    x : float or None
+        A time in s, or a fraction of the final value.
+    unit : str
+        ``"s"`` or ``"fraction"``.
+    """
     if x is None:
         return "—"
     return f"{100 * x:.2f} %" if unit == "fraction" else format_value(x, "s")
 
 
 def figure_error_text(f, estimate) -> str:
-    """An estimate's error: "+13.9 %" for a time, "−0.1 pt" for a fraction; empty when missing."""
+    """An estimate's error: "+13.9 %" for a time, "−0.1 pt" for a fraction; empty when missing.
+
+    Parameters
+    ----------
+    f : bandsketch.engine.solve.step.TimeFigure
+        The figure, exact; its ``unit`` is ``"s"`` or ``"fraction"``.
+    estimate : float or None
+        In the figure's unit (s, or a fraction).
+    """
     if f.unit != "fraction":
         return error_text(estimate, f.exact)
     err = f.error(estimate)
@@ -55,7 +77,13 @@ def figure_error_text(f, estimate) -> str:
 
 
 def format_time_table(step, pulse=None) -> str:
-    """The time-domain figures as a table: each figure exact, then each estimate with its error."""
+    """The time-domain figures as a table: each figure exact, then each estimate with its error.
+
+    Parameters
+    ----------
+    step : bandsketch.engine.solve.step.StepResponse
+    pulse : bandsketch.engine.solve.step.PulseResponse, optional
+    """
     lines = [f"Step response ({step.method}; final value {format_value(step.final_value, step.gain_unit)}, "
              f"window {format_value(float(step.t[-1]), 's')})"]
     figures = list(step.figures) + (list(pulse.figures) if pulse is not None else [])
@@ -74,7 +102,14 @@ def format_time_table(step, pulse=None) -> str:
 
 def write_step_csv(step, path) -> None:
     """Write the step waveform to ``path``: time (s), exact output, and the first- and
-    second-order estimates (gain unit; empty where not known)."""
+    second-order estimates (gain unit; empty where not known).
+
+    Parameters
+    ----------
+    step : bandsketch.engine.solve.step.StepResponse
+    path : str or os.PathLike
+        Where to write the CSV.
+    """
     unit = step.gain_unit.replace("/", "_per_")
     with open(path, "w", newline="", encoding="utf-8") as out:
         w = csv.writer(out)

@@ -249,7 +249,13 @@ class Analysis:
         return MappingProxyType({**self.capacitors, **self.inductors})
 
     def response(self, freqs) -> np.ndarray:
-        """Exact complex H (gain unit) of the full network at ``freqs`` (Hz)."""
+        """Exact complex H (gain unit) of the full network at ``freqs`` (Hz).
+
+        Parameters
+        ----------
+        freqs : array_like
+            Hz.
+        """
         return frequency_response(self._system, freqs)
 
     @cached_property
@@ -264,13 +270,35 @@ class Analysis:
 
     def step_response(self, t_stop: float | None = None, points: int = 2000, **options) -> step.StepResponse:
         """The exact response to a unit input step and its figures beside their estimates
-        (:func:`bandsketch.engine.solve.step.step_response`; ``t_stop`` in s)."""
+        (:func:`bandsketch.engine.solve.step.step_response`; ``t_stop`` in s).
+
+        Parameters
+        ----------
+        t_stop : float, optional
+            s, the window's end (see :func:`bandsketch.engine.solve.step.step_response`).
+        points : int
+            Samples from 0 to ``t_stop``.
+        **options
+            Passed to :func:`bandsketch.engine.solve.step.step_response`.
+        """
         return step.step_response(self, t_stop, points, **options)
 
     def pulse_response(self, width: float, t_stop: float | None = None, points: int = 2000,
                        **options) -> step.PulseResponse:
         """The response to a unit input pulse of ``width`` s, with its sag
-        (:func:`bandsketch.engine.solve.step.pulse_response`)."""
+        (:func:`bandsketch.engine.solve.step.pulse_response`).
+
+        Parameters
+        ----------
+        width : float
+            The pulse's width, s.
+        t_stop : float, optional
+            s, the window's end.
+        points : int
+            Samples from 0 to ``t_stop``.
+        **options
+            Passed to :func:`bandsketch.engine.solve.step.pulse_response`.
+        """
         return step.pulse_response(self, width, t_stop, points, **options)
 
     def midband_states(self) -> dict[str, str]:
@@ -279,7 +307,13 @@ class Analysis:
         return {r.name: r.state for r in self.elements.values()}
 
     def port_picture(self, name: str) -> PortPicture | None:
-        """How ``name``'s resistance is found; None for a neutral element (it has none)."""
+        """How ``name``'s resistance is found; None for a neutral element (it has none).
+
+        Parameters
+        ----------
+        name : str
+            A capacitor's or inductor's name.
+        """
         el = self.elements[name]
         if el.band == Band.NEUTRAL:
             return None
@@ -290,7 +324,7 @@ class Analysis:
         return PortPicture(name, el.nodes, tuple(shorted), tuple(opened), self.sources)
 
 
-def band_state(el, band) -> str:
+def _band_state(el, band) -> str:
     """``"short"`` or ``"open"``: the mid-band state a band implies.
 
     Low band: a capacitor is shorted, an inductor open; high band: a capacitor is open, an
@@ -333,7 +367,7 @@ def midband_states(reactive, bands, neutral_states=None) -> dict[str, str]:
     for el in sorted(reactive, key=lambda e: isinstance(e, Capacitor)):
         band = bands[el.name]
         state = neutral_states.get(el.name) if band == Band.NEUTRAL else None
-        state = state or band_state(el, band)
+        state = state or _band_state(el, band)
         if state == SHORT:
             ra, rb = root(el.a), root(el.b)
             if ra == rb and isinstance(el, Capacitor):
@@ -344,7 +378,15 @@ def midband_states(reactive, bands, neutral_states=None) -> dict[str, str]:
 
 
 def reactance(el, f: float) -> float:
-    """|Z| (Ω) of a capacitor (1/(2π·f·C)) or an inductor (2π·f·L) at ``f`` (Hz)."""
+    """|Z| (Ω) of a capacitor (1/(2π·f·C)) or an inductor (2π·f·L) at ``f`` (Hz).
+
+    Parameters
+    ----------
+    el : Capacitor or Inductor
+        Its value in F or H.
+    f : float
+        Hz.
+    """
     w = 2 * math.pi * f
     return 1 / (w * el.value) if isinstance(el, Capacitor) else w * el.value
 
@@ -368,7 +410,7 @@ def physical_state(el, f: float, seen: float) -> str:
     return SHORT if reactance(el, f) < seen else OPEN
 
 
-def seen_resistances(system, lu, reactive) -> dict[str, float]:
+def _seen_resistances(system, lu, reactive) -> dict[str, float]:
     """Ω each element sees in the resistive network ``system`` (factorised as ``lu``).
 
     A shorted element is a 0-V branch: its port entry is minus the conductance it sees. An
@@ -611,7 +653,16 @@ class ExactCorners:
 
 
 def prepare(c, bands=None, per_decade: int | None = None) -> Stage:
-    """Validate ``c``, check the pins, assemble the network and sweep it (see :func:`analyze`)."""
+    """Validate ``c``, check the pins, assemble the network and sweep it (see :func:`analyze`).
+
+    Parameters
+    ----------
+    c : bandsketch.engine.network.circuit.Circuit
+    bands : Mapping[str, Band or str], optional
+        Pins, as for :func:`analyze`.
+    per_decade : int, optional
+        Sweep points per decade, as for :func:`analyze`.
+    """
     validate(c)
     # Blocks biased from the circuit take their small-signal values from the DC point, so it is
     # solved before the network is assembled.
@@ -648,14 +699,14 @@ def _place_neutral(stage, bands, f_m):
     placed: dict[str, str] = {}
     for _ in range(PLACE_ROUNDS):
         states, mid, lu = _mid_network(stage, bands, placed)
-        seen = seen_resistances(mid, lu, stage.reactive)
+        seen = _seen_resistances(mid, lu, stage.reactive)
         judged = {el.name: physical_state(el, f_m, seen[el.name]) for el in undecided}
         if judged == placed:
             break
         placed = judged
     else:
         states, mid, lu = _mid_network(stage, bands, placed)
-        seen = seen_resistances(mid, lu, stage.reactive)
+        seen = _seen_resistances(mid, lu, stage.reactive)
     return placed, states, mid, lu, seen
 
 
@@ -1039,7 +1090,7 @@ def warn(stage: Stage, bands: Classification, est: Estimates, exact: ExactCorner
 
     Parameters
     ----------
-    stage, bands, est, exact
+    stage, bands, est, exact : Stage, Classification, Estimates, ExactCorners
         The records of the other steps.
     results : Mapping[str, ElementResult]
         Every element's result.

@@ -73,6 +73,10 @@ def fixed_elements(circuit) -> dict[str, str]:
     A capacitor whose nodes are joined by ideal voltage sources cannot be shorted; an
     inductor whose removal leaves its nodes joined only through current sources cannot be
     opened. Either one carries what the sources impose and is reported as neutral.
+
+    Parameters
+    ----------
+    circuit : bandsketch.engine.network.circuit.Circuit
     """
     els = list(circuit.elements.values())
     held = nx.Graph()
@@ -94,7 +98,12 @@ def fixed_elements(circuit) -> dict[str, str]:
 
 
 def parallel_groups(reactive) -> dict[frozenset, list]:
-    """Capacitors by the pair of nodes they join; a group of two or more is in parallel."""
+    """Capacitors by the pair of nodes they join; a group of two or more is in parallel.
+
+    Parameters
+    ----------
+    reactive : sequence of Capacitor or Inductor
+    """
     groups: dict[frozenset, list] = {}
     for el in reactive:
         if isinstance(el, Capacitor):
@@ -103,7 +112,13 @@ def parallel_groups(reactive) -> dict[frozenset, list]:
 
 
 def parallel_capacitance(reactive) -> dict[str, float]:
-    """Capacitor name -> total capacitance (F) of it and the capacitors in parallel with it."""
+    """Capacitor name -> total capacitance (F) of it and the capacitors in parallel with it.
+
+    Parameters
+    ----------
+    reactive : sequence of Capacitor or Inductor
+        Values in F (inductors are passed over).
+    """
     return {el.name: sum(m.value for m in group)
             for group in parallel_groups(reactive).values() for el in group}
 

@@ -21,7 +21,12 @@ not stepped over."""
 
 
 def points_per_decade(system) -> int:
-    """Sweep density: fine where a batched dense solve is cheap, coarser where each point is an LU."""
+    """Sweep density: fine where a batched dense solve is cheap, coarser where each point is an LU.
+
+    Parameters
+    ----------
+    system : bandsketch.engine.solve.mna.MnaSystem
+    """
     return 20 if system.size <= DENSE_LIMIT else 8
 
 
@@ -30,6 +35,10 @@ def first_span(circuit) -> tuple[float, float]:
 
     Every R·C and L/R that the parts could form lies within it; the sweep then grows at
     each end until the response settles, which covers time constants that gain multiplies.
+
+    Parameters
+    ----------
+    circuit : bandsketch.engine.network.circuit.Circuit
     """
     els = circuit.elements.values()
     rs = [el.value for el in els if isinstance(el, Resistor)] or [1.0]
@@ -50,6 +59,14 @@ def wide_sweep(system, span, per_decade: int):
 
     The low end has settled when |H| is within :data:`SETTLED` of the peak from the exact
     d.c. gain; the high end when |H| no longer moves by that much over the last decade.
+
+    Parameters
+    ----------
+    system : bandsketch.engine.solve.mna.MnaSystem
+    span : (float, float)
+        The first span, Hz (see :func:`first_span`).
+    per_decade : int
+        Sweep points per decade.
 
     Returns
     -------
@@ -81,7 +98,7 @@ def _magnitude(system, f: float) -> float:
     return float(abs(frequency_response(system, [f])[0]))
 
 
-def refine_peak(system, f: np.ndarray, H: np.ndarray, near: float) -> float:
+def _refine_peak(system, f: np.ndarray, H: np.ndarray, near: float) -> float:
     """Hz of the exact maximum of |H| around the sweep sample nearest ``near``'s local peak.
 
     Between the sample's neighbours |H| is searched on log f (bounded Brent), so a narrow
@@ -105,7 +122,15 @@ def midband_guess(system, f: np.ndarray, H: np.ndarray) -> float:
     """Hz: the geometric centre of the stretch around the peak where |H| stays within 3 dB of it.
 
     When no other sweep sample lies within 3 dB of the peak (a band narrower than the sweep's
-    spacing), the exact peak (:func:`refine_peak`) is the mid band.
+    spacing), the exact peak (:func:`_refine_peak`) is the mid band.
+
+    Parameters
+    ----------
+    system : bandsketch.engine.solve.mna.MnaSystem
+    f : numpy.ndarray
+        Sweep frequencies, Hz, rising.
+    H : numpy.ndarray
+        The complex response there (gain unit).
     """
     mag = np.abs(H)
     top = int(np.argmax(mag))
@@ -117,7 +142,7 @@ def midband_guess(system, f: np.ndarray, H: np.ndarray) -> float:
     while hi < len(mag) - 1 and mag[hi + 1] >= level:
         hi += 1
     if lo == hi:
-        return refine_peak(system, f, H, float(f[top]))
+        return _refine_peak(system, f, H, float(f[top]))
     return math.sqrt(f[lo] * f[hi])
 
 
@@ -126,6 +151,17 @@ def brackets(f: np.ndarray, H: np.ndarray, f_mid: float, level: float):
 
     Starts at the sweep point nearest ``f_mid`` at which |H| ≥ ``level`` and walks outward
     to the first point where |H| < ``level``.
+
+    Parameters
+    ----------
+    f : numpy.ndarray
+        Sweep frequencies, Hz, rising.
+    H : numpy.ndarray
+        The complex response there (gain unit).
+    f_mid : float
+        A mid-band frequency, Hz.
+    level : float
+        |A_m|/√2, gain unit.
 
     Returns
     -------
@@ -151,7 +187,16 @@ def brackets(f: np.ndarray, H: np.ndarray, f_mid: float, level: float):
 
 
 def corner(system, bracket, level: float) -> float | None:
-    """Frequency (Hz) in ``bracket`` where the exact |H| equals ``level``: brentq on log f."""
+    """Frequency (Hz) in ``bracket`` where the exact |H| equals ``level``: brentq on log f.
+
+    Parameters
+    ----------
+    system : bandsketch.engine.solve.mna.MnaSystem
+    bracket : (float, float) or None
+        Hz, from :func:`brackets`.
+    level : float
+        |A_m|/√2, gain unit.
+    """
     if bracket is None:
         return None
 
@@ -185,6 +230,18 @@ def corners_around(system, f: np.ndarray, H: np.ndarray, f_mid: float, level: fl
     the sweep's own samples, to the first point below ``level``; brentq refines the corner
     between that point and the one before. None on a side where the gain never falls that far.
 
+    Parameters
+    ----------
+    system : bandsketch.engine.solve.mna.MnaSystem
+    f : numpy.ndarray
+        Sweep frequencies, Hz, rising.
+    H : numpy.ndarray
+        The complex response there (gain unit).
+    f_mid : float
+        A mid-band frequency, Hz.
+    level : float
+        |A_m|/√2, gain unit.
+
     Returns
     -------
     (float or None, float or None)
@@ -192,7 +249,7 @@ def corners_around(system, f: np.ndarray, H: np.ndarray, f_mid: float, level: fl
     """
     start = f_mid
     if _magnitude(system, start) < level:
-        start = refine_peak(system, f, H, f_mid)
+        start = _refine_peak(system, f, H, f_mid)
     if _magnitude(system, start) < level:
         # The exact gain stays below the resistive mid-band gain's −3 dB level around f_mid
         # (the bands overlap): the nearest sweep points above the level are the places to start.
@@ -206,6 +263,13 @@ def second_order_corner(b1: float, b2: float) -> float | None:
 
     With u = ω², b2²u² + (b1² − 2b2)u − 1 = 0 has one positive root, written here in the
     form without cancellation.
+
+    Parameters
+    ----------
+    b1 : float
+        s.
+    b2 : float
+        s².
     """
     if b1 <= 0 and b2 <= 0:
         return None

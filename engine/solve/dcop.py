@@ -332,7 +332,13 @@ def operating_point(circuit) -> OperatingPoint:
 
 
 def solved(circuit) -> OperatingPoint:
-    """:func:`operating_point` of a circuit already validated (the analysis checks it once)."""
+    """:func:`operating_point` of a circuit already validated (the analysis checks it once).
+
+    Parameters
+    ----------
+    circuit : bandsketch.engine.network.circuit.Circuit
+        Validated.
+    """
     if circuit.operating_point is not None:
         return circuit.operating_point
     problem = _Problem(circuit)

@@ -81,7 +81,12 @@ def _finite_eigenvalues(A, B) -> np.ndarray:
 
 
 def poles(system) -> np.ndarray:
-    """Finite natural frequencies of the network (rad/s): s with det(G + sC) = 0."""
+    """Finite natural frequencies of the network (rad/s): s with det(G + sC) = 0.
+
+    Parameters
+    ----------
+    system : bandsketch.engine.solve.mna.MnaSystem
+    """
     return _finite_eigenvalues(-system.G.toarray(), system.C.toarray())
 
 
@@ -90,6 +95,10 @@ def zeros(system) -> np.ndarray:
 
     The zeros are the finite generalised eigenvalues of the system pencil
     [[G + sC, −b], [c, 0]], which is singular exactly where H(s) = 0.
+
+    Parameters
+    ----------
+    system : bandsketch.engine.solve.mna.MnaSystem
     """
     n = system.size
     A = np.zeros((n + 1, n + 1))

@@ -196,6 +196,15 @@ def pair_step(b1: float, b2: float, t) -> np.ndarray:
 
     Underdamped: 1 − e^(−ζω_n t)·(cos ω_d t + ζ/√(1−ζ²)·sin ω_d t); critically damped:
     1 − e^(−ω_n t)·(1 + ω_n t); overdamped: 1 + (p2·e^(p1 t) − p1·e^(p2 t))/(p1 − p2).
+
+    Parameters
+    ----------
+    b1 : float
+        s.
+    b2 : float
+        s².
+    t : array_like
+        s.
     """
     t = np.asarray(t, dtype=float)
     wn = 1 / math.sqrt(b2)
@@ -268,7 +277,7 @@ def _pair(analysis):
     return b1, b2
 
 
-def default_window(analysis) -> float:
+def _default_window(analysis) -> float:
     """s: the step-response window, from b1 and b2 (10·b1, or longer for a light pair's ringing)."""
     b1, b2 = _pair(analysis)
     if b1:
@@ -326,7 +335,7 @@ def step_response(analysis, t_stop: float | None = None, points: int = 2000, *, 
     ----------
     analysis : bandsketch.engine.solve.analysis.Analysis
     t_stop : float, optional
-        s, the window's end; by default :func:`default_window` (the high band's time scale).
+        s, the window's end; by default 10·b1, or longer for a lightly damped pair's ringing.
     points : int
         Samples from 0 to ``t_stop``.
     method : {"modal", "integrated"}, optional
@@ -342,7 +351,7 @@ def step_response(analysis, t_stop: float | None = None, points: int = 2000, *, 
     CircuitError
         An unstable network, or one with no level to settle to.
     """
-    t = _grid(default_window(analysis) if t_stop is None else t_stop, points)
+    t = _grid(_default_window(analysis) if t_stop is None else t_stop, points)
     system = analysis._system
     final = _final_value(analysis, system)
     y, used, poles = _waveform(analysis, t, method)

@@ -61,12 +61,28 @@ def port_columns(system, elements) -> sp.csc_matrix:
 
 
 def port_weights(elements) -> np.ndarray:
-    """D of det(I + s·D·Z): C (F) for a capacitor, −L (H) for an inductor."""
+    """D of det(I + s·D·Z): C (F) for a capacitor, −L (H) for an inductor.
+
+    Parameters
+    ----------
+    elements : sequence of Capacitor or Inductor
+        Values in F or H.
+    """
     return np.array([el.value if isinstance(el, Capacitor) else -el.value for el in elements], dtype=float)
 
 
 def factorize(G, what: str, parts=()):
-    """Sparse LU of ``G``; a singular ``G`` is a :class:`CircuitError` saying ``what`` it was."""
+    """Sparse LU of ``G``; a singular ``G`` is a :class:`CircuitError` saying ``what`` it was.
+
+    Parameters
+    ----------
+    G : scipy.sparse matrix
+        A conductance matrix, S (square).
+    what : str
+        What network it is, for the message.
+    parts : sequence of str
+        Parts the message points at.
+    """
     try:
         return spla.splu(sp.csc_matrix(G))
     except RuntimeError:
@@ -83,7 +99,15 @@ def _column_chunks(n_rows: int, n_cols: int, itemsize: int):
 
 
 def port_matrix(lu, U: sp.csc_matrix) -> np.ndarray:
-    """Z = Uᵀ A⁻¹ U for a factorised A, solved in column blocks (N × N)."""
+    """Z = Uᵀ A⁻¹ U for a factorised A, solved in column blocks (N × N).
+
+    Parameters
+    ----------
+    lu : scipy.sparse.linalg.SuperLU
+        The factorised A (conductances, S).
+    U : scipy.sparse.csc_matrix
+        One port column per element (dimensionless incidence).
+    """
     Z = np.empty((U.shape[1], U.shape[1]), dtype=np.result_type(lu.L.dtype, float))
     Ut = U.T.tocsr()
     for cols in _column_chunks(U.shape[0], U.shape[1], Z.itemsize):
@@ -92,7 +116,15 @@ def port_matrix(lu, U: sp.csc_matrix) -> np.ndarray:
 
 
 def port_diagonal(lu, U: sp.csc_matrix) -> np.ndarray:
-    """diag(Uᵀ A⁻¹ U) without forming the whole matrix."""
+    """diag(Uᵀ A⁻¹ U) without forming the whole matrix.
+
+    Parameters
+    ----------
+    lu : scipy.sparse.linalg.SuperLU
+        The factorised A (conductances, S).
+    U : scipy.sparse.csc_matrix
+        One port column per element (dimensionless incidence).
+    """
     dtype = np.result_type(lu.L.dtype, float)
     out = np.empty(U.shape[1], dtype=dtype)
     for cols in _column_chunks(U.shape[0], U.shape[1], np.dtype(dtype).itemsize):

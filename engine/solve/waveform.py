@@ -40,7 +40,12 @@ _UNSTABLE = 1e-9
 
 
 def dc_gain(system) -> tuple[float, np.ndarray]:
-    """H(0) (gain unit) and x_∞ = G⁻¹b, the unknowns once the step has settled."""
+    """H(0) (gain unit) and x_∞ = G⁻¹b, the unknowns once the step has settled.
+
+    Parameters
+    ----------
+    system : bandsketch.engine.solve.mna.MnaSystem
+    """
     try:
         x = spla.splu(sp.csc_matrix(system.G)).solve(system.b.astype(float))
     except RuntimeError:
@@ -59,6 +64,12 @@ def modes(system, scale: float) -> tuple[np.ndarray, np.ndarray, float] | None:
     y(t) = H(0) + Σ (r_k/p_k)·e^{p_k t} for t > 0, with r_k the residue of H(s) at p_k:
     r_k = (c·v_k)(w_kᴴ·b)/(w_kᴴ·C·v_k) from the right and left eigenvectors of the pencil
     (−G, C). None when nearly coincident poles make the residues cancel (use the integration).
+
+    Parameters
+    ----------
+    system : bandsketch.engine.solve.mna.MnaSystem
+    scale : float
+        The size of the output, gain unit (see below).
 
     Raises
     ------
@@ -100,7 +111,15 @@ def _check_stable(p, w0):
 
 
 def modal_step(mode_set, t: np.ndarray) -> np.ndarray:
-    """y(t) from :func:`modes`; ``t`` in s. y(0) is the output before the step, 0."""
+    """y(t) from :func:`modes`; ``t`` in s. y(0) is the output before the step, 0.
+
+    Parameters
+    ----------
+    mode_set : tuple
+        From :func:`modes`: poles (rad/s), amplitudes (gain unit), H(0).
+    t : numpy.ndarray
+        s.
+    """
     p, amplitude, h0 = mode_set
     t = np.asarray(t, dtype=float)
     y = np.full(t.shape, h0, dtype=float)
