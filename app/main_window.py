@@ -5,7 +5,7 @@ from __future__ import annotations
 import json
 from pathlib import Path
 
-from PySide6.QtCore import QEvent, QMimeData, Qt
+from PySide6.QtCore import QEvent, QMimeData, QPointF, Qt
 from PySide6.QtGui import QAction, QGuiApplication, QKeySequence, QUndoStack
 from PySide6.QtWidgets import QDockWidget, QLabel, QMainWindow, QScrollArea, QSplitter, QTabWidget, QWidget
 
@@ -59,6 +59,7 @@ class MainWindow(QMainWindow):
         self.stack = QUndoStack(self)
         self.editor = Editor(self.doc, self.stack)
         self.path: str | None = None
+        self._view_key: str | None = None  # whose zoom and scroll the sheet remembers
         self._restored_unsaved = False
         self._paste_count = 0
         self.theme = system_theme()
@@ -170,6 +171,8 @@ class MainWindow(QMainWindow):
         self.act_zoom_in = a("Zoom &in", lambda: self.view.zoom_by(1.25), [K.ZoomIn])
         self.act_zoom_out = a("Zoom &out", lambda: self.view.zoom_by(0.8), [K.ZoomOut])
         self.act_zoom_fit = a("Zoom to &fit", self.view.zoom_to_fit, ["Ctrl+0"], "Show the whole drawing")
+        self.act_zoom_selection = a("Zoom to &selection", self.zoom_to_selection, ["Ctrl+9"],
+                                    "Show the selected parts and wires close up")
         self.act_select_mode = a("&Select", lambda: self.controller.set_mode(Mode.SELECT), [],
                                  "Click to select, drag to move (Esc)")
         self.act_wire_mode = a("&Wire", self.controller.start_wiring, ["W"], "Draw wires between pins")
@@ -220,7 +223,7 @@ class MainWindow(QMainWindow):
         place_menu.addSeparator()
         place_menu.addActions(self.place_actions)
         view_menu = bar.addMenu("&View")
-        view_menu.addActions([self.act_zoom_in, self.act_zoom_out, self.act_zoom_fit])
+        view_menu.addActions([self.act_zoom_in, self.act_zoom_out, self.act_zoom_fit, self.act_zoom_selection])
         view_menu.addAction(self.act_bias)
         view_menu.addSeparator()
         for dock in (self.parts_dock, self.properties_dock, self.help_dock):
@@ -243,7 +246,7 @@ class MainWindow(QMainWindow):
         tools.addSeparator()
         tools.addActions([self.act_rotate, self.act_mirror, self.act_delete])
         tools.addSeparator()
-        tools.addActions([self.act_zoom_fit])
+        tools.addActions([self.act_zoom_fit, self.act_zoom_selection])
 
     def _make_status(self) -> None:
         self.mode_label = QLabel()
@@ -259,7 +262,8 @@ class MainWindow(QMainWindow):
                       self.act_duplicate, self.act_delete, self.act_select_all, self.act_rotate,
                       self.act_mirror, self.act_rename]),
             ("File", [self.act_new, self.act_open, self.act_save, self.act_save_as, self.act_quit]),
-            ("View", [self.act_zoom_in, self.act_zoom_out, self.act_zoom_fit, self.act_bias, self.act_help]),
+            ("View", [self.act_zoom_in, self.act_zoom_out, self.act_zoom_fit, self.act_zoom_selection,
+                      self.act_bias, self.act_help]),
         ]
 
     # -- state shown ---------------------------------------------------------------------------
@@ -391,6 +395,10 @@ class MainWindow(QMainWindow):
         self.scene.select([name])
         self.inplace = InplaceEditor(self.view, self.editor, name, rename=True)
 
+    def zoom_to_selection(self) -> None:
+        if not self.view.zoom_to_selection():
+            self.statusBar().showMessage("Nothing is selected: select parts or wires to zoom to them", 4000)
+
     def toggle_help(self) -> None:
         if self.help_dock.isVisible() and not self.help_dock.visibleRegion().isEmpty():
             self.help_dock.hide()
@@ -405,12 +413,16 @@ class MainWindow(QMainWindow):
         dialog.show()
 
     # -- files ---------------------------------------------------------------------------------
-    def set_document(self, doc: Document, path: str | None, *, unsaved: bool = False) -> None:
+    def set_document(self, doc: Document, path: str | None, *, unsaved: bool = False,
+                     view_key: str | None = None) -> None:
         """Show ``doc`` (opened from ``path``) in place of the current design; fresh undo history.
 
-        All or nothing: should a view fail to show ``doc``, the design on screen, its undo
-        history and its path are put back as they were and the exception goes on to the caller.
+        The sheet comes back at the zoom and scroll the design (``view_key``, else its file)
+        was last left at, or fitted if it never was shown. All or nothing: should a view fail
+        to show ``doc``, the design on screen, its undo history and its path are put back as
+        they were and the exception goes on to the caller.
         """
+        self.remember_view()
         self.controller.set_mode(Mode.SELECT)
         self.scene.clearSelection()
         previous = self.doc.copy()
@@ -427,7 +439,18 @@ class MainWindow(QMainWindow):
         self._paste_count = 0
         self.doc.finish_edit()
         self._update_title()
-        self.view.zoom_to_fit()
+        self._view_key = view_key or (str(Path(path).resolve()) if path else None)
+        last = preferences.sheet_view(self._view_key) if self._view_key else None
+        if last is None:
+            self.view.zoom_to_fit()
+        else:
+            self.view.show_at(last[0], QPointF(last[1], last[2]))
+
+    def remember_view(self) -> None:
+        """Keep the sheet's zoom and scroll for the design shown, to come back to them."""
+        if self._view_key and self.doc.parts:
+            centre = self.view.centre()
+            preferences.set_sheet_view(self._view_key, self.view.zoom(), centre.x(), centre.y())
 
     def keep_or_drop_changes(self) -> bool:
         """Ask about unsaved changes; True when it is fine to replace or close the design."""
@@ -483,7 +506,7 @@ class MainWindow(QMainWindow):
         except DesignFileError as exc:
             dialogs.show_error(self, "Cannot open sample", str(exc))
             return False
-        self.set_document(doc, None)
+        self.set_document(doc, None, view_key=f"sample:{name}")
         if self.keeper:
             self.keeper.discard()
         self.statusBar().showMessage(f"Opened the sample {doc.title}; Save as keeps your changes", 8000)
@@ -524,6 +547,7 @@ class MainWindow(QMainWindow):
             dialogs.show_error(self, "Cannot save design", str(exc))
             return False
         self.path = path
+        self._view_key = str(Path(path).resolve())
         self._restored_unsaved = False
         self.stack.setClean()
         preferences.add_recent(path)
@@ -573,6 +597,7 @@ class MainWindow(QMainWindow):
         if self.keeper:
             self.keeper.stop()
             self.keeper.discard()
+        self.remember_view()
         # The scene deletes its items as it goes; nothing may ask it about selection then.
         self._watch_selection(False)
         event.accept()

@@ -1,7 +1,9 @@
-"""User preferences kept between sessions (QSettings): symbol style and recent files."""
+"""User preferences kept between sessions (QSettings): symbol style, recent files, and where
+each design's sheet was last looked at."""
 
 from __future__ import annotations
 
+import hashlib
 from pathlib import Path
 
 from PySide6.QtCore import QSettings, Signal
@@ -12,6 +14,9 @@ from .canvas.symbols import ResistorStyle
 RECENT_LIMIT = 8
 _STYLE_KEY = "symbols/resistor"
 _RECENT_KEY = "files/recent"
+_VIEW_GROUP = "sheet_views"
+VIEW_LIMIT = 50
+"""Designs whose zoom and scroll are remembered; the least recently left are forgotten first."""
 
 
 def resistor_style() -> ResistorStyle:
@@ -36,6 +41,33 @@ def add_recent(path: str) -> None:
     path = str(Path(path).resolve())
     paths = [path] + [p for p in recent_files() if p != path]
     QSettings().setValue(_RECENT_KEY, paths[:RECENT_LIMIT])
+
+
+def sheet_view(design: str) -> tuple[float, float, float] | None:
+    """The zoom and the sheet point at the centre (scene units) design ``design`` (a file's
+    resolved path, or ``sample:NAME``) was last shown with, or None if it never was."""
+    value = QSettings().value(f"{_VIEW_GROUP}/{_view_key(design)}")
+    try:
+        zoom, x, y = (float(v) for v in str(value).split(","))
+    except ValueError:  # never seen, or a setting that is not ours: fit instead
+        return None
+    return zoom, x, y
+
+
+def set_sheet_view(design: str, zoom: float, x: float, y: float) -> None:
+    """Remember the zoom and centre design ``design`` was shown with."""
+    settings = QSettings()
+    key = _view_key(design)
+    order = [k for k in str(settings.value(f"{_VIEW_GROUP}/order", "")).split(",") if k and k != key]
+    for old in order[VIEW_LIMIT - 1:]:
+        settings.remove(f"{_VIEW_GROUP}/{old}")
+    settings.setValue(f"{_VIEW_GROUP}/order", ",".join([key, *order[:VIEW_LIMIT - 1]]))
+    settings.setValue(f"{_VIEW_GROUP}/{key}", f"{zoom:.12g},{x:.12g},{y:.12g}")
+
+
+def _view_key(design: str) -> str:
+    # A path holds characters QSettings reads as groups; its digest does not.
+    return hashlib.sha1(design.encode("utf-8")).hexdigest()[:16]
 
 
 class PreferencesDialog(QDialog):

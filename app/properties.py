@@ -41,7 +41,9 @@ NOTES_LINES = 6
 def caption(label: str) -> str:
     """A catalogue label as rich text: the part after "_" becomes a subscript (r_π -> rπ with π low)."""
     head, _, sub = label.partition("_")
-    return f"{head}<sub>{sub}</sub>" if sub else label
+    # Qt clips a subscript's descender to the line's box (C_gs read Cqs); a space in a
+    # larger size after it makes the line tall enough to hold it.
+    return f'{head}<sub>{sub}</sub><span style="font-size:large"> </span>' if sub else label
 
 
 class _Entry(QWidget):

@@ -23,6 +23,8 @@ from .style import Restyles, ViewColours, view_colours
 
 MARKER_SLOTS = (("high", True), ("high", False), ("low", True), ("low", False))
 """One marker item set per corner and kind; a slot with no corner is hidden."""
+LABELS_APART_PX = 8
+"""Pixels kept between the f_L and f_H labels of one row when both point into the mid band."""
 
 
 class FrequencyAxis(pg.AxisItem):
@@ -88,6 +90,8 @@ class BodePlot(Restyles, QWidget):
         self.magnitude.addItem(self.cursor[0], ignoreBounds=True)
         self.phase.addItem(self.cursor[1], ignoreBounds=True)
         self.canvas.scene().sigMouseMoved.connect(self._on_mouse_moved)
+        self.magnitude.getViewBox().sigRangeChanged.connect(self._lay_out_labels)
+        self.magnitude.getViewBox().sigResized.connect(self._lay_out_labels)
         self._restyle()
         self.show_response(None)
 
@@ -114,6 +118,7 @@ class BodePlot(Restyles, QWidget):
         by_slot = {(mk.corner, mk.estimated): mk for mk in data.markers}
         for slot in MARKER_SLOTS:
             self._show_marker(slot, by_slot.get(slot))
+        self._lay_out_labels()
         level = data.midband_db - 3.0103
         self.half_power.setValue(level)
         self.half_power.show()
@@ -158,14 +163,33 @@ class BodePlot(Restyles, QWidget):
             line.show()
         dot.setData([marker.freq_hz], [marker.level_db])
         dot.show()
-        # Labels point into the mid band, where there is room; the estimate sits above its
-        # pin (the −3 dB line, or a peak's top) and the exact value below the line, so a
-        # corner's two labels never overlap.
-        left = slot[0] == "high"
-        label.setAnchor((1.0 if left else 0.0, 1.0 if marker.estimated else 0.0))
-        label.setText((marker.text + " ") if left else (" " + marker.text))
+        label.setText(f" {marker.text} ")
         label.setPos(x, marker.label_db)
         label.show()
+
+    def _lay_out_labels(self, *_) -> None:
+        """Point the corner labels into the mid band, where there is room, unless the two
+        corners are too close for both there: then each points away from the other.
+
+        The estimate sits above its pin (the −3 dB line, or a peak's top) and the exact
+        value below the line, so a corner's two labels never overlap; labels of one row
+        (the estimates, or the exact values) are what may meet.
+        """
+        box = self.magnitude.getViewBox()
+        for estimated in (True, False):
+            row = {corner: self.markers[(corner, estimated)] for corner in ("high", "low")}
+            shown = {corner: (lines[0].value(), label) for corner, (lines, _, label) in row.items()
+                     if label.isVisible()}
+            inward = True
+            if len(shown) == 2:
+                (xh, high), (xl, low) = shown["high"], shown["low"]
+                px_h = box.mapViewToScene(QPointF(xh, 0)).x()
+                px_l = box.mapViewToScene(QPointF(xl, 0)).x()
+                width = high.textItem.boundingRect().width() + low.textItem.boundingRect().width()
+                inward = px_h - px_l >= width + LABELS_APART_PX
+            for corner, (_, label) in shown.items():
+                left = (corner == "high") == inward
+                label.setAnchor((1.0 if left else 0.0, 1.0 if estimated else 0.0))
 
     def data(self) -> BodeData | None:
         """The response shown."""

@@ -28,6 +28,9 @@ from .style import view_colours
 from .port_picture import PictureOverlay, picture_geometry
 from .verdict import ProblemBanner, VerdictStrip
 
+WIDEST_READOUT = "f = 888.8 MHz · −188.8 dBΩ · ∠ −188.8°"
+"""The widest text the hover readout shows (the step view's is shorter), for its fixed width."""
+
 
 class AnalysisPanel(QWidget):
     """Verdict, bars and Bode plot of a window's design, and the test picture on its sheet.
@@ -72,9 +75,7 @@ class AnalysisPanel(QWidget):
         tools = QHBoxLayout()
         self.legend = QLabel(self.bode.legend_html())
         tools.addWidget(self.legend)
-        self.hover_readout = QLabel()
-        self.hover_readout.setAlignment(Qt.AlignmentFlag.AlignRight | Qt.AlignmentFlag.AlignVCenter)
-        tools.addWidget(self.hover_readout, 1)
+        tools.addStretch(1)
         self.dismiss_before = QToolButton(text="Hide before")
         self.dismiss_before.setToolTip("Remove the dotted curve of the design before the applied suggestion")
         self.dismiss_before.clicked.connect(lambda: self.compare_with_before(None))
@@ -101,6 +102,12 @@ class AnalysisPanel(QWidget):
         self.plots.addTab(self.time, "Step and pulse")
         self.plots.currentChanged.connect(self._plot_switched)
         right_layout.addWidget(self.plots, 1)
+        # The readout floats in the tab row, outside every layout and as wide as its widest
+        # reading from the start: whatever it says, nothing beside it moves or resizes.
+        self.hover_readout = QLabel(right)
+        self.hover_readout.setAlignment(Qt.AlignmentFlag.AlignRight | Qt.AlignmentFlag.AlignVCenter)
+        self.hover_readout.setFixedWidth(self.hover_readout.fontMetrics().horizontalAdvance(WIDEST_READOUT) + 8)
+        self._readout_place = _TabRowCorner(self.plots, self.hover_readout)
 
         self.split = QSplitter(Qt.Orientation.Horizontal)
         self.split.addWidget(bars_scroll)
@@ -234,7 +241,15 @@ class AnalysisPanel(QWidget):
         outcome = self.outcome
         geometry = picture_geometry(outcome.doc, outcome.netlist, outcome.analysis, focus) \
             if focus is not None else None
-        self.overlay.show_picture(geometry, self.scene.content_rect(), self.scene.occupied())
+        view = self.window.view
+        seen = view.mapToScene(view.viewport().rect()).boundingRect()
+        self.overlay.show_picture(geometry, self.scene.content_rect(), self.scene.occupied(), seen)
+        if geometry is not None:
+            # No free spot in view: scroll (never zoom) until the label and its ring are.
+            wanted = self.overlay.label_rect().united(self.overlay.glyph_rect())
+            if not seen.contains(wanted):
+                view.ensureVisible(wanted if wanted.width() < seen.width() and wanted.height() < seen.height()
+                                   else self.overlay.label_rect(), 12, 12)
 
     def _list_problems(self, outcome: Outcome) -> None:
         """Put every problem of the sheet in the banner, the one that stops the analysis first."""
@@ -308,6 +323,28 @@ class AnalysisPanel(QWidget):
         for view in (self.bars, self.bode, self.time, self.verdict, self.banner, self.overlay):
             view.set_colours(colours)
         self._plot_switched()
+
+
+class _TabRowCorner(QObject):
+    """Keeps a label at the right end of a tab widget's tab row as the tab widget resizes."""
+
+    def __init__(self, tabs: QTabWidget, label: QLabel):
+        super().__init__(tabs)
+        self.tabs, self.label = tabs, label
+        tabs.installEventFilter(self)
+        self.place()
+
+    def place(self) -> None:
+        row = self.tabs.tabBar().sizeHint().height()
+        g = self.tabs.geometry()
+        self.label.setFixedHeight(row)
+        self.label.move(g.right() - self.label.width() - 4, g.top())
+        self.label.raise_()
+
+    def eventFilter(self, watched, event):
+        if event.type() in (QEvent.Type.Resize, QEvent.Type.Move):
+            self.place()
+        return False
 
 
 class _CanvasMenus(QObject):

@@ -32,6 +32,10 @@ LABEL_CLEARANCE = 6
 """Space (scene units) the label keeps from parts, wires and the test source's leads."""
 AROUND_GAP = 16
 """How far outside the drawing's bounds the label goes when nothing beside the glyph is free."""
+SEEN_STEP = 20
+"""Spacing (scene units) of the spots the label tries on the sheet in view: the grid's."""
+SEEN_CHOICES = 6
+"""Free spots in view the label chooses among (by its leader's crossings), nearest first."""
 LEADER_AFTER = GLYPH_R + 24
 """A label further than this from the glyph's centre gets a thin leader line to it."""
 OWN_TEXT_REACH = GLYPH_R + 28
@@ -222,12 +226,13 @@ class PictureOverlay(QGraphicsItem):
         self.update()
 
     def show_picture(self, geometry: PictureGeometry | None, drawing: QRectF | None = None,
-                     occupied=()) -> None:
+                     occupied=(), visible: QRectF | None = None) -> None:
         """Draw ``geometry`` (None hides the picture).
 
         The label goes where it covers nothing: beside the glyph if a spot there is free,
-        else just outside ``drawing`` (the circuit's bounds, scene units), nearest the glyph
-        first. ``occupied`` are the scene outlines of the parts (with their texts) and wire
+        else on a free spot of the sheet the user sees (``visible``, scene units) nearest the
+        glyph, else just outside ``drawing`` (the circuit's bounds), nearest the glyph first.
+        ``occupied`` are the scene outlines of the parts (with their texts) and wire
         segments, as paths or rectangles. A label set apart from its glyph gets a thin
         leader line.
         """
@@ -253,7 +258,7 @@ class PictureOverlay(QGraphicsItem):
         width = max(m.horizontalAdvance(t) for m, t in zip(metrics, geometry.lines)) + 16
         height = sum(m.height() for m in metrics[:len(geometry.lines)]) + 10
         blocked = list(occupied) + [self._glyph] + _line_boxes(self._leads)
-        self._label = _place_label(g, width, height, drawing, blocked)
+        self._label = _place_label(g, width, height, drawing, blocked, visible)
         self._leader = _leader(g, self._label)
         self._label_lines = []
         y = self._label.top() + 5
@@ -267,6 +272,14 @@ class PictureOverlay(QGraphicsItem):
 
     def boundingRect(self) -> QRectF:
         return self._bounds
+
+    def label_rect(self) -> QRectF:
+        """Where the label is (scene units; empty when no picture is shown)."""
+        return QRectF(self._label) if self.geometry is not None else QRectF()
+
+    def glyph_rect(self) -> QRectF:
+        """Where the test source's ring is (scene units; empty when no picture is shown)."""
+        return QRectF(self._glyph) if self.geometry is not None else QRectF()
 
     def paint(self, painter, option, widget=None):
         if self.geometry is None:
@@ -371,10 +384,26 @@ def _distance(p: QPointF, rect: QRectF) -> float:
     return math.hypot(dx, dy)
 
 
-def _place_label(glyph: QPointF, width: float, height: float, drawing: QRectF | None, blocked) -> QRectF:
+def _seen_spots(glyph: QPointF, width: float, height: float, visible: QRectF) -> list:
+    """Spots for the label on the sheet in view, a grid step apart and clear of its edges,
+    nearest the glyph first."""
+    inner = visible.adjusted(AROUND_GAP, AROUND_GAP, -AROUND_GAP - width, -AROUND_GAP - height)
+    if inner.width() < 0 or inner.height() < 0:
+        return []
+    step = SEEN_STEP
+    xs = [inner.left() + i * step for i in range(int(inner.width() // step) + 1)]
+    ys = [inner.top() + j * step for j in range(int(inner.height() // step) + 1)]
+    spots = [QRectF(x, y, width, height) for y in ys for x in xs]
+    return sorted(spots, key=lambda r: _distance(glyph, r))
+
+
+def _place_label(glyph: QPointF, width: float, height: float, drawing: QRectF | None, blocked,
+                 visible: QRectF | None = None) -> QRectF:
     """The first of :func:`_label_spots` that covers none of ``blocked`` (paths or
-    rectangles), preferring one whose leader line crosses the fewest of them; if every
-    spot covers something, the one covering the fewest, nearest first."""
+    rectangles), preferring one whose leader line crosses the fewest of them; failing the
+    spots beside the glyph, the free spots in ``visible`` nearest the glyph come before
+    those outside the drawing; if every spot covers something, the one covering the
+    fewest, nearest first."""
     spots = _label_spots(glyph, width, height, drawing)
 
     def covers(rect: QRectF) -> int:
@@ -390,6 +419,17 @@ def _place_label(glyph: QPointF, width: float, height: float, drawing: QRectF | 
         return sum(b.intersects(box) for box in _line_boxes(path) for b in blocked)
 
     free = [spot for spot in spots if covers(spot) == 0]
+    if visible is not None:
+        # A label the user must scroll to is no help: spots in view come first, the free
+        # ones of the sheet in view nearest the glyph among them (a few: the leader's
+        # crossings choose).
+        seen = [spot for spot in free if visible.contains(spot)]
+        for spot in _seen_spots(glyph, width, height, visible):
+            if len(seen) >= SEEN_CHOICES:
+                break
+            if covers(spot) == 0:
+                seen.append(spot)
+        free = seen or free
     if free:
         return min(free, key=crossed)
     return min(spots, key=lambda r: (covers(r), _distance(glyph, r)))

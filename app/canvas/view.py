@@ -17,6 +17,8 @@ PART_MIME = "application/x-bandsketch-part"
 MIN_ZOOM, MAX_ZOOM = 0.15, 6.0
 FIT_MAX_ZOOM = 1.6
 """Zoom to fit never magnifies beyond this, so a two-part sketch does not fill the screen."""
+SELECTION_MAX_ZOOM = 2.5
+"""Zoom to selection magnifies a single part this far at most: close, but still with its wires."""
 WHEEL_STEP = 1.0015
 
 
@@ -65,11 +67,35 @@ class SchematicView(QGraphicsView):
         rect = self.scene().itemsBoundingRect()
         if rect.isEmpty():
             rect = QRectF(-200, -150, 400, 300)
+        self._show_rect(rect, FIT_MAX_ZOOM)
+
+    def zoom_to_selection(self) -> bool:
+        """Show the selected parts and wires, no larger than :data:`SELECTION_MAX_ZOOM`;
+        False (nothing changes) when nothing is selected."""
+        rect = QRectF()
+        for item in self.scene().selectedItems():
+            rect = rect.united(item.sceneBoundingRect())
+        if rect.isEmpty():
+            return False
+        self._show_rect(rect, SELECTION_MAX_ZOOM)
+        return True
+
+    def _show_rect(self, rect: QRectF, largest: float) -> None:
         rect = rect.adjusted(-40, -40, 40, 40)
         self.fitInView(rect, Qt.AspectRatioMode.KeepAspectRatio)
-        if self.zoom() > FIT_MAX_ZOOM:
-            self.setTransform(QTransform.fromScale(FIT_MAX_ZOOM, FIT_MAX_ZOOM))
+        if self.zoom() > largest:
+            self.setTransform(QTransform.fromScale(largest, largest))
         self.centerOn(rect.center())
+
+    def centre(self) -> QPointF:
+        """The sheet point at the middle of the view."""
+        return self.mapToScene(self.viewport().rect().center())
+
+    def show_at(self, zoom: float, centre: QPointF) -> None:
+        """Magnify to ``zoom`` (kept within the zoom limits) with sheet point ``centre`` in the middle."""
+        zoom = max(MIN_ZOOM, min(MAX_ZOOM, zoom))
+        self.setTransform(QTransform.fromScale(zoom, zoom))
+        self.centerOn(centre)
 
     # -- events ------------------------------------------------------------------------
     def wheelEvent(self, event):

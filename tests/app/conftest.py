@@ -29,6 +29,15 @@ def no_waiting_dialogs(monkeypatch, qapp):
 
 
 @pytest.fixture(autouse=True)
+def no_remembered_views(qapp):
+    """Each test opens designs fitted: the zoom another test left a file at is forgotten."""
+    from PySide6.QtCore import QSettings
+
+    QSettings().remove("sheet_views")
+    yield
+
+
+@pytest.fixture(autouse=True)
 def empty_clipboard(qapp):
     """Leave no copied parts on the clipboard: the offscreen platform crashes at exit if
     the clipboard still owns data when the application is torn down."""
