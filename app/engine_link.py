@@ -1,7 +1,8 @@
 """The app's calls into the engine for values, connectivity and derived device values.
 
 Kept in one module so every view reads a field, checks a sheet and shows a block's derived
-small-signal values the same way.
+small-signal values the same way; :class:`SheetReading` reads the sheet once per edit for
+every view.
 """
 
 from __future__ import annotations
@@ -12,10 +13,10 @@ from bandsketch.engine.design import netlist, schema
 from bandsketch.engine.network import devices
 from bandsketch.engine.design.document import Document, Part
 from bandsketch.engine.core.errors import BadValueError, CircuitError
+from bandsketch.engine.design.netlist import DrawnDesign, read_design
 from bandsketch.engine.design.parts import KINDS, Field
 from bandsketch.engine.core.values import format_value
 from bandsketch.engine.design.schema import parse_field
-from bandsketch.engine.solve.dcop import operating_point
 
 
 @dataclass(frozen=True)
@@ -70,25 +71,46 @@ def shown_value(part: Part, f: Field, *, unit: bool = True) -> str:
     return format_value(value, f.unit if unit else "")
 
 
-def connectivity_problems(doc: Document) -> list:
-    """The engine's connectivity problems of the sheet (each with message, parts, points)."""
-    return netlist.connectivity_problems(doc)
+class SheetReading:
+    """The live document read once per state: its nets, its circuit and its problems.
+
+    The sheet's problem marks, the status bar and the analysis all take the same
+    :class:`~bandsketch.engine.design.netlist.DrawnDesign`, built on first use after a
+    change; a drag's many changes only forget the old one.
+    """
+
+    def __init__(self, doc: Document):
+        self.doc = doc
+        self._drawn: DrawnDesign | None = None
+        doc.changed.connect(self._forget)
+
+    def _forget(self, _change) -> None:
+        self._drawn = None
+
+    def drawn(self) -> DrawnDesign:
+        """The reading of the document as it is now."""
+        if self._drawn is None:
+            self._drawn = read_design(self.doc)
+        return self._drawn
 
 
-def derived_values(doc: Document, part: Part) -> dict | str:
+def derived_values(part: Part, point=None, why_not: str | None = None) -> dict | str:
     """A transistor block's derived values (key -> SI value; ``region`` a text), or the reason not.
 
     A block biased from the sheet gives its bias (I_C or I_D, the terminal voltages, the
-    region) and the small-signal values at the solved operating point of ``doc``.
+    region) and the small-signal values at ``point``, the operating point of the newest
+    analysis; ``why_not`` says why there is none (the analysis's problem).
     """
     try:
         values = netlist.derived_values(part)
-        if part.params.get("mode") != "bias":
-            return values
-        point = operating_point(netlist.design_to_circuit(doc))
     except CircuitError as exc:
         return exc.message
-    return bias_values(point.devices[part.name])
+    if part.params.get("mode") != "bias":
+        return values
+    bias = None if point is None else point.devices.get(part.name)
+    if bias is None:
+        return why_not or "The bias is being solved."
+    return bias_values(bias)
 
 
 def bias_values(bias) -> dict:

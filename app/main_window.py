@@ -27,6 +27,7 @@ from .canvas.scene import SchematicScene
 from .canvas.view import SchematicView
 from .guard import REPORT_HINT, unexpected
 from .commands import Editor
+from .engine_link import SheetReading
 from .help import HelpPanel
 from .palette import GROUPS, PartsPalette
 from .properties import PropertiesPanel
@@ -65,7 +66,9 @@ class MainWindow(QMainWindow):
         self.theme = system_theme()
         style = preferences.resistor_style()
 
-        self.scene = SchematicScene(self.doc, self.theme, style)
+        # Created first, so it forgets a stale reading before any view asks for one.
+        self.reading = SheetReading(self.doc)
+        self.scene = SchematicScene(self.doc, self.theme, style, self.reading)
         self.scene.setParent(self)
         self.controller = CanvasController(self.scene, self.editor)
         self.view = SchematicView(self.scene, self.controller)
@@ -119,6 +122,7 @@ class MainWindow(QMainWindow):
         self._mode_changed(self.controller.mode)
         self.inplace: InplaceEditor | None = None
         self.analysis_panel = install_analysis_views(self)
+        self.analysis_panel.runner.finished.connect(self.properties.show_outcome)
         self.advisor = AdvisorPanel(self.doc, self.editor, self.analysis_panel.runner)
         self.advisor.part_hovered.connect(self.scene.point_out)
         self.advisor.applied.connect(self.analysis_panel.compare_with_before)

@@ -175,6 +175,8 @@ class PropertiesPanel(QWidget):
         self._layout.setContentsMargins(6, 6, 6, 6)
         self._body: QWidget | None = None
         self._derived: QFormLayout | None = None
+        self._bias = None  # the newest analysis's operating point, and why there is none
+        self._no_bias: str | None = None
         self._shape = None
         doc.changed.connect(self._on_change)
         doc.edited.connect(self._refresh_derived)
@@ -417,12 +419,19 @@ class PropertiesPanel(QWidget):
                 verdict = check_field(self.doc, part, KINDS[part.kind].field(key), entry.edit.text())
                 entry.show_verdict(verdict.ok, verdict.shown)
 
+    def show_outcome(self, outcome) -> None:
+        """Take the operating point of the newest analysis (an
+        :class:`app.analysis.runner.Outcome`): a block biased from the sheet shows its bias."""
+        self._bias = outcome.analysis.operating_point if outcome.ok else None
+        self._no_bias = outcome.problem
+        self._refresh_derived()
+
     def _refresh_derived(self) -> None:
         if self._derived is None or self.part_name not in self.doc.parts:
             return
         while self._derived.rowCount():
             self._derived.removeRow(0)
-        values = derived_values(self.doc, self.doc.parts[self.part_name])
+        values = derived_values(self.doc.parts[self.part_name], self._bias, self._no_bias)
         if isinstance(values, str):
             note = QLabel(values)
             note.setWordWrap(True)

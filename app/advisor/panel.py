@@ -145,7 +145,11 @@ class AdvisorPanel(QWidget):
         self.tabs.addTab(self._sensitivity_tab(), "Sensitivities")
         self.tabs.addTab(self._suggest_tab(), "Suggestions")
         self.tabs.addTab(self._spread_tab(), "Tolerance spread")
-        self._sens_source = self._sens_shown = None
+        # The sensitivities have a worker of their own: a long search does not hold them up.
+        self.sens_jobs = _Jobs(self)
+        self.sens_jobs.relay.done.connect(self._sensitivities_done)
+        self._latest = self._sens_source = self._sens_shown = None
+        self._sens_running = False
         self.tabs.currentChanged.connect(self._refresh_sensitivities)
         # The report covers every page, so its button sits by the tabs rather than on one.
         self.report_button = QPushButton("Export report…")
@@ -260,6 +264,7 @@ class AdvisorPanel(QWidget):
         except CircuitError as exc:
             self.target_problem.setText(exc.message)
             targets = None
+        self._latest = outcome
         if not outcome.ok:
             why = outcome.problem or "the sheet is empty; draw a stage and give it an output probe."
             self.verdict_label.setText(f"No analysis yet: {why}")
@@ -272,13 +277,25 @@ class AdvisorPanel(QWidget):
     def _refresh_sensitivities(self, *_) -> None:
         """Work out the sensitivities of the newest analysis once they are on screen.
 
-        They cost a set of solves per part value, so an edit made while another page is
-        showing does not wait for them."""
+        They cost a set of solves per part value (most of a second on a 600-part design), so
+        they run on the worker thread, and an edit made while another page is showing does
+        not wait for them; one run at a time, the newest analysis next."""
         outcome = self._sens_source
-        if outcome is None or outcome is self._sens_shown or not self.sens_table.isVisible():
+        if (outcome is None or outcome is self._sens_shown or self._sens_running
+                or not self.sens_table.isVisible()):
             return
-        self._sens_shown = outcome
-        self._show_sensitivities(sensitivities(outcome.circuit, outcome.analysis))
+        self._sens_shown, self._sens_running = outcome, True
+        self.sens_jobs.start("sensitivities",
+                             lambda _progress, _cancel: (outcome, sensitivities(outcome.circuit, outcome.analysis)))
+
+    def _sensitivities_done(self, _kind: str, result) -> None:
+        self._sens_running = False
+        if isinstance(result, str):  # the reason they could not be worked out
+            self.sens_table.setRowCount(0)
+            self.sens_notes.setText(result)
+        elif result[0] is self._latest:
+            self._show_sensitivities(result[1])
+        self._refresh_sensitivities()  # a newer analysis arrived meanwhile
 
     def showEvent(self, event):
         super().showEvent(event)

@@ -144,7 +144,7 @@ class AnalysisPanel(QWidget):
 
     def refresh(self) -> None:
         """Analyse the design as it is now (the runner decides on which thread)."""
-        self.runner.request(self.doc)
+        self.runner.request(self.doc, self.window.reading.drawn())
 
     def _show(self, outcome: Outcome) -> None:
         self.outcome = outcome

@@ -19,7 +19,7 @@ from bandsketch.engine.solve.analysis import analyze
 from bandsketch.engine.design.document import Document
 from bandsketch.engine.core.errors import CircuitError
 from bandsketch.engine.present.biasdata import BiasMarks, bias_marks
-from bandsketch.engine.design.netlist import Netlist, build_netlist, connectivity_problems, design_to_circuit
+from bandsketch.engine.design.netlist import DrawnDesign, Netlist, read_design
 from bandsketch.engine.present.plotdata import BarData, BodeData, VerdictData, bar_data, bode_data, verdict_data
 from bandsketch.engine.present.stepdata import PulseData, StepData, time_views
 
@@ -90,7 +90,7 @@ def _problem_outcome(generation, doc, nets, message, parts=(), points=(), starte
                    problem_points=tuple(points), seconds=time.perf_counter() - started)
 
 
-def analyse_design(doc: Document, generation: int = 0) -> Outcome:
+def analyse_design(doc: Document, generation: int = 0, drawn: DrawnDesign | None = None) -> Outcome:
     """Analyse a design snapshot and prepare what the views draw; never raises.
 
     Parameters
@@ -99,15 +99,17 @@ def analyse_design(doc: Document, generation: int = 0) -> Outcome:
         A copy (:meth:`Document.copy`): it is read from another thread.
     generation : int
         Carried into the outcome.
+    drawn : DrawnDesign, optional
+        The nets and circuit of ``doc`` as the sheet already read them (read here if not
+        given); from here on only this run uses the circuit.
     """
     started = time.perf_counter()
     if doc.is_empty():
         return Outcome(generation, doc, seconds=time.perf_counter() - started)
-    nets = build_netlist(doc)
-    try:
-        circuit = design_to_circuit(doc)
-    except CircuitError:
-        first = connectivity_problems(doc)[0]
+    drawn = drawn or read_design(doc)
+    nets, circuit = drawn.netlist, drawn.circuit
+    if circuit is None:
+        first = drawn.problems[0]
         return _problem_outcome(generation, doc, nets, first.message, first.parts, first.points, started)
     try:
         analysis = analyze(circuit, bands=dict(doc.band_pins))
@@ -173,24 +175,25 @@ class AnalysisRunner(QObject):
         """The number of the newest request."""
         return self._generation
 
-    def request(self, doc: Document) -> None:
-        """Analyse ``doc`` as it is now; a newer request supersedes this one."""
+    def request(self, doc: Document, drawn: DrawnDesign | None = None) -> None:
+        """Analyse ``doc`` as it is now (``drawn``: its reading, if the sheet made one); a
+        newer request supersedes this one."""
         self._generation += 1
-        job = (self._generation, doc.copy())
+        job = (self._generation, doc.copy(), drawn)
         if self._running:
             self._pending = job
         else:
             self._start(job)
 
     def _start(self, job) -> None:
-        generation, doc = job
+        generation, doc, drawn = job
         if self.last_seconds <= self.thread_after_s:
-            self._on_done(analyse_design(doc, generation))
+            self._on_done(analyse_design(doc, generation, drawn))
             return
         self._running = True
         self.threaded_runs += 1
         relay = self._relay
-        self.pool.start(lambda: relay.done.emit(analyse_design(doc, generation)))
+        self.pool.start(lambda: relay.done.emit(analyse_design(doc, generation, drawn)))
 
     def _on_done(self, outcome: Outcome) -> None:
         self._running = False

@@ -13,7 +13,7 @@ from bandsketch.engine.design.document import Change, ChangeKind, Document
 from bandsketch.engine.design.parts import GRID
 
 from .. import edits
-from ..engine_link import connectivity_problems
+from ..engine_link import SheetReading
 from ..sheet_index import SheetIndex
 from ..theme import Theme
 from .items import JunctionItem, PartItem, ProblemItem, WireItem
@@ -39,9 +39,10 @@ class SchematicScene(QGraphicsScene):
         How resistors are drawn.
     """
 
-    def __init__(self, doc: Document, theme: Theme, style: ResistorStyle):
+    def __init__(self, doc: Document, theme: Theme, style: ResistorStyle, reading: SheetReading):
         super().__init__()
         self.doc = doc
+        self.reading = reading
         self.theme = theme
         self.style = style
         self.setSceneRect(QRectF(-SHEET_HALF, -SHEET_HALF, 2 * SHEET_HALF, 2 * SHEET_HALF))
@@ -122,7 +123,7 @@ class SchematicScene(QGraphicsScene):
         """Ask the engine what is wrong with the connections and mark it where it is."""
         for item in self._problem_marks:
             self.removeItem(item)
-        self.problems = connectivity_problems(self.doc)
+        self.problems = list(self.reading.drawn().problems)
         self._problem_marks = [ProblemItem(pt, pr.message, self.theme)
                                for pr in self.problems for pt in pr.points]
         for item in self._problem_marks:

@@ -149,11 +149,13 @@ def search(doc, targets: Targets, chosen=None, *, span: float = SPAN_DECADES, li
            progress=None, cancel=None) -> SearchResult:
     """Standard-value combinations of two or three knobs that meet every target at once.
 
+    Every combination of the knobs' series values within ``span`` decades is screened in one
+    batch; the best ``verify`` of them are analysed again in full.
+
     Parameters
     ----------
-    doc : bandsketch.engine.design.document.Document
-        The design (not changed).
-    targets : Targets
+    doc, targets
+        As for :func:`bandsketch.engine.advise.suggest.suggest`.
     chosen : sequence of str, optional
         Two or three part names or knob labels; by default :func:`_propose_knobs`.
     span : float

@@ -230,10 +230,9 @@ def suggest(doc, targets: Targets, *, only=None, with_yield: bool = True, sample
         Spread each suggestion that meets everything (``samples`` samples, seed 1).
     samples : int
         Monte Carlo samples per yield.
-    progress : callable, optional
-        ``progress(done, total)`` after each knob.
-    cancel : callable, optional
-        Polled between knobs; True stops with :class:`bandsketch.engine.core.errors.Cancelled`.
+    progress, cancel : callable, optional
+        ``progress(done, total)`` after each knob; ``cancel()`` polled between knobs, True
+        stops with :class:`bandsketch.engine.core.errors.Cancelled`.
 
     Returns
     -------

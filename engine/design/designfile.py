@@ -208,23 +208,22 @@ def _document_from_dict(data) -> Document:
         if source not in doc.parts or not KINDS[doc.parts[source].kind].signal:
             raise _fail("input", f"{source!r} is not a voltage or current source of this design")
     doc.input_source = source
-    bands = data.get("bands", {})
-    if not isinstance(bands, dict):
-        raise _fail("bands", "must be an object")
-    for element, band in bands.items():
-        problem = schema.band_problem(element, band)
-        if problem:
-            raise _fail("bands", problem)
-        doc.set_band_pin(element, band)
-    targets = data.get("targets", {})
-    if not isinstance(targets, dict):
-        raise _fail("targets", "must be an object")
-    for key, text in targets.items():
-        problem = schema.target_problem(key, text)
-        if problem:
-            raise _fail("targets", problem)
-        doc.set_target(key, text)
+    _read_settings(data, "bands", schema.band_problem, doc.set_band_pin)
+    _read_settings(data, "targets", schema.target_problem, doc.set_target)
     return doc
+
+
+def _read_settings(data, key, problem_of, apply) -> None:
+    """Apply each entry of the object ``data[key]`` (band pins, targets) once the schema
+    passes it; the first entry it refuses refuses the file."""
+    entries = data.get(key, {})
+    if not isinstance(entries, dict):
+        raise _fail(key, "must be an object")
+    for name, value in entries.items():
+        problem = problem_of(name, value)
+        if problem:
+            raise _fail(key, problem)
+        apply(name, value)
 
 
 def load_design(path) -> Document:

@@ -185,6 +185,53 @@ def _circuit_and_errors(doc):
     return c, nets, errors
 
 
+@dataclass(frozen=True)
+class DrawnDesign:
+    """What a drawn design reads as, worked out once: its nets, its circuit and its problems.
+
+    Attributes
+    ----------
+    netlist : Netlist
+        The nets of the sheet.
+    circuit : bandsketch.engine.network.circuit.Circuit or None
+        The circuit it draws, validated; None when a problem stops the analysis.
+    problems : tuple of Problem
+        Every problem, as :func:`connectivity_problems` lists them.
+    error : CircuitError or None
+        The first problem that stops the analysis, as :func:`design_to_circuit` raises it.
+    """
+
+    netlist: Netlist
+    circuit: Circuit | None
+    problems: tuple
+    error: CircuitError | None
+
+
+def read_design(doc) -> DrawnDesign:
+    """Build the nets and the circuit of ``doc`` once, and check them once.
+
+    Parameters
+    ----------
+    doc : bandsketch.engine.design.document.Document
+
+    Returns
+    -------
+    DrawnDesign
+        Bad values come first among its problems; the circuit checks run only once every
+        value reads.
+    """
+    c, nets, errors = _circuit_and_errors(doc)
+    if not any(isinstance(e, BadValueError) for e in errors):
+        errors += circuit_problems(c)
+    problems = []
+    for exc in errors:
+        points = tuple(pt for node in exc.nodes for pt in nets.net_points.get(node, ()))
+        parts = tuple(p for p in exc.parts if p in doc.parts)
+        problems.append(Problem(exc.message, parts, points))
+    return DrawnDesign(nets, None if errors else c, tuple(problems + shorted_parts(doc, nets)),
+                       errors[0] if errors else None)
+
+
 def design_to_circuit(doc) -> Circuit:
     """The circuit a design draws, validated.
 
@@ -198,13 +245,10 @@ def design_to_circuit(doc) -> Circuit:
         The first problem found (a bad value, a dangling pin, no ground ...), naming the
         part or node.
     """
-    c, _, errors = _circuit_and_errors(doc)
-    if errors:
-        raise errors[0]
-    found = circuit_problems(c)
-    if found:
-        raise found[0]
-    return c
+    drawn = read_design(doc)
+    if drawn.error is not None:
+        raise drawn.error
+    return drawn.circuit
 
 
 def connectivity_problems(doc) -> list[Problem]:
@@ -216,15 +260,7 @@ def connectivity_problems(doc) -> list[Problem]:
     ----------
     doc : bandsketch.engine.design.document.Document
     """
-    c, nets, errors = _circuit_and_errors(doc)
-    if not any(isinstance(e, BadValueError) for e in errors):
-        errors += circuit_problems(c)
-    out = []
-    for exc in errors:
-        points = tuple(pt for node in exc.nodes for pt in nets.net_points.get(node, ()))
-        parts = tuple(p for p in exc.parts if p in doc.parts)
-        out.append(Problem(exc.message, parts, points))
-    return out + shorted_parts(doc, nets)
+    return list(read_design(doc).problems)
 
 
 def shorted_parts(doc, nets: Netlist | None = None) -> list[Problem]:

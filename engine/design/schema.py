@@ -112,10 +112,8 @@ def field_problem(part_name: str, f: Field, text, *, typed: bool = True) -> str 
 
     Parameters
     ----------
-    part_name : str
-        For the message.
-    f : bandsketch.engine.design.parts.Field
-        Its ``unit`` is the value's SI unit.
+    part_name, f : str, Field
+        As for :func:`parse_field`.
     text : object
         The field text.
     typed : bool

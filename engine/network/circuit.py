@@ -177,12 +177,10 @@ class Circuit:
 
         Parameters
         ----------
-        name : str
-            Unique element name (``R1``).
-        a, b : str or int
-            Node names; ``0`` or ``"0"`` is ground.
+        name, a, b
+            As for :meth:`resistor`.
         value : float or str
-            Capacitance, F: a number or a text such as ``"2n2"``.
+            F (``"2n2"``).
         """
         return self._add(Capacitor(name, _node_name(a), _node_name(b), self._value(name, "value", value, "F")))
 
@@ -191,12 +189,8 @@ class Circuit:
 
         Parameters
         ----------
-        name : str
-            Unique element name (``R1``).
-        a, b : str or int
-            Node names; ``0`` or ``"0"`` is ground.
-        value : float or str
-            Inductance, H: a number or a text such as ``"10u"``.
+        name, a, b, value
+            As for :meth:`capacitor`, the value in H (``"10u"``).
         """
         return self._add(Inductor(name, _node_name(a), _node_name(b), self._value(name, "value", value, "H")))
 
@@ -215,11 +209,7 @@ class Circuit:
         ac : float or str
             V of the small signal when it is the input.
         """
-        el = self._add(VSource(name, _node_name(p), _node_name(n),
-                               self._value(name, "ac", ac, "V", allow_negative=True, allow_zero=True),
-                               self._value(name, "dc", dc, "V", allow_negative=True, allow_zero=True)))
-        self.input_name = self.input_name or name
-        return el
+        return self._independent(VSource, name, p, n, dc, ac, "V")
 
     def isource(self, name, into, out_of, dc=0.0, ac=1.0):
         """Independent current source pushing ``dc`` A into ``into`` at the operating point and
@@ -227,18 +217,18 @@ class Circuit:
 
         Parameters
         ----------
-        name : str
-            Unique element name (``R1``).
         into, out_of : str or int
             The node the current is pushed into and the node it leaves.
-        dc : float or str
-            A at the operating point.
-        ac : float or str
-            A of the small signal when it is the input.
+        name, dc, ac
+            As for :meth:`vsource`, the values in A.
         """
-        el = self._add(ISource(name, _node_name(into), _node_name(out_of),
-                               self._value(name, "ac", ac, "A", allow_negative=True, allow_zero=True),
-                               self._value(name, "dc", dc, "A", allow_negative=True, allow_zero=True)))
+        return self._independent(ISource, name, into, out_of, dc, ac, "A")
+
+    def _independent(self, kind, name, a, b, dc, ac, unit):
+        # The first independent source added is the input unless input() names another.
+        el = self._add(kind(name, _node_name(a), _node_name(b),
+                            self._value(name, "ac", ac, unit, allow_negative=True, allow_zero=True),
+                            self._value(name, "dc", dc, unit, allow_negative=True, allow_zero=True)))
         self.input_name = self.input_name or name
         return el
 
@@ -288,12 +278,8 @@ class Circuit:
 
         Parameters
         ----------
-        name : str
-            Unique element name (``R1``).
-        out_p, out_n : str or int
-            Output nodes.
-        ctl_p, ctl_n : str or int
-            Controlling nodes.
+        name, out_p, out_n, ctl_p, ctl_n
+            As for :meth:`vccs`.
         gain : float or str
             V/V.
         """
@@ -305,10 +291,8 @@ class Circuit:
 
         Parameters
         ----------
-        name : str
-            Unique element name (``R1``).
-        out_p, out_n : str or int
-            Output nodes.
+        name, out_p, out_n
+            As for :meth:`vccs`.
         sensed_vsource : str
             The voltage source whose current controls it.
         gain : float or str
@@ -322,12 +306,8 @@ class Circuit:
 
         Parameters
         ----------
-        name : str
-            Unique element name (``R1``).
-        out_p, out_n : str or int
-            Output nodes.
-        sensed_vsource : str
-            The voltage source whose current controls it.
+        name, out_p, out_n, sensed_vsource
+            As for :meth:`cccs`.
         r : float or str
             Transresistance, Ω.
         """

@@ -115,10 +115,8 @@ def advice_table(advice, found=None, title: str = "") -> str:
 
     Parameters
     ----------
-    advice : Advice
-        From :func:`advise_design`.
-    found : bandsketch.engine.advise.search.SearchResult, optional
-        A search of knobs together, if one was run.
+    advice, found
+        As for :func:`advice_to_dict`.
     title : str
         Heading; none if empty.
     """

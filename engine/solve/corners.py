@@ -233,14 +233,9 @@ def corners_around(system, f: np.ndarray, H: np.ndarray, f_mid: float, level: fl
     Parameters
     ----------
     system : bandsketch.engine.solve.mna.MnaSystem
-    f : numpy.ndarray
-        Sweep frequencies, Hz, rising.
-    H : numpy.ndarray
-        The complex response there (gain unit).
-    f_mid : float
-        A mid-band frequency, Hz.
-    level : float
-        |A_m|/√2, gain unit.
+    f, H, f_mid, level
+        As for :func:`brackets`: the sweep (Hz) and its response, a mid-band frequency (Hz)
+        and |A_m|/√2 (gain unit).
 
     Returns
     -------

@@ -120,10 +120,8 @@ def port_diagonal(lu, U: sp.csc_matrix) -> np.ndarray:
 
     Parameters
     ----------
-    lu : scipy.sparse.linalg.SuperLU
-        The factorised A (conductances, S).
-    U : scipy.sparse.csc_matrix
-        One port column per element (dimensionless incidence).
+    lu, U
+        As for :func:`port_matrix`.
     """
     dtype = np.result_type(lu.L.dtype, float)
     out = np.empty(U.shape[1], dtype=dtype)

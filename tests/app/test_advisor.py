@@ -32,6 +32,7 @@ def panel(window):
     yield p
     p.jobs.cancel.set()
     p.jobs.wait()
+    p.sens_jobs.wait()
 
 
 def _figures(doc):
@@ -55,6 +56,7 @@ def test_sensitivities_wait_until_shown_and_name_their_part(panel, window, qtbot
     assert panel.sens_table.rowCount() == 0
     window.analysis_tabs.setCurrentWidget(panel)
     panel.tabs.setCurrentIndex(1)
+    assert panel.sens_jobs.wait()  # worked out on the advisor's worker thread
     assert panel.sens_table.rowCount() > 5
     seen = []
     panel.part_hovered.connect(seen.append)

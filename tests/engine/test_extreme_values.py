@@ -49,21 +49,26 @@ DIGITS = 40
 RTOL = 1e-6
 
 
-def extreme_stage() -> Circuit:
-    c = Circuit("electrometer-style front end (invented)")
+def front_end(title: str, rs: str, c_gate: str, c_load: str) -> Circuit:
+    """The invented gate stage of this file and of test_wide_range.py, with its extreme values."""
+    c = Circuit(title)
     c.vsource("Vs", "in", "0")
-    c.resistor("Rs", "in", "a", "1m")
+    c.resistor("Rs", "in", "a", rs)
     c.capacitor("Cin", "a", "g", "1")
     c.resistor("Rb", "g", "0", "1T")
-    c.capacitor("Cgs", "g", "s", "1f")
-    c.capacitor("Cgd", "g", "d", "1f")
+    c.capacitor("Cgs", "g", "s", c_gate)
+    c.capacitor("Cgd", "g", "d", c_gate)
     c.vccs("Gm", "d", "s", "g", "s", "10m")
     c.resistor("Rss", "s", "0", "1k")
     c.capacitor("Cs", "s", "0", "1")
     c.resistor("Rd", "d", "0", "10k")
-    c.capacitor("Cl", "d", "0", "1p")
+    c.capacitor("Cl", "d", "0", c_load)
     c.output("d")
     return c
+
+
+def extreme_stage() -> Circuit:
+    return front_end("electrometer-style front end (invented)", rs="1m", c_gate="1f", c_load="1p")
 
 
 def exact(x) -> mp.mpf:

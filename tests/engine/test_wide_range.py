@@ -21,24 +21,11 @@ import pytest
 from bandsketch.engine import analyze
 from bandsketch.engine.network.circuit import Circuit
 from bandsketch.engine.network.elements import Capacitor
-from test_extreme_values import DIGITS, Reference, close, exact_corner
+from test_extreme_values import DIGITS, Reference, close, exact_corner, front_end
 
 
 def wide_stage() -> Circuit:
-    c = Circuit("wide-range front end (invented)")
-    c.vsource("Vs", "in", "0")
-    c.resistor("Rs", "in", "a", "1u")
-    c.capacitor("Cin", "a", "g", "1")
-    c.resistor("Rb", "g", "0", "1T")
-    c.capacitor("Cgs", "g", "s", "1e-18")
-    c.capacitor("Cgd", "g", "d", "1e-18")
-    c.vccs("Gm", "d", "s", "g", "s", "10m")
-    c.resistor("Rss", "s", "0", "1k")
-    c.capacitor("Cs", "s", "0", "1")
-    c.resistor("Rd", "d", "0", "10k")
-    c.capacitor("Cl", "d", "0", "1e-18")
-    c.output("d")
-    return c
+    return front_end("wide-range front end (invented)", rs="1u", c_gate="1e-18", c_load="1e-18")
 
 
 @pytest.fixture(scope="module")
