@@ -6,9 +6,9 @@ the exact upper and lower corners, and d ln |A_m| / d ln x for the mid-band gain
 
 Estimates (method notes §7). With X = G⁻¹E and Y = G⁻ᵀE for the port columns E, a change
 of a stamp coefficient p_k with pattern P_k changes the port matrix by dZ = −Yᵀ P_k X, so
-b1 = Σ D_j Z_jj gives ∂b1/∂p_k = −Σ_ab P_k[a,b] (X D Yᵀ)[b,a], and ∂b1/∂D_j = Z_jj; and
-ω_L = tr((D Z)⁻¹) gives ∂ω_L/∂p_k = Σ_ab P_k[a,b] (X W⁻² D Yᵀ)[b,a] with W = D Z, and
-∂ω_L/∂ln D_j = −D_j (Z W⁻²)_jj. One solve set each for X and Y serves every part.
+b1 = Σ D_j Z_jj gives ∂b1/∂p_k = −Σ_ab P_k[a,b] (X D Yᵀ)[b,a], and ∂b1/∂D_j = Z_jj. One
+solve set each for X and Y serves every part. The lower-corner estimate moves with each
+low-band port's pole (the diagonal of W⁻¹, W = D Z) and zero (:func:`_low_estimate`).
 
 Exact corners. A corner f solves F = ln|H(j2πf)| − ln|A_m| + ½ ln 2 = 0, so by the implicit
 function theorem d ln f / d ln p = −(∂F/∂ln p) / (∂F/∂ln f). With x = A⁻¹b and y = A⁻ᵀc for
@@ -28,9 +28,10 @@ import numpy as np
 
 from ..core.band import Band
 from ..network.elements import Capacitor, Inductor, Resistor
-from ..solve.mna import build_system
+from ..solve.lowcorner import section_corner
+from ..solve.mna import OPEN, build_system
 from .partvalues import PartValue, parametric_system, part_values
-from ..solve.timeconstants import port_columns, port_weights
+from ..solve.timeconstants import CUT_OFF, port_columns, port_weights
 
 FIGURES = ("high_exact", "high_estimate", "low_exact", "low_estimate", "gain")
 """The figures a :class:`Sensitivity` row holds, by attribute name."""
@@ -133,23 +134,68 @@ def _high_estimate(mid_sys, mid_ps, high, coef, sign, names):
     return -d_b1 / b1
 
 
-def _low_estimate(dc_sys, dc_ps, low, coef, sign, names):
+def _bordered_gain(G, b, c, U, patterns, scale):
+    """The gain of the network ``G`` with the ports ``U`` at infinite value, and d ln|H| / d ln x
+    (None where the gain is zero).
+
+    Infinite value is the constraint Uᵀx = 0 (no voltage across a capacitor, no current in an
+    inductor), held by one multiplier per port; the part values' patterns stay those of ``G``.
+    """
+    n, m = G.shape[0], U.shape[1]
+    K = np.zeros((n + m, n + m))
+    K[:n, :n], K[:n, n:], K[n:, :n] = G, U, U.T
+    rhs, sel = np.concatenate((b, np.zeros(m))), np.concatenate((c, np.zeros(m)))
+    x, y = np.linalg.solve(K, rhs), np.linalg.solve(K.T, sel)
+    gain = float(sel @ x)
+    if gain == 0:
+        return gain, None
+    return gain, -np.einsum("kab,a,b->k", patterns, y[:n], x[:n]) * scale / gain
+
+
+def _low_estimate(circuit, states, low, names, coef, sign):
+    """d ln f_L / d ln x of the section estimate (:mod:`bandsketch.engine.solve.lowcorner`).
+
+    Each port's pole p_j = (W⁻¹)_jj moves by Σ_ab P_k[a,b] (X W⁻ᵀ)[b,j] (Y D W⁻ᵀ)[a,j] and by
+    −p_j for its own ln C (or ln L); its zero z_j = |H^j/H^0|·p_j also by the change of the two
+    gains, each of a network with the other ports at infinite value. The corner solves
+    F = Σ ln(ω² + p_j²) − ln(ω² + z_j²) − ln 2 = 0, so d ln ω = −Σ(a_j d ln p_j − b_j d ln z_j)/Σ(b_j − a_j)
+    with a_j = p_j²/(ω² + p_j²), b_j = z_j²/(ω² + z_j²).
+    """
     if not low:
         return None
-    U, D, X, Y = _port_solves(dc_sys, low)
-    Z = U.T @ X
-    W_inv = np.linalg.inv(D[:, None] * Z)
-    W2 = W_inv @ W_inv
-    omega = float(np.trace(W_inv))
-    if not omega > 0:
-        return None
-    d_omega = _pattern_terms(dc_ps.G_patterns, X @ (W2 * D[None, :]) @ Y.T) * coef * sign
+    low_names = {el.name for el in low}
+    low_states = {**{k: v for k, v in states.items() if k not in low_names},
+                  **{el.name: OPEN for el in low if isinstance(el, Capacitor)}}
+    system = build_system(circuit, low_states)
+    patterns = parametric_system(circuit, names, low_states).G_patterns
+    scale = coef * sign
+    U, D, X, Y = _port_solves(system, low)
+    W_inv = np.linalg.inv(D[:, None] * (U.T @ X))
+    poles = np.diag(W_inv).copy()
+    d_ln_p = np.einsum("kab,aj,bj->kj", patterns, (Y * D[None, :]) @ W_inv.T, X @ W_inv) * scale[:, None] / poles
     at = {el.name: j for j, el in enumerate(low)}
-    ZW2 = Z @ W2
     for k, n in enumerate(names):
         if n in at:
-            d_omega[k] += -D[at[n]] * ZW2[at[n], at[n]]
-    return d_omega / omega
+            d_ln_p[k, at[n]] -= 1.0
+    G, b, c = system.G.toarray(), system.b.astype(float), system.c.astype(float)
+    everyone = list(range(len(low)))
+    h0, d_ln_h0 = _bordered_gain(G, b, c, U, patterns, scale)
+    ratios = np.zeros(len(low))
+    d_ln_z = d_ln_p.copy()
+    for j in everyone:
+        others = [i for i in everyone if i != j]
+        hj, d_ln_hj = _bordered_gain(G, b, c, U[:, others], patterns, scale)
+        ratios[j] = hj / h0 if abs(hj / h0) >= CUT_OFF else 0.0
+        if ratios[j] != 0:
+            d_ln_z[:, j] += d_ln_hj - d_ln_h0
+    wp = np.abs(poles)
+    wz = np.abs(ratios) * wp
+    omega = section_corner(wp, wz)
+    if omega is None:
+        return None
+    w2 = omega * omega
+    a, bz = wp * wp / (w2 + wp * wp), wz * wz / (w2 + wz * wz)
+    return -(d_ln_p @ a - d_ln_z @ bz) / float(np.sum(bz - a))
 
 
 def _midband_gain_terms(mid_sys, mid_ps, coef, sign):
@@ -202,7 +248,7 @@ def sensitivities(circuit, analysis) -> Sensitivities:
     low = [el for el in reactive if bands[el.name] == Band.LOW]
     notes: dict = {}
     hi_est = _guarded(notes, "high_estimate", lambda: _high_estimate(mid_sys, mid_ps, high, coef, sign, names))
-    lo_est = _guarded(notes, "low_estimate", lambda: _low_estimate(dc_sys, full_ps, low, coef, sign, names))
+    lo_est = _guarded(notes, "low_estimate", lambda: _low_estimate(circuit, states, low, names, coef, sign))
     d_gain = _guarded(notes, "gain", lambda: _midband_gain_terms(mid_sys, mid_ps, coef, sign))
     hi_ex = lo_ex = None
     for figure, f_hz in (("high_exact", analysis.f_high_exact), ("low_exact", analysis.f_low_exact)):

@@ -43,11 +43,11 @@ PEAK_SHOWN_DB = 0.1
 PEAK_ROOM = 0.25
 """Above the mid band (or a peak) the magnitude axis leaves this fraction of its span for labels."""
 
-PAIR_TITLE = "Pole–zero pairs: 1/2πτ, no corner"
+PAIR_TITLE = "Pole–zero pairs: pole → zero, no corner"
 PAIR_TOTAL = "opening each costs < 3 dB"
-PAIR_NOTE = ("a pole–zero pair: opening it costs less than 3 dB, so it sets no corner of its own, "
-             "and its share of ω_L overstates it")
-BAND_TITLES = {Band.HIGH: "High band: τ, share of b1", Band.LOW: "Low band: 1/2πτ, share of ω_L",
+PAIR_NOTE = ("a pole–zero pair: opening it costs less than 3 dB, so it sets no corner of its own; "
+             "the f_L estimate counts it for the part of the 3 dB it costs at f_L")
+BAND_TITLES = {Band.HIGH: "High band: τ, share of b1", Band.LOW: "Low band: 1/2πτ, share of the 3 dB at f_L",
                Band.NEUTRAL: "No effect on the gain"}
 
 
@@ -179,11 +179,13 @@ class BarRow:
     band : str
         ``"high"``, ``"low"`` or ``"neutral"``.
     value : float
-        High band: the time constant τ, s. Low band: 1/(2πτ), Hz. Neutral: 0.
+        High band: the time constant τ, s. Low band: its pole 1/(2πτ), Hz. Neutral: 0.
     value_text : str
-        ``value`` formatted with its unit (``"150 ns"``, ``"53.1 Hz"``); ``"—"`` if neutral.
+        ``value`` formatted with its unit (``"150 ns"``, ``"53.1 Hz"``; a pole–zero pair
+        ``"19.2 Hz → 15.9 Hz"``, its pole and zero); ``"—"`` if neutral.
     share : float
-        Share of b1 (high band) or of ω_L (low band), 0–1; 0 for neutral elements.
+        Share of b1 (high band) or of the 3 dB at f_L (low band), 0–1 (below 0 for a low-band
+        element whose opening raises the gain); 0 for neutral elements.
     share_text : str
         E.g. ``"84 %"`` (of the sum named in the group's title); empty if neutral.
     pinned : bool
@@ -458,12 +460,15 @@ def bode_data(analysis) -> BodeData:
 
 
 def _percent(share: float) -> str:
-    # A small but real share reads "<1 %", not "0 %", which would say it adds nothing.
-    return "<1 %" if 0 < share < 0.005 else f"{100 * share:.0f} %"
+    # A small but real share reads "<1 %", not "0 %", which would say it adds nothing; a
+    # small negative one (a pair whose opening raises the gain a little) "−<1 %".
+    if 0 < abs(share) < 0.005:
+        return "<1 %" if share > 0 else "−<1 %"
+    return f"{100 * share:.0f} %".replace("-", "−")
 
 
 def _band_sum_name(band: Band) -> str:
-    return "b1" if band == Band.HIGH else "ω_L"
+    return "b1" if band == Band.HIGH else "the 3 dB at f_L"
 
 
 def element_label(result) -> str:
@@ -513,6 +518,8 @@ def _group(band: Band, results: list, analysis, pairs: bool = False) -> BandGrou
         elif band == Band.LOW:
             value = 1 / (2 * math.pi * r.time_constant)
             text = format_value(value, "Hz")
+            if pairs:
+                text += f" → {format_value(r.f_zero, 'Hz')}"
         else:
             value, text = 0.0, "—"
         share_text = "" if band == Band.NEUTRAL else _percent(r.share)

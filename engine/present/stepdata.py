@@ -8,6 +8,7 @@ fraction of the final value (the edge rises to 1 whatever the stage's gain and s
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 
 import numpy as np
@@ -155,8 +156,8 @@ def step_data(step) -> StepData:
 def _default_pulse_width(analysis, step) -> float:
     """s: wide enough for the low band's estimated sag to be 10 % (ω_L·T = 0.1); with no low
     band, :data:`DC_PULSE_WIDTHS` step windows."""
-    omega = analysis.omega_low_estimate
-    if omega and omega > 0:
+    omega = 2 * math.pi * (analysis.f_low_estimate_sum or 0.0)
+    if omega > 0:
         return PULSE_SAG_SHOWN / omega
     return DC_PULSE_WIDTHS * float(step.t[-1])
 

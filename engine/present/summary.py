@@ -14,7 +14,7 @@ from .biasdata import BIAS_HEADINGS, bias_rows
 
 _ELEMENT_UNITS = {"capacitance": "F", "inductance": "H", "resistance": "Ω", "time_constant": "s",
                   "share": "1", "gain_shorted": None, "gain_opened": None, "midband_reactance": "Ω",
-                  "midband_resistance": "Ω"}
+                  "midband_resistance": "Ω", "f_zero": "Hz"}
 
 
 def _number(x):
@@ -72,6 +72,8 @@ def analysis_to_dict(a) -> dict:
         "f_high_ratio": _number(a.f_high_ratio),
         "omega_low_estimate": _number(a.omega_low_estimate),
         "f_low_estimate": _number(a.f_low_estimate),
+        "f_low_estimate_squares": _number(a.f_low_estimate_squares),
+        "f_low_estimate_sum": _number(a.f_low_estimate_sum),
         "f_low_exact": _number(a.f_low_exact),
         "f_low_ratio": _number(a.f_low_ratio),
         "dominant_high": a.dominant_high,
@@ -87,7 +89,8 @@ def analysis_to_dict(a) -> dict:
         "units": {
             "midband_gain": gain, "midband_gain_db": "dB", "midband_frequency": "Hz", "b1": "s", "b2": "s²",
             "high_time_constants": "s", "f_high_estimate": "Hz", "f_high_estimate_2nd": "Hz",
-            "f_high_exact": "Hz", "f_low_estimate": "Hz", "f_low_exact": "Hz", "omega_low_estimate": "rad/s",
+            "f_high_exact": "Hz", "f_low_estimate": "Hz", "f_low_estimate_squares": "Hz",
+            "f_low_estimate_sum": "Hz", "f_low_exact": "Hz", "omega_low_estimate": "rad/s",
             "f_high_ratio": "1", "f_low_ratio": "1", "poles": "rad/s", "zeros": "rad/s",
             "node_voltages": "V", "branch_currents": "A", "ic": "A", "ib": "A", "id": "A", "vbe": "V",
             "vce": "V", "vbc": "V", "vgs": "V", "vds": "V", "vbs": "V", "vth": "V", "gm": "S", "gmb": "S",

@@ -26,6 +26,7 @@ from ..network.elements import Capacitor, Inductor, ISource, VSource
 from ..core.errors import CircuitError
 from .dcop import OperatingPoint, solved
 from .floating import check_dc_solvable
+from .lowcorner import LowSections, low_sections
 from .mna import OPEN, SHORT, build_system
 from .response import frequency_response, poles, zeros
 from . import step
@@ -102,7 +103,9 @@ class ElementResult:
         s: C·R for a capacitor, L/R for an inductor. None when neutral. Low-band
         capacitors in parallel form one port: each reports the port's R and τ = ΣC·R.
     share : float
-        Fraction of its band: τ/b1 in the high band, (1/τ)/ω_L in the low band; 0 when neutral.
+        Fraction of its band: τ/b1 in the high band; in the low band its part of the 3 dB
+        fall at the estimated f_L (:class:`~bandsketch.engine.solve.lowcorner.LowSections`;
+        negative when its opening raises the gain); 0 when neutral.
     reason : str
         Why it is in its band, in words.
     gain_shorted, gain_opened : float
@@ -124,8 +127,13 @@ class ElementResult:
         Its state and why, in words (``"shorted at mid band: 1/(2π·f_m·C) = 31.8 mΩ beside
         the 5 kΩ it sees"``).
     pole_zero_pair : bool
-        A low-band element whose low-frequency state costs less than 3 dB: it makes a
-        pole–zero pair, not a corner of its own.
+        A low-band element whose own section never falls 3 dB (its open/short gain ratio
+        is above 1/√2): it makes a pole–zero pair, not a corner of its own.
+    f_zero : float or None
+        Hz, the zero of its own section in the low band: |H^j/H^0|/(2π·τ), with H^j the
+        gain with it at its low-frequency state and the other low-band elements at their
+        mid-band states, H^0 the gain with them all there; 0 for a coupling element. Its
+        pole is 1/(2π·τ). None outside the low band.
     """
 
     name: str
@@ -144,6 +152,7 @@ class ElementResult:
     midband_resistance: float
     state_reason: str
     pole_zero_pair: bool
+    f_zero: float | None
 
 
 @dataclass(frozen=True)
@@ -191,9 +200,18 @@ class Analysis:
     f_high_estimate_2nd : float or None
         Hz, the corner of 1/(1 + b1·s + b2·s²).
     omega_low_estimate : float or None
-        rad/s, Σ 1/τ of the low band's short-circuit time constants.
+        rad/s, the lower-corner estimate ω_L: where the low band's sections, each a pole
+        1/τ (short-circuit time constant) and a zero from its open/short gain ratio, fall
+        3 dB together (:mod:`bandsketch.engine.solve.lowcorner`); None where they never do
+        (only pole–zero pairs).
     f_low_estimate : float or None
-        Hz, ω_L/(2π).
+        Hz, ω_L/(2π): the headline lower-corner estimate.
+    f_low_estimate_squares : float or None
+        Hz, √(Σω_p² − 2Σω_z²)/(2π) of the same sections (the first-order expansion);
+        None where the radicand is not positive.
+    f_low_estimate_sum : float or None
+        Hz, Σ 1/τ/(2π): the sum of the low band's pole magnitudes (exact), which counts
+        a pole–zero pair as a pole; also the rate a pulse's top starts to sag at.
     f_high_exact, f_low_exact : float or None
         Hz, where the exact |H| falls to |A_m|/√2 above and below the mid band; None where
         it never does (a d.c.-coupled stage has no lower corner).
@@ -222,6 +240,8 @@ class Analysis:
     f_high_estimate_2nd: float | None
     omega_low_estimate: float | None
     f_low_estimate: float | None
+    f_low_estimate_squares: float | None
+    f_low_estimate_sum: float | None
     f_high_exact: float | None
     f_low_exact: float | None
     f_high_ratio: float | None
@@ -522,7 +542,8 @@ def _low_band(c, low, states):
         ports.append(group)
     sc = short_circuit(factorize(system.G, "with the low-band elements at zero value", sorted(low_names)),
                        port_columns(system, [g[0] for g in ports]),
-                       np.array([sum(port_weights(g)) for g in ports]), ["+".join(el.name for el in g) for g in ports])
+                       np.array([sum(port_weights(g)) for g in ports]), ["+".join(el.name for el in g) for g in ports],
+                       io=(system.b, system.c))
     return sc, port_of
 
 
@@ -623,8 +644,10 @@ class Estimates:
         Low-band element name -> its port in ``short_circuit`` (parallel capacitors share one).
     f_high, f_high_2nd : float or None
         Hz, 1/(2π·b1) and the corner of 1/(1 + b1·s + b2·s²).
+    low_sections : bandsketch.engine.solve.lowcorner.LowSections
+        The low band's ports as first-order sections (poles, zeros, shares).
     omega_low : float or None
-        rad/s, the low band's estimate ω_L.
+        rad/s, the low band's estimate ω_L (where its sections fall 3 dB together).
     f_low : float or None
         Hz, ω_L/(2π).
     """
@@ -632,6 +655,7 @@ class Estimates:
     open_circuit: object
     short_circuit: object
     low_port_of: Mapping[str, int]
+    low_sections: LowSections
     f_high: float | None
     f_high_2nd: float | None
     omega_low: float | None
@@ -783,9 +807,10 @@ def estimate(stage: Stage, bands: Classification, full_matrix_limit: int = FULL_
     sc, low_port_of = _low_band(stage.circuit, low, bands.states)
     f_high = 1 / (2 * math.pi * oc.b1) if oc.b1 > 0 else None
     f_high_2nd = second_order_corner(oc.b1, oc.b2) if high and oc.b2 is not None else None
-    omega_low = sc.omega if low else None
-    f_low = omega_low / (2 * math.pi) if omega_low and omega_low > 0 else None
-    return Estimates(oc, sc, MappingProxyType(low_port_of), f_high, f_high_2nd, omega_low, f_low)
+    sections = low_sections(sc.time_constants, sc.open_short_ratios)
+    omega_low = sections.omega if low else None
+    f_low = omega_low / (2 * math.pi) if omega_low else None
+    return Estimates(oc, sc, MappingProxyType(low_port_of), sections, f_high, f_high_2nd, omega_low, f_low)
 
 
 def exact_corners(stage: Stage, bands: Classification) -> ExactCorners:
@@ -817,7 +842,7 @@ def _results(stage, bands, est):
     for el in stage.reactive:
         band = bands.bands[el.name]
         test = bands.tests[el.name]
-        resistance = tau = None
+        resistance = tau = f_zero = None
         share = 0.0
         if band == Band.HIGH:
             j = position[el.name]
@@ -830,9 +855,10 @@ def _results(stage, bands, est):
             tau = float(sc.time_constants[j])
             y = float(sc.inverse_diagonal[j])
             resistance = 1 / y if isinstance(el, Capacitor) else -y
-            # Parallel partners share their port's 1/τ in proportion to capacitance.
+            # Parallel partners share their port's part in proportion to capacitance.
             part = el.value / total_c[el.name] if isinstance(el, Capacitor) else 1.0
-            share = part * (1 / tau) / est.omega_low if est.omega_low else 0.0
+            share = part * float(est.low_sections.shares[j])
+            f_zero = float(est.low_sections.zeros[j]) / (2 * math.pi)
         state, seen, x = bands.states[el.name], bands.seen[el.name], reactance(el, bands.midband_frequency)
         why_state = state_reason(el, state, x, seen)
         reason = _reason(el, test, unit_db)
@@ -844,7 +870,8 @@ def _results(stage, bands, est):
                       time_constant=tau, share=share, reason=reason, gain_shorted=test.gain_shorted,
                       gain_opened=test.gain_opened, acts_in_band=test.acts_in_band, state=state,
                       midband_reactance=x, midband_resistance=seen, state_reason=why_state,
-                      pole_zero_pair=band == Band.LOW and el.name not in stage.fixed and _makes_pair(test, el))
+                      pole_zero_pair=band == Band.LOW and el.name not in stage.fixed and
+                      est.low_sections.is_pair(est.low_port_of[el.name]), f_zero=f_zero)
         if isinstance(el, Capacitor):
             caps[el.name] = CapacitorResult(**common, capacitance=el.value)
         else:
@@ -910,12 +937,19 @@ def analyze(c, bands=None, *, per_decade: int | None = None, full_matrix_limit: 
         high_time_constants=None if oc.exact is None else tuple(complex(v) for v in oc.exact),
         f_high_estimate=est.f_high, f_high_estimate_2nd=est.f_high_2nd,
         omega_low_estimate=est.omega_low, f_low_estimate=est.f_low,
+        f_low_estimate_squares=_hz_of(est.low_sections.omega_squares if est.low_port_of else None),
+        f_low_estimate_sum=_hz_of(est.low_sections.omega_sum if est.low_port_of else None),
         f_high_exact=exact.f_high, f_low_exact=exact.f_low,
         f_high_ratio=_ratio(est.f_high, exact.f_high), f_low_ratio=_ratio(est.f_low, exact.f_low),
         dominant_high=_dominant(every, Band.HIGH), dominant_low=_dominant(every, Band.LOW),
         sweep_frequencies=stage.sweep_frequencies, sweep_response=stage.sweep_response,
         _warnings=tuple(notes), sources=tuple(el.name for el in c.elements.values() if isinstance(el, (VSource, ISource))),
         _system=stage.system, _zeros=known_zeros, operating_point=stage.operating_point)
+
+
+def _hz_of(omega):
+    """Hz of a positive angular frequency (rad/s); None otherwise."""
+    return omega / (2 * math.pi) if omega and omega > 0 else None
 
 
 def _dominant(results, band):
@@ -941,8 +975,9 @@ def _element_notes(stage, results) -> list[str]:
             verb = "Opening" if is_cap else "Shorting"
             cost = (f"raises the gain by {20 * math.log10(low_gain / high_gain):.2f} dB" if low_gain >= high_gain
                     else f"costs only {20 * math.log10(high_gain / low_gain):.2f} dB")
-            notes.append(f"{verb} {r.name} {cost}: it makes a pole–zero pair, not a corner of its own, and its "
-                         "share of the lower-corner estimate overstates it.")
+            notes.append(f"{verb} {r.name} {cost}: it makes a pole–zero pair (pole {_hz(1 / (2 * math.pi * r.time_constant))}, "
+                         f"zero {_hz(r.f_zero)}), not a corner of its own; the lower-corner estimate counts it "
+                         "for the part of the 3 dB it costs.")
     return notes
 
 
@@ -1002,7 +1037,8 @@ def _low_band_notes(est) -> list[str]:
     if len(p) >= 2 and p[0] < DOMINANCE * p[1]:
         p1, p2 = (w / (2 * math.pi) for w in p[:2])
         return [f"No pole dominates the low band: the second pole ({_hz(p2)}) is within {DOMINANCE:g}× of the "
-                f"first ({_hz(p1)}), so the estimate Σ1/τ, which adds them, is weak."]
+                f"first ({_hz(p1)}), so the lower corner depends on how the low-band elements interact, which "
+                "the estimate (each element a section of its own) leaves out."]
     return []
 
 
@@ -1036,15 +1072,15 @@ def _why_off(side, stage, bands, est, exact, results, known_zeros) -> list[str]:
     else:
         pairs = [r.name for r in results.values() if r.pole_zero_pair]
         if pairs:
-            why.append(f"{_names(pairs)} make{'s' if len(pairs) == 1 else ''} a pole–zero pair that Σ1/τ "
-                       "counts as a pole")
+            why.append(f"{_names(pairs)} make{'s' if len(pairs) == 1 else ''} a pole–zero pair whose zero moves "
+                       "with the other low-band elements")
         p = _low_poles(est)
         if len(p) >= 2 and p[0] < DOMINANCE * p[1]:
             why.append(f"no pole dominates the low band (the second is within {DOMINANCE:g}× of the first), "
-                       "and Σ1/τ adds them")
+                       "and the low-band elements interact, which separate sections leave out")
     if not why:
         why.append("the time constants interact more than a sum of them describes" if side == Band.HIGH else
-                   "the short-circuit time constants interact more than a sum of them describes")
+                   "the low-band elements interact more than separate sections describe")
     return why
 
 
@@ -1060,19 +1096,19 @@ def _error_notes(stage, bands, est, exact, results, known_zeros) -> list[str]:
         why = "; ".join(_why_off(side, stage, bands, est, exact, results, known_zeros))
         notes.append(f"The {sym} estimate ({_hz(estimate_)}) is {abs(off):.0f} % {where} the exact corner "
                      f"({_hz(exact_)}): {why}. Trust the exact corner.")
+    if est.low_port_of and est.f_low is None and exact.f_low:
+        why = "; ".join(_why_off(Band.LOW, stage, bands, est, exact, results, known_zeros))
+        notes.append(f"The f_L estimate finds no lower corner (the low-band elements together never cost 3 dB), "
+                     f"but the exact gain falls 3 dB at {_hz(exact.f_low)}: {why}. Trust the exact corner.")
+    if est.f_low and exact.f_low is None:
+        notes.append("The exact gain never falls 3 dB below the mid band: there is no lower corner, only the "
+                     "estimate.")
     return notes
 
 
 def _names(names) -> str:
     names = list(names)
     return names[0] if len(names) == 1 else ", ".join(names[:-1]) + " and " + names[-1]
-
-
-def _makes_pair(test, el) -> bool:
-    """The element's low-frequency state costs less than 3 dB: a pole–zero pair, no corner."""
-    is_cap = isinstance(el, Capacitor)
-    low_gain, high_gain = (test.gain_opened, test.gain_shorted) if is_cap else (test.gain_shorted, test.gain_opened)
-    return high_gain > 0 and low_gain / high_gain > 1 / math.sqrt(2)
 
 
 def _peaking_note(stage, gain) -> list[str]:

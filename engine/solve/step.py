@@ -173,7 +173,8 @@ class PulseResponse:
     sag : float
         Fraction of the final value the top has fallen by at the end of the pulse.
     sag_estimate : float
-        Fraction, ω_L·T with ω_L the low band's Σ 1/τ; 0 without a low band.
+        Fraction, ω·T with ω the low band's Σ 1/τ (the sum of its pole magnitudes; a pole–zero
+        pair's zero, which slows the fall, is left out); 0 without a low band.
     edge : StepResponse
         The rising edge (the step response on the high band's time scale); the falling edge
         is its mirror image, less the sag.
@@ -426,7 +427,7 @@ def pulse_response(analysis, width: float, t_stop: float | None = None, points: 
     y = s.copy()
     y[per_width:] -= s[:t.size - per_width]
     sag = 1 - s[min(per_width, t.size - 1)] / final
-    omega = analysis.omega_low_estimate or 0.0
+    omega = 2 * math.pi * (analysis.f_low_estimate_sum or 0.0)
     t.flags.writeable = False
     y.flags.writeable = False
     return PulseResponse(t=t, y=y, width=float(width), final_value=final, sag=float(sag),

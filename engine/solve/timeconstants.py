@@ -25,6 +25,8 @@ FULL_MATRIX_LIMIT = 1000
 """Up to this many ports the whole port matrix is formed (b2, exact time constants);
 beyond it only its diagonal (b1), since the matrix costs N² memory and its eigenvalues N³."""
 _CHUNK_BYTES = 32 * 1024 * 1024
+CUT_OFF = 1e-9
+"""An open/short gain ratio below this is rounding of an exact zero (a coupling element)."""
 _SINGULAR = 1e-12
 """A port matrix whose smallest singular value is below this fraction of its largest is singular."""
 
@@ -226,15 +228,21 @@ class ShortCircuit:
     exact : numpy.ndarray
         Eigenvalues λ of D·Z (s), largest magnitude first: the low band's true time
         constants, whose poles are −1/λ.
+    open_short_ratios : numpy.ndarray or None
+        H^j/H^0 of each port (V/V over V/V, or V/A over V/A, signed): the gain with port j at
+        zero value and every other port at infinite value, over the gain with them all at
+        infinite value (Hajimiri's transfer constants in their infinite-value form); None
+        when no input and output were given.
     """
 
     inverse_diagonal: np.ndarray
     time_constants: np.ndarray
     omega: float
     exact: np.ndarray
+    open_short_ratios: np.ndarray | None = None
 
 
-def short_circuit(lu, U: sp.csc_matrix, D: np.ndarray, names) -> ShortCircuit:
+def short_circuit(lu, U: sp.csc_matrix, D: np.ndarray, names, io=None) -> ShortCircuit:
     """Short-circuit time constants of the ports ``U``: R_jˢ = 1/(Z⁻¹)_jj, from one LU.
 
     Parameters
@@ -244,11 +252,21 @@ def short_circuit(lu, U: sp.csc_matrix, D: np.ndarray, names) -> ShortCircuit:
     names : sequence of str
         Port names, for the message when ports form a loop (parallel capacitors) and no
         port can be shorted alone.
+    io : (numpy.ndarray, numpy.ndarray), optional
+        The input vector b and output selector c of the network, for the open/short gain
+        ratios.
+
+    Notes
+    -----
+    With x = G⁻¹b, y = G⁻ᵀc, p = Uᵀx, q = Uᵀy and Y = Z⁻¹, the gain with every port at
+    infinite value is H^0 = cᵀx − qᵀYp, and with port j alone at zero value it is
+    H^0 + (qᵀY)_j (Yp)_j / Y_jj (the Schur complement of Y without row and column j): two
+    more solves for every port at once.
     """
     n = U.shape[1]
     if n == 0:
         empty = np.zeros(0)
-        return ShortCircuit(empty, empty, 0.0, empty.astype(complex))
+        return ShortCircuit(empty, empty, 0.0, empty.astype(complex), None if io is None else empty)
     Z = port_matrix(lu, U)
     u, s, vt = la.svd(Z)
     if s[-1] <= _SINGULAR * s[0]:
@@ -258,6 +276,23 @@ def short_circuit(lu, U: sp.csc_matrix, D: np.ndarray, names) -> ShortCircuit:
             f"{', '.join(loop)} form a loop (for instance capacitors in parallel): shorting one shorts "
             "the others, so none has a short-circuit time constant of its own. Combine them into one "
             "part, or pin all but one of them to the neutral band.", parts=loop)
-    inv_diag = np.einsum("ij,ji->i", vt.T / s[None, :], u.T)
+    Y = (vt.T / s[None, :]) @ u.T
+    inv_diag = np.diag(Y).copy()
     tau = D / inv_diag
-    return ShortCircuit(inv_diag, tau, float(np.sum(1.0 / tau)), _eigenvalues(D, Z))
+    return ShortCircuit(inv_diag, tau, float(np.sum(1.0 / tau)), _eigenvalues(D, Z),
+                        None if io is None else _open_short_ratios(lu, U, Y, *io))
+
+
+def _open_short_ratios(lu, U, Y, b, c) -> np.ndarray:
+    """H^j/H^0 of every port (see :func:`short_circuit`); exact zeros stay zeros."""
+    x = lu.solve(np.asarray(b, dtype=float))
+    y = lu.solve(np.asarray(c, dtype=float), trans="T")
+    p, q = U.T @ x, U.T @ y
+    u, v = q @ Y, Y @ p
+    h0 = float(c @ x) - float(q @ v)
+    if h0 == 0:
+        return np.zeros(len(p))
+    ratios = 1 + u * v / (np.diag(Y) * h0)
+    # A coupling element cuts the signal off exactly; the difference keeps only rounding.
+    ratios[np.abs(ratios) < CUT_OFF] = 0.0
+    return ratios

@@ -184,3 +184,106 @@ def rc_coupled(stages=2, coupling=1e-6):
     c.capacitor("CL", "out", "0", 20e-12)
     c.output("out")
     return c
+
+
+def transfer(circuit):
+    """Numerator and denominator of H(s) = v_out/u, float coefficients, highest power first.
+
+    The same nodal equations as :func:`denominator`, solved by Cramer's rule: the output
+    node's voltage is det(Y with its column replaced by the source vector)/det(Y). For
+    scipy.signal (``freqs``); the output must be a node against ground.
+    """
+    nodes = sorted({n for el in circuit.elements.values() for n in el.nodes} - {"0"})
+    vsrc = [el for el in circuit.elements.values() if isinstance(el, VSource)]
+    idx = {n: i for i, n in enumerate(nodes)}
+    size = len(nodes) + len(vsrc)
+    Y = sympy.zeros(size, size)
+    rhs = sympy.zeros(size, 1)
+
+    def add(r, c, v):
+        if r in idx and c in idx:
+            Y[idx[r], idx[c]] += v
+
+    for el in circuit.elements.values():
+        if isinstance(el, (Resistor, Capacitor)):
+            y = 1 / sympy.Rational(el.value) if isinstance(el, Resistor) else s * sympy.Rational(el.value)
+            add(el.a, el.a, y), add(el.b, el.b, y), add(el.a, el.b, -y), add(el.b, el.a, -y)
+        elif isinstance(el, VCCS):
+            g = sympy.Rational(el.gm)
+            add(el.p, el.cp, g), add(el.p, el.cn, -g), add(el.n, el.cp, -g), add(el.n, el.cn, g)
+        elif not isinstance(el, VSource):
+            raise TypeError(type(el).__name__)
+    for k, el in enumerate(vsrc):
+        row = len(nodes) + k
+        for node, sign in ((el.p, 1), (el.n, -1)):
+            if node in idx:
+                Y[idx[node], row] += sign
+                Y[row, idx[node]] += sign
+        if el.name == circuit.input_name:
+            rhs[row] = 1
+    out, ground = circuit.output_nodes
+    assert ground == "0"
+    top = Y.copy()
+    top[:, idx[out]] = rhs
+    num = sympy.Poly(sympy.expand(top.det(method="berkowitz")), s)
+    den = sympy.Poly(sympy.expand(Y.det(method="berkowitz")), s)
+    return [float(c) for c in num.all_coeffs()], [float(c) for c in den.all_coeffs()]
+
+
+def lower_corner(circuit, f_mid, gain=None):
+    """Hz: where |H| of :func:`transfer` falls 3 dB below ``gain`` (by default its value at
+    ``f_mid``), searched downward from ``f_mid`` (scipy.signal.freqs for |H(jω)|,
+    scipy.optimize.brentq for the root)."""
+    import numpy as np
+    from scipy.optimize import brentq
+    from scipy.signal import freqs
+
+    num, den = transfer(circuit)
+
+    def db_below(f):
+        return 20 * np.log10(abs(freqs(num, den, [2 * math.pi * f])[1][0]) / top) + 10 * math.log10(2)
+
+    top = abs(gain) if gain else abs(freqs(num, den, [2 * math.pi * f_mid])[1][0])
+    grid = np.geomspace(f_mid, f_mid * 1e-6, 600)
+    below = next(k for k, f in enumerate(grid) if db_below(f) < 0)
+    return brentq(db_below, grid[below], grid[below - 1], xtol=1e-12, rtol=1e-12)
+
+
+def partly_bypassed_ce(re1, re2, ce, ro=None):
+    """Invented "geophone preamp": a common emitter with R_E1 unbypassed and R_E2 bypassed by C_E,
+    coupled in and out. Without r_o the emitter branch carries no current where
+    R_E2 ‖ 1/(sC_E) is infinite, so the bypass's zero is exactly 1/(R_E2·C_E)."""
+    c = Circuit(f"geophone preamp, R_E1 {re1:g} Ω, R_E2 {re2:g} Ω (invented)")
+    c.vsource("Vsig", "sig", "0")
+    c.resistor("Rsig", "sig", "x", 600)
+    c.capacitor("Cin", "x", "b", 4.7e-6)
+    c.resistor("Rbias", "b", "0", 8200)
+    c.bjt("Q1", collector="c", base="b", emitter="e", gm=0.08, rpi=2500, rb=100, cpi=20e-12, cmu=2e-12,
+          **({"ro": ro} if ro else {}))
+    c.resistor("Rc", "c", "0", 2200)
+    c.resistor("Re1", "e", "e2", re1)
+    c.resistor("Re2", "e2", "0", re2)
+    c.capacitor("Ce", "e2", "0", ce)
+    c.capacitor("Cout", "c", "out", 1e-6)
+    c.resistor("RL", "out", "0", 10e3)
+    c.output("out")
+    return c
+
+
+def common_base(rb, cb):
+    """Invented "microphone line input": a common-base stage whose base resistor is bypassed,
+    coupled in to the emitter and out from the collector. Opening the bypass puts R_b in
+    series with r_π, which raises the emitter's input resistance: a corner or only a pair."""
+    c = Circuit(f"microphone line input, common base, R_b {rb:g} Ω (invented)")
+    c.vsource("Vsig", "sig", "0")
+    c.resistor("Rsig", "sig", "x", 50)
+    c.capacitor("Cin", "x", "e", 10e-6)
+    c.resistor("Re", "e", "0", 1000)
+    c.bjt("Q1", collector="c", base="b", emitter="e", gm=0.04, rpi=5000, rb=100, cpi=10e-12, cmu=1e-12)
+    c.resistor("Rb", "b", "0", rb)
+    c.capacitor("Cb", "b", "0", cb)
+    c.resistor("Rc", "c", "0", 3000)
+    c.capacitor("Cout", "c", "out", 1e-6)
+    c.resistor("RL", "out", "0", 10e3)
+    c.output("out")
+    return c

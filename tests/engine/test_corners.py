@@ -30,15 +30,16 @@ def test_tuned_tank_corners_are_found_for_any_q(q):
 
 
 # Two and three RC-coupled stages whose coupling capacitors see about the same resistance:
-# no low-band pole dominates, and Σ1/τ adds them, so the estimate is high (n equal poles fall
-# 3 dB at p/√(2^(1/n) − 1), not n·p; from memory). A miss beyond 25 % is said, with why.
+# no low-band pole dominates, and the dominance test says so; the estimate takes each
+# coupling network as its own section, which the transconductances make exact here (the
+# corner itself is checked against sympy in test_lowcorner.py), so it needs no warning.
+# Σ1/τ would be 52–73 % high (n equal poles fall 3 dB at p/√(2^(1/n) − 1), not n·p; from memory).
 @pytest.mark.parametrize("stages", [2, 3])
-def test_rc_coupled_stages_say_why_the_low_estimate_is_off(stages):
+def test_rc_coupled_stages_without_a_dominant_low_pole(stages):
     a = analyze(rc_coupled(stages))
-    assert a.f_low_ratio > 1.25
-    note = next(w for w in a.warnings if w.startswith("The f_L estimate"))
-    assert f"{100 * (a.f_low_ratio - 1):.0f} % above the exact corner" in note
-    assert "no pole dominates the low band" in note
+    assert a.f_low_ratio == pytest.approx(1, abs=0.01)
+    assert a.f_low_estimate_sum / a.f_low_exact > 1.5
+    assert not any(w.startswith("The f_L estimate") for w in a.warnings)
     assert any(w.startswith("No pole dominates the low band") for w in a.warnings)
 
 

@@ -158,7 +158,7 @@ def test_verdict_reads_gain_corners_errors_and_the_limiting_element():
     assert v.gain_text == "A_m = -40 V/V (32.0 dB)"
     assert v.high_text == "f_H ≈ 1 MHz estimated, 980 kHz exact (+2.0 %)"
     assert v.low_text == "f_L ≈ 20 Hz estimated, 20.4 Hz exact (−2.0 %)"
-    assert v.dominant_text == "Cmu sets f_H (84 % of b1); Ce sets f_L (70 % of ω_L)"
+    assert v.dominant_text == "Cmu sets f_H (84 % of b1); Ce sets f_L (70 % of the 3 dB at f_L)"
     assert v.warnings == ("a warning",)
 
 
