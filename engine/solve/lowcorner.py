@@ -107,7 +107,13 @@ def section_corner(poles, zeros) -> float | None:
 
 
 def squares_corner(poles, zeros) -> float | None:
-    """rad/s: √(Σω_p² − 2Σω_z²), or None where it is not positive."""
+    """rad/s: √(Σω_p² − 2Σω_z²), or None where it is not positive.
+
+    Parameters
+    ----------
+    poles, zeros : array_like
+        rad/s, each section's pole and zero magnitude.
+    """
     wp, wz = np.asarray(poles, float), np.asarray(zeros, float)
     square = float(np.sum(wp * wp) - 2 * np.sum(wz * wz))
     return math.sqrt(square) if square > 0 else None
