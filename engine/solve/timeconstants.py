@@ -253,8 +253,8 @@ def short_circuit(lu, U: sp.csc_matrix, D: np.ndarray, names, io=None) -> ShortC
         Port names, for the message when ports form a loop (parallel capacitors) and no
         port can be shorted alone.
     io : (numpy.ndarray, numpy.ndarray), optional
-        The input vector b and output selector c of the network, for the open/short gain
-        ratios.
+        The input vector b (the input's unit: V or A) and the output selector c
+        (dimensionless) of the network, for the open/short gain ratios.
 
     Notes
     -----
