@@ -57,6 +57,19 @@ def _report_unexpected_in(window) -> None:
     sys.excepthook = hook
 
 
+def _tear_down(app, window) -> None:
+    """Close the window and delete it while the application still runs: its worker threads
+    stopped first, and every deferred deletion done, so nothing is left for the interpreter
+    to tear down in the wrong order at exit."""
+    from PySide6.QtCore import QEvent
+
+    window.stack.setClean()
+    window.close()
+    window.deleteLater()
+    app.sendPostedEvents(None, QEvent.Type.DeferredDelete)
+    app.processEvents()
+
+
 def run_gui(design_path: str | None = None, screenshot: str | None = None,
             size: tuple[int, int] | None = None, select: str | None = None, sample: str | None = None) -> int:
     """Open the main window, optionally on a design; with ``screenshot``, save a picture and exit.
@@ -78,7 +91,8 @@ def run_gui(design_path: str | None = None, screenshot: str | None = None,
     Returns
     -------
     int
-        Exit status: 0 on success, 2 if the design (for a screenshot) cannot be read, 1 if the
+        Exit status: 0 on success, 2 if the design (for a screenshot) cannot be read or
+        ``select`` names no capacitor or inductor of it (no picture is written), 1 if the
         picture cannot be written.
     """
     app = offscreen_application() if screenshot else _application()
@@ -109,12 +123,15 @@ def run_gui(design_path: str | None = None, screenshot: str | None = None,
             problem = window.analysis_panel.select_element(select)
             if problem:
                 print(f"bandsketch: --select {select}: {problem}", file=sys.stderr)
+                _tear_down(app, window)
+                return 2
         loop = QEventLoop()
         QTimer.singleShot(SETTLE_MS // 2, window.view.zoom_to_fit)
         QTimer.singleShot(SETTLE_MS, loop.quit)
         loop.exec()
+        window.analysis_panel.runner.wait()
         ok = window.grab().save(screenshot)
-        window.close()
+        _tear_down(app, window)
         if not ok:
             print(f"bandsketch: could not write {screenshot}", file=sys.stderr)
         return 0 if ok else 1

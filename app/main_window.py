@@ -437,6 +437,7 @@ class MainWindow(QMainWindow):
             raise
         self.stack.clear()
         self.analysis_panel.compare_with_before(None)  # a curve of another design is no "before"
+        self.analysis_panel.set_sweep(None)  # a sweep chosen for another design would mislead
         self.stack.setClean()
         self.path = path
         self._restored_unsaved = unsaved
@@ -602,9 +603,19 @@ class MainWindow(QMainWindow):
             self.keeper.stop()
             self.keeper.discard()
         self.remember_view()
+        self.shut_down()
         # The scene deletes its items as it goes; nothing may ask it about selection then.
         self._watch_selection(False)
         event.accept()
+
+    def shut_down(self) -> None:
+        """Stop what runs on its own (the recovery timers, the worker threads) so that nothing
+        calls into the window while, or after, it is torn down."""
+        if self.keeper:
+            self.keeper.stop()
+        self.advisor.jobs.cancel.set()
+        self.advisor.jobs.wait()
+        self.analysis_panel.runner.shutdown()
 
     def showEvent(self, event):
         self._watch_selection(True)

@@ -1,4 +1,5 @@
-"""Time-constant bars: one bar per element, grouped by band, longest share first.
+"""Time-constant bars: one bar per element, grouped by band, longest share first, and beside
+each the exact sensitivity of the corner its band sets (the two answers to "what do I change").
 
 The widget draws a :class:`bandsketch.engine.present.plotdata.BarData` and nothing else. Row geometry is laid
 out when the data or the size changes, never in ``paintEvent``. Clicks, hovers and the pin
@@ -14,7 +15,7 @@ from PySide6.QtGui import QAction, QActionGroup, QColor, QFont, QFontMetricsF, Q
 from PySide6.QtWidgets import QMenu, QSizePolicy, QToolTip, QWidget
 
 from bandsketch.engine.core.band import Band
-from bandsketch.engine.present.plotdata import BarData, BarRow
+from bandsketch.engine.present.plotdata import SENSITIVITY_HEADS, BarData, BarRow
 
 from .style import ViewColours, view_colours
 
@@ -24,7 +25,11 @@ HEAD_H = 38
 GAP = 8
 PAD = 8
 PIN_W = 14
-MIN_BAR_W = 60
+MIN_BAR_W = 40
+SENS_SAMPLE = "−0.00"
+"""The widest sensitivity text (two decimals), for the column's width."""
+SENS_WAIT = "…"
+"""Written in the sensitivity column while the worker computes it."""
 
 PIN_CHOICES = ((Band.HIGH, "Pin to the high band"), (Band.LOW, "Pin to the low band"),
                ("", "Automatic band (by the gain test)"))
@@ -37,6 +42,7 @@ class _Heading:
     title: str
     total: str
     band: str
+    sens_head: str
 
 
 @dataclass(frozen=True)
@@ -46,6 +52,7 @@ class _Bar:
     name_at: QPointF
     bar: QRectF
     text_at: QPointF
+    sens_at: QPointF
 
 
 class TimeConstantBars(QWidget):
@@ -67,6 +74,7 @@ class TimeConstantBars(QWidget):
         self.setMouseTracking(True)
         self.setSizePolicy(QSizePolicy.Policy.Expanding, QSizePolicy.Policy.Minimum)
         self._data: BarData | None = None
+        self._sens = None  # element -> BarSensitivity, a sentence why none, or None while computed
         self._selected: str | None = None
         self._stale = False
         self._colours: ViewColours = view_colours()
@@ -76,9 +84,29 @@ class TimeConstantBars(QWidget):
 
     # -- what is shown --------------------------------------------------------
     def show_bars(self, data: BarData | None, *, stale: bool = False) -> None:
-        """Draw ``data`` (None: nothing analysed yet); ``stale`` greys a result no longer current."""
+        """Draw ``data`` (None: nothing analysed yet); ``stale`` greys a result no longer current.
+
+        The sensitivities beside the bars are cleared until :meth:`show_sensitivities` brings
+        those of ``data``: a number of the design before an edit is never shown as current.
+        """
         self._data, self._stale = data, stale
+        self._sens = None
         self._layout()
+
+    def show_sensitivities(self, sens) -> None:
+        """Write the exact sensitivity beside each bar: ``sens`` maps element ->
+        :class:`bandsketch.engine.present.plotdata.BarSensitivity`, or is the sentence saying
+        why there are none (shown in the bars' tooltips)."""
+        self._sens = sens
+        self.update()
+
+    def sensitivity_text(self, name: str) -> str:
+        """What the sensitivity column says for element ``name``."""
+        if isinstance(self._sens, str):
+            return "—"
+        if self._sens is None:
+            return SENS_WAIT
+        return self._sens[name].text if name in self._sens else "—"
 
     def set_stale(self, stale: bool) -> None:
         """Grey the bars (the circuit as drawn cannot be analysed) or show them in colour."""
@@ -118,19 +146,20 @@ class TimeConstantBars(QWidget):
             rows = [r for g in self._data.groups for r in g.rows]
             name_w = max((fb.horizontalAdvance(r.name) for r in rows), default=0) + 10
             text_w = max((fm.horizontalAdvance(_row_text(r)) for r in rows), default=0) + 10
-            width = max(self.width(), PAD * 2 + PIN_W + name_w + MIN_BAR_W + text_w)
+            sens_w = fm.horizontalAdvance(SENS_SAMPLE) + 8
+            width = max(self.width(), PAD * 2 + PIN_W + name_w + MIN_BAR_W + text_w + sens_w)
             bar_x = PAD + PIN_W + name_w
-            bar_w = max(MIN_BAR_W, width - PAD - text_w - bar_x)
+            bar_w = max(MIN_BAR_W, width - PAD - text_w - sens_w - bar_x)
             for g in self._data.groups:
                 self._headings.append(_Heading(QRectF(PAD, y, width - 2 * PAD, HEAD_H), g.title,
-                                               g.total_text, g.band))
+                                               g.total_text, g.band, SENSITIVITY_HEADS.get(g.band, "")))
                 y += HEAD_H
                 for r in g.rows:
                     rect = QRectF(PAD / 2, y, width - PAD, ROW_H)
                     bar = QRectF(bar_x, y + 4, max(1.0, bar_w * r.share) if r.share > 0 else 0.0, ROW_H - 8)
                     base = y + ROW_H / 2 + fm.ascent() / 2 - 1
                     self._bars.append(_Bar(r, rect, QPointF(PAD + PIN_W, base), bar,
-                                           QPointF(bar_x + bar_w + 8, base)))
+                                           QPointF(bar_x + bar_w + 8, base), QPointF(width - PAD, base)))
                     y += ROW_H
                 y += GAP
         self._height = int(y + PAD)
@@ -171,6 +200,7 @@ class TimeConstantBars(QWidget):
             p.setFont(plain)
             p.setPen(c.stale if self._stale else c.muted)
             p.drawText(bottom, Qt.AlignmentFlag.AlignVCenter | Qt.AlignmentFlag.AlignLeft, h.total)
+            p.drawText(bottom, Qt.AlignmentFlag.AlignVCenter | Qt.AlignmentFlag.AlignRight, h.sens_head)
         for b in self._bars:
             r = b.row
             colour = QColor(c.stale if self._stale else c.band(r.band))
@@ -193,6 +223,11 @@ class TimeConstantBars(QWidget):
             p.setFont(plain)
             p.setPen(c.stale if self._stale else c.muted)
             p.drawText(b.text_at, _row_text(r))
+            sens = None if self._sens is None or isinstance(self._sens, str) else self._sens.get(r.name)
+            p.setFont(bold if sens is not None and sens.leads else plain)
+            p.setPen(c.stale if self._stale else c.ink)
+            text = self.sensitivity_text(r.name)
+            p.drawText(QPointF(b.sens_at.x() - QFontMetricsF(p.font()).horizontalAdvance(text), b.sens_at.y()), text)
 
     @staticmethod
     def _draw_pin(p: QPainter, at: QPointF, colour: QColor) -> None:
@@ -223,9 +258,16 @@ class TimeConstantBars(QWidget):
                 QToolTip.hideText()
                 event.ignore()
             else:
-                QToolTip.showText(event.globalPos(), row.tooltip, self)
+                QToolTip.showText(event.globalPos(), f"{row.tooltip}\n{self._sens_tip(row.name)}", self)
             return True
         return super().event(event)
+
+    def _sens_tip(self, name: str) -> str:
+        if isinstance(self._sens, str):
+            return self._sens
+        if self._sens is None:
+            return "The exact sensitivity is being computed."
+        return self._sens[name].tooltip if name in self._sens else ""
 
     def pin_menu(self, name: str, parent=None) -> QMenu:
         """The band menu for element ``name``: high, low or automatic, the current one checked."""

@@ -23,6 +23,8 @@ from .style import Restyles, ViewColours, view_colours
 
 MARKER_SLOTS = (("high", True), ("high", False), ("low", True), ("low", False))
 """One marker item set per corner and kind; a slot with no corner is hidden."""
+PHASE_MAJOR_DEG = 90
+"""Labelled phase ticks: every quarter turn."""
 LABELS_APART_PX = 8
 """Pixels kept between the f_L and f_H labels of one row when both point into the mid band."""
 
@@ -70,6 +72,8 @@ class BodePlot(Restyles, QWidget):
             plot.hideButtons()
             plot.getViewBox().sigRangeChangedManually.connect(self._on_manual_range)
         self.phase.setLabel("bottom", "Frequency")
+        # Phase reads in quarter turns, a designer's steps (an inversion, a pole's full lag).
+        self.phase.getAxis("left").setTickSpacing(PHASE_MAJOR_DEG, PHASE_MAJOR_DEG / 2)
         self.curves = {key: (self.magnitude.plot(), self.phase.plot()) for key in ("exact", "high", "low")}
         # The exact curve of the design before an applied suggestion, kept until dismissed.
         self.before = (self.magnitude.plot(), self.phase.plot())
@@ -86,11 +90,24 @@ class BodePlot(Restyles, QWidget):
             label = pg.TextItem(anchor=(0, 1))
             self.magnitude.addItem(label, ignoreBounds=True)
             self.markers[slot] = (lines, dot, label)
+        # The designer's targets: the least f_H and the most f_L allowed, the gain's window.
+        # Their labels sit low and point into the mid band, clear of the corner labels above.
+        self.target_lines = {corner: pg.InfiniteLine(angle=90, movable=False, label="",
+                                                     labelOpts={"position": 0.04, "anchors": [anchor, anchor]})
+                             for corner, anchor in (("high", (1, 1)), ("low", (0, 1)))}
+        for line in self.target_lines.values():
+            self.magnitude.addItem(line, ignoreBounds=True)
+        self.gain_window = pg.LinearRegionItem(orientation="horizontal", movable=False)
+        self.magnitude.addItem(self.gain_window, ignoreBounds=True)
+        self.gain_label = pg.TextItem(anchor=(0, 1))
+        self.magnitude.addItem(self.gain_label, ignoreBounds=True)
+        self._targets = None
         self.cursor = tuple(pg.InfiniteLine(angle=90, movable=False) for _ in range(2))
         self.magnitude.addItem(self.cursor[0], ignoreBounds=True)
         self.phase.addItem(self.cursor[1], ignoreBounds=True)
         self.canvas.scene().sigMouseMoved.connect(self._on_mouse_moved)
         self.magnitude.getViewBox().sigRangeChanged.connect(self._lay_out_labels)
+        self.magnitude.getViewBox().sigRangeChanged.connect(self._place_gain_label)
         self.magnitude.getViewBox().sigResized.connect(self._lay_out_labels)
         self._restyle()
         self.show_response(None)
@@ -109,6 +126,7 @@ class BodePlot(Restyles, QWidget):
             self.half_power.hide()
             self._set_cursor(None)
             return
+        self.magnitude.setLabel("left", data.gain_axis)
         exact_m.setData(data.exact.freq_hz, data.exact.magnitude_db)
         exact_p.setData(data.exact.freq_hz, data.exact.phase_deg)
         for key, curve in (("high", data.high_estimate), ("low", data.low_estimate)):
@@ -125,6 +143,31 @@ class BodePlot(Restyles, QWidget):
         if not self._zoomed:
             self.fit()
         self._restyle()
+
+    def show_targets(self, marks) -> None:
+        """Draw the designer's targets (a :class:`bandsketch.engine.present.plotdata.TargetMarks`;
+        None or an empty one draws none)."""
+        self._targets = marks
+        for corner, line in self.target_lines.items():
+            value = None if marks is None else (marks.f_high_min_hz if corner == "high" else marks.f_low_max_hz)
+            line.setVisible(value is not None)
+            if value is not None:
+                line.setValue(math.log10(value))
+                line.label.setFormat(marks.f_high_text if corner == "high" else marks.f_low_text)
+        window = None if marks is None else marks.gain_db
+        self.gain_window.setVisible(window is not None)
+        self.gain_label.setVisible(window is not None)
+        if window is not None:
+            self.gain_window.setRegion(window)
+            self.gain_label.setText(marks.gain_text)
+            self._place_gain_label()
+        self._restyle()
+
+    def _place_gain_label(self, *_) -> None:
+        # At the left end of the window, inside the plot whatever the zoom.
+        if self._targets is not None and self._targets.gain_db is not None:
+            left = self.magnitude.getViewBox().viewRange()[0][0]
+            self.gain_label.setPos(left, self._targets.gain_db[1])
 
     def show_before(self, curve) -> None:
         """Draw ``curve`` (a :class:`bandsketch.engine.present.plotdata.Curve`) as the design
@@ -145,7 +188,7 @@ class BodePlot(Restyles, QWidget):
         lo, hi = self._data.freq_range
         self.magnitude.setXRange(math.log10(lo), math.log10(hi), padding=0)
         self.magnitude.setYRange(*self._data.magnitude_view_db, padding=0)
-        self.phase.enableAutoRange(axis="y")
+        self.phase.setYRange(*self._data.phase_view_deg, padding=0)
 
     def _on_manual_range(self, *_) -> None:
         # A zoom or pan the user made is kept while edits update the curves.
@@ -240,6 +283,17 @@ class BodePlot(Restyles, QWidget):
             label.fill = pg.mkBrush(fill)
         for line in self.cursor:
             line.setPen(pg.mkPen(c.selection, width=1))
+        for corner, line in self.target_lines.items():
+            colour = c.stale if grey else c.band(corner)
+            line.setPen(pg.mkPen(colour, width=2, style=Qt.PenStyle.DashDotLine))
+            line.label.setColor(colour)
+        band = QColor(c.stale if grey else c.muted)
+        band.setAlphaF(0.12)
+        self.gain_window.setBrush(pg.mkBrush(band))
+        edge = QColor(c.stale if grey else c.muted)
+        for line in self.gain_window.lines:
+            line.setPen(pg.mkPen(edge, width=1, style=Qt.PenStyle.DashDotLine))
+        self.gain_label.setColor(edge)
 
     # -- hover ----------------------------------------------------------------
     def _set_cursor(self, x) -> None:

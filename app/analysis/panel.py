@@ -10,12 +10,16 @@ from __future__ import annotations
 
 import shiboken6
 from PySide6.QtCore import QEvent, QObject, QRectF, Qt
-from PySide6.QtWidgets import (QFileDialog, QHBoxLayout, QLabel, QMenu, QScrollArea, QSplitter, QTabWidget,
+from PySide6.QtWidgets import (QFileDialog, QFormLayout, QHBoxLayout, QLabel, QLineEdit, QMenu, QScrollArea,
+                               QSplitter, QTabWidget, QWidgetAction,
                                QToolButton, QVBoxLayout, QWidget)
 
 from bandsketch.engine.core.band import Band
 from bandsketch.engine.design.netlist import Problem
-from bandsketch.engine.present.plotdata import part_of, write_curves_csv
+from bandsketch.engine.advise.targets import parse_targets
+from bandsketch.engine.core.errors import BadValueError
+from bandsketch.engine.core.values import parse_value
+from bandsketch.engine.present.plotdata import bode_data, part_of, sweep_range, target_marks, write_curves_csv
 
 from .. import edits
 from ..canvas.items import PartItem
@@ -81,6 +85,28 @@ class AnalysisPanel(QWidget):
         self.dismiss_before.clicked.connect(lambda: self.compare_with_before(None))
         self.dismiss_before.hide()
         tools.addWidget(self.dismiss_before)
+        sweep = QToolButton(text="Sweep")
+        sweep.setToolTip("Choose the frequencies the Bode plot spans (blank: a decade beyond the corners)")
+        sweep.setPopupMode(QToolButton.ToolButtonPopupMode.InstantPopup)
+        sweep_menu = QMenu(sweep)
+        box = QWidget()
+        form = QFormLayout(box)
+        self.sweep_from, self.sweep_to = QLineEdit(), QLineEdit()
+        for edit in (self.sweep_from, self.sweep_to):
+            edit.setPlaceholderText("automatic")
+            edit.editingFinished.connect(self._sweep_edited)
+        self.sweep_note = QLabel()
+        self.sweep_note.setWordWrap(True)
+        form.addRow("From (Hz)", self.sweep_from)
+        form.addRow("To (Hz)", self.sweep_to)
+        form.addRow(self.sweep_note)
+        holder = QWidgetAction(sweep_menu)
+        holder.setDefaultWidget(box)
+        sweep_menu.addAction(holder)
+        sweep.setMenu(sweep_menu)
+        tools.addWidget(sweep)
+        self.sweep: tuple | None = None
+        """The sweep the designer chose (Hz, lowest and highest), or None for the automatic one."""
         fit = QToolButton(text="Fit")
         fit.setToolTip("Show the whole sweep again after zooming or panning")
         fit.clicked.connect(lambda: self.plots.currentWidget().fit())
@@ -123,6 +149,7 @@ class AnalysisPanel(QWidget):
         layout.addWidget(self.split, 1)
 
         self.runner.finished.connect(self._show)
+        self.runner.sensed.connect(self.bars.show_sensitivities)
         self.doc.edited.connect(self.refresh)
         self.scene.selectionChanged.connect(self._follow_selection)
         self.bars.element_clicked.connect(self.select_element)
@@ -154,7 +181,7 @@ class AnalysisPanel(QWidget):
         if outcome.ok:
             self.good = outcome
             self.bars.show_bars(outcome.bars)
-            self.bode.show_response(outcome.bode)
+            self._show_bode()
             self.time.show_response(outcome.step, outcome.pulse, problem=outcome.time_problem)
             self.verdict.show_verdict(outcome.verdict)
             self._mark_canvas(outcome)
@@ -172,6 +199,55 @@ class AnalysisPanel(QWidget):
             # A bias that no longer follows from the sheet must not stay written on it.
             self.bias_notes.show(None)
         self._follow_selection()
+
+    def _show_bode(self) -> None:
+        """Draw the newest good result over the chosen sweep, with the design's targets."""
+        outcome = self.good
+        spans = self._span(outcome.analysis)
+        self.bode.show_response(outcome.bode if spans is None else bode_data(outcome.analysis, spans))
+        try:
+            targets = parse_targets(self.doc.targets)
+        except BadValueError:
+            targets = None  # the advisor says what is wrong with the text; nothing is drawn
+        self.bode.show_targets(None if targets is None else target_marks(targets, outcome.analysis.gain_unit))
+
+    def _span(self, analysis) -> tuple | None:
+        if self.sweep is None:
+            return None
+        auto = sweep_range(analysis)
+        return (self.sweep[0] or auto[0], self.sweep[1] or auto[1])
+
+    def _sweep_edited(self) -> None:
+        """Take the sweep typed in the Sweep menu (blank ends are automatic)."""
+        ends, problem = [], ""
+        for edit, what in ((self.sweep_from, "lowest"), (self.sweep_to, "highest")):
+            text = edit.text().strip()
+            try:
+                ends.append(parse_value(text, unit="Hz", field=f"{what} sweep frequency") if text else None)
+            except BadValueError as exc:
+                ends.append(None)
+                problem = exc.message
+        lo, hi = ends
+        if not problem and (lo is not None and lo <= 0 or hi is not None and hi <= 0):
+            problem = "A sweep frequency must be above 0 Hz."
+        if not problem and lo is not None and hi is not None and hi <= lo:
+            problem = "The highest sweep frequency must be above the lowest."
+        self.sweep_note.setText(problem)
+        if problem:
+            return
+        self.set_sweep(None if lo is None and hi is None else (lo, hi))
+
+    def set_sweep(self, span: tuple | None) -> None:
+        """Span the Bode plot over ``span`` (Hz, lowest and highest; None at either end, or
+        for the whole, is automatic)."""
+        self.sweep = span
+        if span is None:
+            self.sweep_from.clear()
+            self.sweep_to.clear()
+            self.sweep_note.clear()
+        if self.good is not None:
+            self.bode.fit()  # a new span is seen whole
+            self._show_bode()
 
     def _mark_canvas(self, outcome: Outcome) -> None:
         """Colour each sheet capacitor or inductor by its band; put its numbers in its tooltip."""
@@ -303,7 +379,7 @@ class AnalysisPanel(QWidget):
     def export(self, path: str) -> None:
         """Save the plot (``.png``, ``.svg``) or the plotted curves (``.csv``) to ``path``."""
         if path.lower().endswith(".csv"):
-            write_curves_csv(self.good.bode, path)
+            write_curves_csv(self.bode.data(), path)
         else:
             self.bode.export_image(path)
 

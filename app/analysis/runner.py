@@ -6,6 +6,8 @@ while runs stay quick (no thread hand-over to wait for), and on a worker thread 
 has taken longer than :data:`THREAD_AFTER_S`. Each request gets a generation number; only
 the newest request's outcome is delivered, and while one run is under way only the newest
 of the requests that arrive meanwhile is kept, so a burst of edits costs at most two runs.
+The exact sensitivities written beside the bars follow each delivered outcome, always on the
+worker thread (they cost as much again as the analysis).
 """
 
 from __future__ import annotations
@@ -20,7 +22,9 @@ from bandsketch.engine.design.document import Document
 from bandsketch.engine.core.errors import CircuitError
 from bandsketch.engine.present.biasdata import BiasMarks, bias_marks
 from bandsketch.engine.design.netlist import DrawnDesign, Netlist, read_design
-from bandsketch.engine.present.plotdata import BarData, BodeData, VerdictData, bar_data, bode_data, verdict_data
+from bandsketch.engine.advise.sensitivity import sensitivities
+from bandsketch.engine.present.plotdata import (BarData, BodeData, VerdictData, bar_data, bar_sensitivities, bode_data,
+                                                verdict_data)
 from bandsketch.engine.present.stepdata import PulseData, StepData, time_views
 
 THREAD_AFTER_S = 0.030
@@ -138,6 +142,16 @@ class _Relay(QObject):
     """Carries a worker's outcome back to the UI thread (it lives there, so delivery is queued)."""
 
     done = Signal(object)
+    sensed = Signal(int, object)
+
+
+def sense_outcome(outcome: Outcome):
+    """The exact sensitivity beside each bar of ``outcome`` (element -> BarSensitivity), or
+    the sentence saying why there are none; never raises."""
+    try:
+        return bar_sensitivities(outcome.bars, sensitivities(outcome.circuit, outcome.analysis))
+    except Exception as exc:  # noqa: BLE001 - a worker must answer, and the bars stand without
+        return f"The exact sensitivities could not be computed ({type(exc).__name__}: {exc})."
 
 
 class AnalysisRunner(QObject):
@@ -147,6 +161,9 @@ class AnalysisRunner(QObject):
     -------
     finished(Outcome)
         The outcome of the newest request; older ones are dropped unannounced.
+    sensed(object)
+        The bars' exact sensitivities for the outcome announced last (a mapping element ->
+        BarSensitivity, or a sentence saying why there are none).
 
     Attributes
     ----------
@@ -155,6 +172,7 @@ class AnalysisRunner(QObject):
     """
 
     finished = Signal(object)
+    sensed = Signal(object)
 
     def __init__(self, parent=None, thread_after_s: float = THREAD_AFTER_S):
         super().__init__(parent)
@@ -163,6 +181,8 @@ class AnalysisRunner(QObject):
         self.pool.setMaxThreadCount(1)
         self._relay = _Relay(self)
         self._relay.done.connect(self._on_done)
+        self._relay.sensed.connect(self._on_sensed)
+        self._sensing = 0
         self._generation = 0
         self._running = False
         self._pending: tuple | None = None
@@ -201,9 +221,29 @@ class AnalysisRunner(QObject):
         if outcome.generation == self._generation:
             self.last = outcome
             self.finished.emit(outcome)
+            if outcome.ok:
+                self._sense(outcome)
         if self._pending is not None:
             job, self._pending = self._pending, None
             self._start(job)
+
+    def _sense(self, outcome: Outcome) -> None:
+        self._sensing += 1
+        relay, generation = self._relay, outcome.generation
+        self.pool.start(lambda: relay.sensed.emit(generation, sense_outcome(outcome)))
+
+    def _on_sensed(self, generation: int, result) -> None:
+        self._sensing = max(0, self._sensing - 1)
+        if generation == self._generation:
+            self.sensed.emit(result)
+
+    def shutdown(self) -> None:
+        """Drop what is queued and wait for the worker to finish (before the window goes)."""
+        self._pending = None
+        self.pool.clear()
+        self.pool.waitForDone()
+        # What the worker finished is still queued for this thread; none of it is awaited now.
+        self._running, self._sensing = False, 0
 
     def wait(self, timeout_ms: int = 10000) -> bool:
         """Block until no run is under way (for tests, screenshots and shutdown).
@@ -216,7 +256,7 @@ class AnalysisRunner(QObject):
         from PySide6.QtCore import QCoreApplication, QDeadlineTimer
 
         deadline = QDeadlineTimer(timeout_ms)
-        while self._running or self._pending is not None:
+        while self._running or self._pending is not None or self._sensing:
             if deadline.hasExpired():
                 return False
             self.pool.waitForDone(20)

@@ -14,6 +14,8 @@ from __future__ import annotations
 import csv
 import math
 from dataclasses import dataclass
+from types import MappingProxyType
+from typing import Mapping
 
 import numpy as np
 
@@ -38,6 +40,10 @@ VIEW_DEPTH_DB = 60.0
 """How far below the mid-band gain the magnitude axis reaches at most, dB."""
 VIEW_MARGIN_DB = 6.0
 """Room above and below the magnitude curve, dB."""
+PHASE_STEP_DEG = 45.0
+"""The phase axis ends on a multiple of an eighth of a turn."""
+PHASE_MARGIN_DEG = 2.0
+"""Room above and below the phase curve, degrees, before the axis is rounded out."""
 PEAK_SHOWN_DB = 0.1
 """An exact gain this far above the mid-band gain (dB) is a peak the plot keeps in view."""
 PEAK_ROOM = 0.25
@@ -130,6 +136,24 @@ class BodeData:
     peak: tuple | None
     markers: tuple
     gain_unit: str
+
+    @property
+    def phase_view_deg(self) -> tuple:
+        """(bottom, top) of the phase axis, degrees: the exact phase wherever the magnitude
+        axis shows the exact curve (the far tails, sunk below it, do not stretch the axis),
+        out to the next eighth of a turn."""
+        bottom_db = self.magnitude_view_db[0]
+        shown = self.exact.phase_deg[self.exact.magnitude_db >= bottom_db]
+        if shown.size == 0:
+            shown = self.exact.phase_deg
+        step, room = PHASE_STEP_DEG, PHASE_MARGIN_DEG
+        return (step * math.floor((float(shown.min()) - room) / step),
+                step * math.ceil((float(shown.max()) + room) / step))
+
+    @property
+    def gain_axis(self) -> str:
+        """The title of the magnitude axis: ``"Gain (dB)"``, or ``"Gain (dBΩ)"`` for V/A."""
+        return f"Gain ({db_unit(self.gain_unit)})"
 
     @property
     def freq_range(self) -> tuple:
@@ -325,14 +349,16 @@ def sweep_range(analysis) -> tuple:
     return lo, hi
 
 
-def sweep_frequencies(analysis) -> np.ndarray:
-    """Log-spaced sweep frequencies (Hz) over :func:`sweep_range`.
+def sweep_frequencies(analysis, span_hz: tuple | None = None) -> np.ndarray:
+    """Log-spaced sweep frequencies (Hz) over ``span_hz``, or over :func:`sweep_range`.
 
     Parameters
     ----------
     analysis : bandsketch.engine.solve.analysis.Analysis
+    span_hz : (float, float), optional
+        The lowest and highest frequency, Hz; None spans :func:`sweep_range`.
     """
-    lo, hi = sweep_range(analysis)
+    lo, hi = span_hz or sweep_range(analysis)
     decades = math.log10(hi / lo)
     n = int(min(MAX_POINTS, max(200, round(decades * POINTS_PER_DECADE))))
     return np.logspace(math.log10(lo), math.log10(hi), n)
@@ -348,12 +374,34 @@ def _db(h) -> np.ndarray:
 
 
 def _curve(f, h, reference_deg: float, anchor_hz: float) -> Curve:
-    """A curve whose unwrapped phase is shifted by whole turns to read near ``reference_deg``
-    at the frequency nearest ``anchor_hz`` (the mid band), so every curve agrees there."""
+    return Curve(f, _db(h), _phase_from(f, h, reference_deg, anchor_hz))
+
+
+def _phase_from(f, h, reference_deg: float, anchor_hz: float) -> np.ndarray:
+    """The unwrapped phase of ``h`` (degrees), shifted by whole turns to read near
+    ``reference_deg`` at the frequency nearest ``anchor_hz`` (the mid band), so every curve
+    agrees there."""
     phase = np.degrees(np.unwrap(np.angle(h)))
-    at = int(np.argmin(np.abs(np.log(f / anchor_hz))))
+    at = int(np.argmin(np.abs(np.log(np.asarray(f) / anchor_hz))))
     turns = np.round((reference_deg - phase[at]) / 360.0)
-    return Curve(f, _db(h), phase + 360.0 * turns)
+    return phase + 360.0 * turns
+
+
+def phase_deg(analysis, freq_hz, h) -> np.ndarray:
+    """The phase of the response ``h`` of ``analysis`` at ``freq_hz``, degrees, read from the
+    one reference every output shares (the plot, its CSV, the command line's CSV): unwrapped,
+    in the whole turns that put the mid band at 0° for a non-inverting stage and at −180° for
+    an inverting one.
+
+    Parameters
+    ----------
+    analysis : bandsketch.engine.solve.analysis.Analysis
+    freq_hz : array_like
+        Frequencies, Hz, ascending.
+    h : array_like
+        The complex response there (V/V, or V/A = Ω).
+    """
+    return _phase_from(freq_hz, h, _midband_phase(float(analysis.midband_gain)), midband_frequency(analysis))
 
 
 def midband_frequency(analysis) -> float:
@@ -375,7 +423,8 @@ def midband_frequency(analysis) -> float:
 
 
 def _midband_phase(gain: float) -> float:
-    return 180.0 if gain < 0 else 0.0
+    # An inversion is a lag of half a turn, so the high band's further lag reads below it.
+    return -180.0 if gain < 0 else 0.0
 
 
 def high_estimate_response(midband_gain: float, b1: float, freq_hz) -> np.ndarray:
@@ -415,18 +464,20 @@ def _marker_text(corner: str, estimated: bool, f: float) -> str:
     return f"{sym} {'≈' if estimated else '='} {format_value(f, 'Hz')}"
 
 
-def bode_data(analysis) -> BodeData:
+def bode_data(analysis, span_hz: tuple | None = None) -> BodeData:
     """The Bode plot's curves and markers for ``analysis``.
 
     Parameters
     ----------
     analysis : bandsketch.engine.solve.analysis.Analysis
+    span_hz : (float, float), optional
+        The sweep the designer chose, Hz (lowest, highest); None spans :func:`sweep_range`.
 
     Returns
     -------
     BodeData
     """
-    f = sweep_frequencies(analysis)
+    f = sweep_frequencies(analysis, span_hz)
     am = float(analysis.midband_gain)
     ref, anchor = _midband_phase(am), midband_frequency(analysis)
     exact = _curve(f, np.asarray(analysis.response(f)), ref, anchor)
@@ -457,6 +508,106 @@ def bode_data(analysis) -> BodeData:
             label_db = max(level, peak[1]) if est and corner == peak_side else level
             markers.append(Marker(corner, est, float(value), level, _marker_text(corner, est, value), label_db))
     return BodeData(exact, high, low, mid_db, peak, tuple(markers), analysis.gain_unit)
+
+
+SENSITIVITY_HEADS = MappingProxyType({Band.HIGH: "∂ln f_H/∂ln C", Band.LOW: "∂ln f_L/∂ln C"})
+"""The heading over each band's column of exact sensitivities (C stands for L on an inductor)."""
+
+
+@dataclass(frozen=True)
+class BarSensitivity:
+    """The exact sensitivity written beside one bar.
+
+    Attributes
+    ----------
+    name : str
+        The element (``Cpd``, ``Q1.cmu``).
+    value : float or None
+        d ln f / d ln x of the exact corner the element's band sets (f_H for the high band,
+        f_L for the low band) to the element's value x, dimensionless; None where the design
+        has no such corner or it could not be computed.
+    text : str
+        ``value`` as written (``"−0.93"``; ``"—"`` for None).
+    leads : bool
+        The largest magnitude of its band: the element the exact answer says to change.
+    tooltip : str
+        What the number means, in words.
+    """
+
+    name: str
+    value: float | None
+    text: str
+    leads: bool
+    tooltip: str
+
+
+def bar_sensitivities(bars: BarData, sens) -> Mapping:
+    """Element -> :class:`BarSensitivity` for every bar of ``bars``.
+
+    Parameters
+    ----------
+    bars : BarData
+        The bars drawn.
+    sens : bandsketch.engine.advise.sensitivity.Sensitivities
+        The adjoint sensitivities of the same analysis (dimensionless).
+    """
+    rows = {r.value.element: r for r in sens.rows}
+    out = {}
+    for g in bars.groups:
+        figure = {Band.HIGH: ("high_exact", "f_H"), Band.LOW: ("low_exact", "f_L")}.get(g.band)
+        values = {r.name: (getattr(rows[r.name], figure[0]) if figure and r.name in rows else None) for r in g.rows}
+        known = [abs(v) for v in values.values() if v is not None]
+        for name, v in values.items():
+            if v is None:
+                out[name] = BarSensitivity(name, None, "—", False, "No exact corner of this band to move")
+                continue
+            text = "≈0" if abs(v) < 0.005 else f"{v:+.2f}".replace("-", "−")
+            tip = (f"Exact: 1 % more {name} moves {figure[1]} by {v:+.2f} %".replace("-", "−")
+                   + " (adjoint sensitivity of the exact corner)")
+            out[name] = BarSensitivity(name, float(v), text, bool(known) and abs(v) == max(known) and abs(v) >= 0.005, tip)
+    return MappingProxyType(out)
+
+
+@dataclass(frozen=True)
+class TargetMarks:
+    """The designer's targets as the Bode plot draws them; None where a target is not set.
+
+    Attributes
+    ----------
+    f_high_min_hz, f_low_max_hz : float or None
+        The least upper corner and the most lower corner allowed, Hz.
+    gain_db : (float, float) or None
+        The window 20·log10|A_m| must fall in (dB of the gain unit), low to high.
+    f_high_text, f_low_text, gain_text : str
+        Their labels (``"f_H ≥ 1 MHz"``, ``"f_L ≤ 20 Hz"``, ``"gain 39–41 dB"``).
+    """
+
+    f_high_min_hz: float | None = None
+    f_low_max_hz: float | None = None
+    gain_db: tuple | None = None
+    f_high_text: str = ""
+    f_low_text: str = ""
+    gain_text: str = ""
+
+
+def target_marks(targets, gain_unit: str = "V/V") -> TargetMarks:
+    """What the Bode plot draws of ``targets``.
+
+    Parameters
+    ----------
+    targets : bandsketch.engine.advise.targets.Targets
+        The design's targets, parsed (Hz, and the gain in its unit).
+    gain_unit : str
+        ``"V/V"``, or ``"V/A"`` for a current input (its dB are dBΩ).
+    """
+    window = None
+    gain_text = ""
+    if targets.gain_min and targets.gain_max:
+        window = (float(_db(targets.gain_min)), float(_db(targets.gain_max)))
+        gain_text = f"gain {window[0]:.1f}–{window[1]:.1f} {db_unit(gain_unit)}"
+    hi, lo = targets.f_high_min, targets.f_low_max
+    return TargetMarks(hi, lo, window, f"f_H ≥ {format_value(hi, 'Hz')}" if hi else "",
+                       f"f_L ≤ {format_value(lo, 'Hz')}" if lo else "", gain_text)
 
 
 def _percent(share: float) -> str:

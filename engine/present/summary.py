@@ -11,6 +11,7 @@ from ..core.band import Band
 from ..solve.mna import SHORT
 from ..core.values import db_unit, error_text, format_value
 from .biasdata import BIAS_HEADINGS, bias_rows
+from .plotdata import phase_deg
 
 _ELEMENT_UNITS = {"capacitance": "F", "inductance": "H", "resistance": "Ω", "time_constant": "s",
                   "share": "1", "gain_shorted": None, "gain_opened": None, "midband_reactance": "Ω",
@@ -214,7 +215,8 @@ def format_table(a, title: str | None = None) -> str:
 
 
 def write_sweep_csv(a, path) -> None:
-    """Write the exact sweep to ``path``: frequency (Hz), |H| (gain unit), |H| (dB), phase (degrees).
+    """Write the exact sweep to ``path``: frequency (Hz), |H| (gain unit), |H| (dB), phase
+    (degrees, read from the reference the plot uses: :func:`plotdata.phase_deg`).
 
     Parameters
     ----------
@@ -229,5 +231,5 @@ def write_sweep_csv(a, path) -> None:
         mag = np.abs(H)
         with np.errstate(divide="ignore"):
             db = 20 * np.log10(mag)
-        for row in zip(f, mag, db, np.degrees(np.unwrap(np.angle(H)))):
+        for row in zip(f, mag, db, phase_deg(a, f, H)):
             w.writerow([f"{v:.9g}" for v in row])

@@ -74,13 +74,13 @@ def test_bode_curves_match_the_closed_forms_and_meet_in_the_mid_band():
     assert _at(d.low_estimate, 20.0) == pytest.approx(mid - HALF_POWER_DB, abs=0.02)
     split = math.sqrt(20.0 * 1e6)
     assert d.high_estimate.freq_hz.min() >= split and d.low_estimate.freq_hz.max() <= split
-    # An inverting stage reads 180° in the mid band; the high estimate lags by atan(f/f_H) and
+    # An inverting stage reads −180° in the mid band; the high estimate lags by atan(f/f_H) and
     # the low estimate leads by atan(f_L/f) (first-order phase, common practice, no source).
     mid_phase = np.interp(math.log10(4.5e3), np.log10(d.exact.freq_hz), d.exact.phase_deg)
-    assert mid_phase == pytest.approx(180.0, abs=0.5)
+    assert mid_phase == pytest.approx(-180.0, abs=0.5)
     fh, fl = d.high_estimate.freq_hz, d.low_estimate.freq_hz
-    assert d.high_estimate.phase_deg == pytest.approx(180 - np.degrees(np.arctan(fh / 1e6)))
-    assert d.low_estimate.phase_deg == pytest.approx(180 + np.degrees(np.arctan(20.0 / fl)))
+    assert d.high_estimate.phase_deg == pytest.approx(-180 - np.degrees(np.arctan(fh / 1e6)))
+    assert d.low_estimate.phase_deg == pytest.approx(-180 + np.degrees(np.arctan(20.0 / fl)))
 
 
 def test_markers_sit_at_the_corners_three_db_down():
