@@ -43,6 +43,8 @@ class _Heading:
     total: str
     band: str
     sens_head: str
+    head_on_top: bool
+    """The sensitivity column's heading goes on the title's line (else on the sum's line)."""
 
 
 @dataclass(frozen=True)
@@ -151,8 +153,15 @@ class TimeConstantBars(QWidget):
             bar_x = PAD + PIN_W + name_w
             bar_w = max(MIN_BAR_W, width - PAD - text_w - sens_w - bar_x)
             for g in self._data.groups:
+                # The column's heading goes on whichever line of the group's heading has room
+                # for it; with room on neither it is left to the tooltip rather than overprint.
+                head = SENSITIVITY_HEADS.get(g.band, "")
+                room = width - 2 * PAD - fm.horizontalAdvance(head) - 8
+                on_top = fb.horizontalAdvance(g.title) <= room
+                if not on_top and fm.horizontalAdvance(g.total_text) > room:
+                    head = ""
                 self._headings.append(_Heading(QRectF(PAD, y, width - 2 * PAD, HEAD_H), g.title,
-                                               g.total_text, g.band, SENSITIVITY_HEADS.get(g.band, "")))
+                                               g.total_text, g.band, head, on_top))
                 y += HEAD_H
                 for r in g.rows:
                     rect = QRectF(PAD / 2, y, width - PAD, ROW_H)
@@ -200,7 +209,9 @@ class TimeConstantBars(QWidget):
             p.setFont(plain)
             p.setPen(c.stale if self._stale else c.muted)
             p.drawText(bottom, Qt.AlignmentFlag.AlignVCenter | Qt.AlignmentFlag.AlignLeft, h.total)
-            p.drawText(bottom, Qt.AlignmentFlag.AlignVCenter | Qt.AlignmentFlag.AlignRight, h.sens_head)
+            p.drawText(top if h.head_on_top else bottom,
+                       (Qt.AlignmentFlag.AlignBottom if h.head_on_top else Qt.AlignmentFlag.AlignVCenter)
+                       | Qt.AlignmentFlag.AlignRight, h.sens_head)
         for b in self._bars:
             r = b.row
             colour = QColor(c.stale if self._stale else c.band(r.band))

@@ -96,10 +96,12 @@ class BodePlot(Restyles, QWidget):
                                                      labelOpts={"position": 0.04, "anchors": [anchor, anchor]})
                              for corner, anchor in (("high", (1, 1)), ("low", (0, 1)))}
         for line in self.target_lines.values():
+            line.setZValue(-1)  # under the corner labels, whose filled boxes stay legible
             self.magnitude.addItem(line, ignoreBounds=True)
         self.gain_window = pg.LinearRegionItem(orientation="horizontal", movable=False)
+        self.gain_window.setZValue(-2)
         self.magnitude.addItem(self.gain_window, ignoreBounds=True)
-        self.gain_label = pg.TextItem(anchor=(0, 1))
+        self.gain_label = pg.TextItem(anchor=(0, 0))
         self.magnitude.addItem(self.gain_label, ignoreBounds=True)
         self._targets = None
         self.cursor = tuple(pg.InfiniteLine(angle=90, movable=False) for _ in range(2))
@@ -164,10 +166,12 @@ class BodePlot(Restyles, QWidget):
         self._restyle()
 
     def _place_gain_label(self, *_) -> None:
-        # At the left end of the window, inside the plot whatever the zoom.
+        # Under the left end of the window, inside the plot whatever the zoom: below f_L,
+        # where the curve has fallen away and the corner labels (which point into the mid
+        # band) are not.
         if self._targets is not None and self._targets.gain_db is not None:
             left = self.magnitude.getViewBox().viewRange()[0][0]
-            self.gain_label.setPos(left, self._targets.gain_db[1])
+            self.gain_label.setPos(left, self._targets.gain_db[0])
 
     def show_before(self, curve) -> None:
         """Draw ``curve`` (a :class:`bandsketch.engine.present.plotdata.Curve`) as the design

@@ -105,6 +105,7 @@ class AnalysisPanel(QWidget):
         sweep_menu.addAction(holder)
         sweep.setMenu(sweep_menu)
         tools.addWidget(sweep)
+        self.sweep_button = sweep
         self.sweep: tuple | None = None
         """The sweep the designer chose (Hz, lowest and highest), or None for the automatic one."""
         fit = QToolButton(text="Fit")
@@ -391,6 +392,7 @@ class AnalysisPanel(QWidget):
 
     def _plot_switched(self, *_) -> None:
         self.legend.setText(self.plots.currentWidget().legend_html())
+        self.sweep_button.setVisible(self.plots.currentWidget() is self.bode)
         self.hover_readout.clear()
 
     def restyle(self) -> None:
