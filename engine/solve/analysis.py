@@ -18,8 +18,8 @@ from typing import Mapping
 import numpy as np
 
 from ..core.band import Band
-from .bands import (IN_BAND_DB, NEUTRAL_DB, BandTest, band_tests, fixed_elements, parallel_capacitance,
-                    parallel_groups)
+from .bands import (IN_BAND_DB, NEUTRAL_DB, BandTest, GroupTest, band_tests, fixed_elements, group_tests,
+                    parallel_capacitance, parallel_groups)
 from .corners import (brackets, corners_around, first_span, midband_guess, points_per_decade, second_order_corner,
                       wide_sweep)
 from ..network.elements import Capacitor, Inductor, ISource, VSource
@@ -323,8 +323,12 @@ class Analysis:
 
     def midband_states(self) -> dict[str, str]:
         """Name -> ``"short"`` or ``"open"``: the resistive mid-band network, for
-        :func:`bandsketch.engine.solve.mna.build_system`."""
-        return {r.name: r.state for r in self.elements.values()}
+        :func:`bandsketch.engine.solve.mna.build_system`.
+
+        Capacitors in parallel are all shorted at mid band; in the network one short joins
+        their nodes and the others are left out (the same network, and solvable).
+        """
+        return _joined_once(self.elements.values(), {r.name: r.state for r in self.elements.values()})
 
     def port_picture(self, name: str) -> PortPicture | None:
         """How ``name``'s resistance is found; None for a neutral element (it has none).
@@ -358,6 +362,29 @@ def _band_state(el, band) -> str:
     return OPEN if is_cap else SHORT
 
 
+def _joined_once(reactive, states) -> dict[str, str]:
+    """``states`` with every capacitor whose short would close a loop of other shorts left open
+    (inductors first, then capacitors, each in circuit order)."""
+    parent: dict[str, str] = {}
+
+    def root(node):
+        while parent.setdefault(node, node) != node:
+            parent[node] = parent[parent[node]]
+            node = parent[node]
+        return node
+
+    out = {}
+    for el in sorted(reactive, key=lambda e: isinstance(e, (Capacitor, CapacitorResult))):
+        state = states[el.name]
+        if state == SHORT:
+            ra, rb = root(el.nodes[0]), root(el.nodes[1])
+            if ra == rb and isinstance(el, (Capacitor, CapacitorResult)):
+                state = OPEN
+            parent[ra] = rb
+        out[el.name] = state
+    return out
+
+
 def midband_states(reactive, bands, neutral_states=None) -> dict[str, str]:
     """States of the resistive mid-band network, as :func:`bandsketch.engine.solve.mna.build_system` takes them.
 
@@ -375,26 +402,12 @@ def midband_states(reactive, bands, neutral_states=None) -> dict[str, str]:
     nodes are already joined, so the network is the same and stays solvable.
     """
     neutral_states = neutral_states or {}
-    parent: dict[str, str] = {}
-
-    def root(node):
-        while parent.setdefault(node, node) != node:
-            parent[node] = parent[parent[node]]
-            node = parent[node]
-        return node
-
-    states = {}
-    for el in sorted(reactive, key=lambda e: isinstance(e, Capacitor)):
+    chosen = {}
+    for el in reactive:
         band = bands[el.name]
         state = neutral_states.get(el.name) if band == Band.NEUTRAL else None
-        state = state or _band_state(el, band)
-        if state == SHORT:
-            ra, rb = root(el.a), root(el.b)
-            if ra == rb and isinstance(el, Capacitor):
-                state = OPEN
-            parent[ra] = rb
-        states[el.name] = state
-    return states
+        chosen[el.name] = state or _band_state(el, band)
+    return _joined_once(reactive, chosen)
 
 
 def reactance(el, f: float) -> float:
@@ -613,6 +626,9 @@ class Classification:
         Its conductance matrix, factorised.
     settled : bool
         False when the bands still changed after :data:`MAX_ROUNDS` rounds.
+    groups : tuple of GroupTest
+        Capacitors the one-at-a-time test left inconclusive that share nodes, tested together
+        at the mid-band frequency (a loop, two paths, a series chain).
     """
 
     midband_frequency: float
@@ -624,6 +640,7 @@ class Classification:
     mid: object = field(repr=False)
     mid_lu: object = field(repr=False)
     settled: bool
+    groups: tuple[GroupTest, ...] = ()
 
     def members(self, stage, band) -> list:
         """The elements of ``stage`` in ``band``, in circuit order."""
@@ -782,8 +799,11 @@ def classify(stage: Stage) -> Classification:
         previous = chosen, placed
         low_bracket, high_bracket = brackets(freqs, H, f_m, abs(gain) / math.sqrt(2))
         f_m = _next_midband(low_bracket, high_bracket, f_m, freqs)
+    inconclusive = [el for el in stage.reactive if isinstance(el, Capacitor) and chosen[el.name] == Band.NEUTRAL
+                    and el.name not in stage.fixed and el.name not in stage.pins]
+    groups = tuple(group_tests(stage.circuit, stage.system, inconclusive, f_m))
     return Classification(f_m, MappingProxyType(tests), MappingProxyType(chosen), MappingProxyType(states),
-                          MappingProxyType(seen), gain, mid, lu, settled)
+                          MappingProxyType(seen), gain, mid, lu, settled, groups)
 
 
 def estimate(stage: Stage, bands: Classification, full_matrix_limit: int = FULL_MATRIX_LIMIT) -> Estimates:
@@ -836,6 +856,7 @@ def _results(stage, bands, est):
     oc, sc = est.open_circuit, est.short_circuit
     high = bands.members(stage, Band.HIGH)
     total_c = parallel_capacitance(bands.members(stage, Band.LOW))
+    low_groups = parallel_groups(bands.members(stage, Band.LOW))
     unit_db = db_unit(stage.gain_unit)
     position = {el.name: j for j, el in enumerate(high)}
     caps, inds = {}, {}
@@ -846,7 +867,7 @@ def _results(stage, bands, est):
         share = 0.0
         if band == Band.HIGH:
             j = position[el.name]
-            tau = float(oc.time_constants[j])
+            tau = float(oc.time_constants[j]) + 0.0  # an inductor that sees an open: 0 s, not −0 s
             z = float(oc.port_values[j])
             resistance = z if isinstance(el, Capacitor) else (1 / -z if z != 0 else math.inf)
             share = tau / oc.b1 if oc.b1 else 0.0
@@ -861,9 +882,21 @@ def _results(stage, bands, est):
             f_zero = float(est.low_sections.zeros[j]) / (2 * math.pi)
         state, seen, x = bands.states[el.name], bands.seen[el.name], reactance(el, bands.midband_frequency)
         why_state = state_reason(el, state, x, seen)
+        if band == Band.LOW and isinstance(el, Capacitor) and state == OPEN:
+            # Left out of the network only because a capacitor in parallel already joins its
+            # nodes: at mid band it is a short like its partners.
+            partners = [m for m in low_groups[frozenset(el.nodes)] if m.name != el.name]
+            joined = next(m for m in partners if bands.states[m.name] == SHORT)
+            state = SHORT
+            why_state = (f"shorted at mid band, in parallel with {_names([m.name for m in partners])}: "
+                         f"1/(2π·f_m·ΣC) = {format_value(x * el.value / total_c[el.name], 'Ω')} beside the "
+                         f"{format_value(bands.seen[joined.name], 'Ω')} they see")
         reason = _reason(el, test, unit_db)
         if band == Band.NEUTRAL and not test.fixed:
             reason += f"; so its impedance decides: {why_state}"
+            group = next((g for g in bands.groups if el.name in g.names and g.band != Band.NEUTRAL), None)
+            if group:
+                reason += f"; {_group_words(group, el.name, unit_db)}"
         if el.name in stage.pins:
             reason = f"pinned to the {band} band (the test says: {reason})"
         common = dict(name=el.name, nodes=el.nodes, band=band, pinned=el.name in stage.pins, resistance=resistance,
@@ -950,6 +983,31 @@ def analyze(c, bands=None, *, per_decade: int | None = None, full_matrix_limit: 
 def _hz_of(omega):
     """Hz of a positive angular frequency (rad/s); None otherwise."""
     return omega / (2 * math.pi) if omega and omega > 0 else None
+
+
+def _group_words(group, name, unit_db) -> str:
+    """What a group test found, said for ``name`` (one of its members)."""
+    others = _names([n for n in group.names if n != name])
+    verb, after = ("opening", group.gain_opened) if group.band == Band.LOW else ("shorting", group.gain_shorted)
+    return (f"tested together with {others}, {verb} them all moves the gain from {_db(group.gain_as_is)} {unit_db} "
+            f"to {_db(after)} {unit_db}: together they are {group.band} band")
+
+
+def _group_notes(bands, exact) -> list[str]:
+    """Groups that act only together: the estimates leave them out, so the exact corner decides."""
+    notes = []
+    for g in bands.groups:
+        if g.band == Band.NEUTRAL:
+            continue
+        verb, after = ("Opening", g.gain_opened) if g.band == Band.LOW else ("Shorting", g.gain_shorted)
+        side, corner = ("lower", exact.f_low) if g.band == Band.LOW else ("upper", exact.f_high)
+        drop = 20 * math.log10(after / g.gain_as_is) if after > 0 and g.gain_as_is > 0 else -math.inf
+        said = "to nothing" if math.isinf(drop) else f"by {abs(drop):.2f} dB"
+        trust = f"trust the exact {side} corner ({_hz(corner)})" if corner else f"the exact gain has no {side} corner"
+        notes.append(f"{_names(g.names)} act only together: alone each is inconclusive (the others still carry "
+                     f"or bypass the signal), but {verb.lower()} them all changes the gain {said}. The time constants "
+                     f"take no group apart, so the estimate leaves them out: {trust}.")
+    return notes
 
 
 def _dominant(results, band):
@@ -1048,6 +1106,9 @@ def _why_off(side, stage, bands, est, exact, results, known_zeros) -> list[str]:
     if exact.f_low and exact.f_high and exact.f_high / exact.f_low < BANDS_APART:
         why.append(f"the bands are only {exact.f_high / exact.f_low:.1f}× apart (f_H/f_L), so each band's "
                    "elements still act near the other's corner")
+    together = [g for g in bands.groups if g.band == side]
+    if together:
+        why.append("; ".join(f"{_names(g.names)} act only together, which the estimate leaves out" for g in together))
     inside = [r.name for r in results.values() if r.acts_in_band]
     if inside:
         why.append(f"{_names(inside)} act{'s' if len(inside) == 1 else ''} inside the band")
@@ -1096,10 +1157,19 @@ def _error_notes(stage, bands, est, exact, results, known_zeros) -> list[str]:
         why = "; ".join(_why_off(side, stage, bands, est, exact, results, known_zeros))
         notes.append(f"The {sym} estimate ({_hz(estimate_)}) is {abs(off):.0f} % {where} the exact corner "
                      f"({_hz(exact_)}): {why}. Trust the exact corner.")
-    if est.low_port_of and est.f_low is None and exact.f_low:
-        why = "; ".join(_why_off(Band.LOW, stage, bands, est, exact, results, known_zeros))
-        notes.append(f"The f_L estimate finds no lower corner (the low-band elements together never cost 3 dB), "
-                     f"but the exact gain falls 3 dB at {_hz(exact.f_low)}: {why}. Trust the exact corner.")
+    for side, sym, word, estimate_, exact_ in ((Band.HIGH, "f_H", "upper", est.f_high, exact.f_high),
+                                               (Band.LOW, "f_L", "lower", est.f_low, exact.f_low)):
+        if estimate_ is not None or not exact_:
+            continue
+        if not bands.members(stage, side):
+            cause = f"no element tests as {side} band"
+        elif side == Band.LOW:
+            cause = "the low-band elements together never cost 3 dB"
+        else:
+            cause = "b1 is not positive"
+        why = "; ".join(_why_off(side, stage, bands, est, exact, results, known_zeros))
+        notes.append(f"The {sym} estimate finds no {word} corner ({cause}), but the exact gain falls 3 dB at "
+                     f"{_hz(exact_)}: {why}. Trust the exact corner.")
     if est.f_low and exact.f_low is None:
         notes.append("The exact gain never falls 3 dB below the mid band: there is no lower corner, only the "
                      "estimate.")
@@ -1143,6 +1213,7 @@ def warn(stage: Stage, bands: Classification, est: Estimates, exact: ExactCorner
         "The band test did not settle: the elements change band as the mid-band frequency "
         "moves, so the bands overlap and the estimates are weak."]
     notes += _element_notes(stage, results)
+    notes += _group_notes(bands, exact)
     too_many = len(bands.members(stage, Band.HIGH)) > full_matrix_limit
     notes += _high_band_notes(est, exact, known_zeros, too_many, full_matrix_limit)
     notes += _low_band_notes(est)

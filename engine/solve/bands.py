@@ -18,6 +18,9 @@ import numpy as np
 
 from ..core.band import Band
 from ..network.elements import CCCS, CCVS, VCCS, VCVS, Capacitor, Inductor, ISource, VSource
+from ..core.errors import CircuitError
+from .mna import OPEN, SHORT, build_system
+from .response import frequency_response
 from .timeconstants import factorize, port_columns, port_diagonal
 
 NEUTRAL_DB = 0.01
@@ -211,3 +214,86 @@ def _removed_directly(system, A, u, t) -> float:
     """|H| with the element of admittance ``t`` and port column ``u`` taken out of ``A``."""
     x = factorize((A - t * (u @ u.T)).tocsc(), "with one element removed").solve(system.b.astype(complex))
     return abs(complex(system.c @ x))
+
+
+@dataclass(frozen=True)
+class GroupTest:
+    """The short/open gain test of capacitors that can only act together.
+
+    Attributes
+    ----------
+    names : tuple of str
+        The capacitors, each inconclusive alone: they share nodes (other than ground), so
+        with one of them opened or shorted the others still carry or still bypass the signal
+        (a loop, a pair of paths, a series chain).
+    gain_shorted, gain_opened, gain_as_is : float
+        |H| at the test frequency with all of them shorted (a loop keeps one member open:
+        its ends are already joined), all opened, and as they are (gain unit).
+    band : Band
+        What they are together: ``Band.LOW`` when opening them all costs gain, ``Band.HIGH``
+        when shorting them all does, ``Band.NEUTRAL`` when neither does.
+    """
+
+    names: tuple[str, ...]
+    gain_shorted: float
+    gain_opened: float
+    gain_as_is: float
+    band: Band
+
+
+def _neutral_groups(capacitors) -> list[list]:
+    """Capacitors joined by nodes other than ground, in groups of two or more, in circuit order."""
+    graph = nx.MultiGraph()
+    for el in capacitors:
+        graph.add_edge(el.a, el.b, name=el.name)
+    graph.remove_nodes_from(["0"])
+    groups = []
+    for part in nx.connected_components(graph):
+        names = {d["name"] for _, _, d in graph.subgraph(part).edges(data=True)}
+        members = [el for el in capacitors if el.name in names]
+        if len(members) >= 2:
+            groups.append(members)
+    return groups
+
+
+def group_tests(circuit, system, capacitors, f_test: float) -> list[GroupTest]:
+    """The gain test of every group of ``capacitors`` (:func:`_neutral_groups`) at ``f_test`` (Hz).
+
+    Parameters
+    ----------
+    circuit : bandsketch.engine.network.circuit.Circuit
+    system : bandsketch.engine.solve.mna.MnaSystem
+        The full network, every element as it is.
+    capacitors : sequence of Capacitor
+        The capacitors the one-at-a-time test left inconclusive.
+    f_test : float
+        Hz, the test frequency.
+
+    Notes
+    -----
+    Each group costs two factorisations at one frequency (all opened, all shorted); the
+    shorts skip a member whose ends the others already join, so a loop stays solvable.
+    """
+    as_is = abs(frequency_response(system, [f_test])[0])
+    out = []
+    for members in _neutral_groups(capacitors):
+        parent: dict[str, str] = {}
+
+        def root(node):
+            while parent.setdefault(node, node) != node:
+                node = parent[node]
+            return node
+
+        shorts = {}
+        for el in members:
+            ra, rb = root(el.a), root(el.b)
+            shorts[el.name] = OPEN if ra == rb else SHORT
+            parent[ra] = rb
+        try:
+            shorted, opened = (abs(frequency_response(build_system(circuit, states), [f_test])[0])
+                               for states in (shorts, {el.name: OPEN for el in members}))
+        except CircuitError:
+            continue  # the shorts close a loop with ideal sources: no state to compare
+        out.append(GroupTest(tuple(el.name for el in members), float(shorted), float(opened), float(as_is),
+                             verdict(shorted, opened, as_is, True)))
+    return out

@@ -249,14 +249,16 @@ def lower_corner(circuit, f_mid, gain=None):
     return brentq(db_below, grid[below], grid[below - 1], xtol=1e-12, rtol=1e-12)
 
 
-def partly_bypassed_ce(re1, re2, ce, ro=None):
+def partly_bypassed_ce(re1, re2, ce, ro=None, cin=(4.7e-6,)):
     """Invented "geophone preamp": a common emitter with R_E1 unbypassed and R_E2 bypassed by C_E,
-    coupled in and out. Without r_o the emitter branch carries no current where
-    R_E2 ‖ 1/(sC_E) is infinite, so the bypass's zero is exactly 1/(R_E2·C_E)."""
+    coupled in and out (the input coupling ``cin``, F, one capacitor or several in parallel).
+    Without r_o the emitter branch carries no current where R_E2 ‖ 1/(sC_E) is infinite, so
+    the bypass's zero is exactly 1/(R_E2·C_E)."""
     c = Circuit(f"geophone preamp, R_E1 {re1:g} Ω, R_E2 {re2:g} Ω (invented)")
     c.vsource("Vsig", "sig", "0")
     c.resistor("Rsig", "sig", "x", 600)
-    c.capacitor("Cin", "x", "b", 4.7e-6)
+    for k, value in enumerate(cin):
+        c.capacitor("Cin" if len(cin) == 1 else f"Cin{k + 1}", "x", "b", value)
     c.resistor("Rbias", "b", "0", 8200)
     c.bjt("Q1", collector="c", base="b", emitter="e", gm=0.08, rpi=2500, rb=100, cpi=20e-12, cmu=2e-12,
           **({"ro": ro} if ro else {}))

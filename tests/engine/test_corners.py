@@ -5,15 +5,10 @@ All stages are invented scenarios (see bandstages.py).
 
 import math
 
-import mpmath as mp
-import numpy as np
 import pytest
-from hypothesis import given, settings
 
 from bandstages import rc_coupled, tuned_tank
 from bandsketch.engine import analyze
-from bandsketch.engine.solve.mna import build_system
-from test_analysis import networks
 
 
 # A narrow tuned stage: its corners may fall between two sweep points, or both between the
@@ -52,42 +47,5 @@ def test_bands_close_together_are_said():
     assert any(f"only {ratio:.1f}× apart" in w for w in a.warnings)
 
 
-def _mp_magnitude(G, C, b, c, f):
-    x = mp.lu_solve(G + 2j * mp.pi * mp.mpf(f) * C, b)
-    return abs((c.T * x)[0])
-
-
-# The exact corners against a dense high-precision reference: at each corner mpmath's |H|
-# (30 digits, the engine's matrices rounded to binary64) is at the −3 dB level, and on a
-# dense grid from the mid band to the corner it is above it, so no nearer crossing was
-# missed (mpmath, F. Johansson et al., mpmath 1.3, 2023).
-@settings(max_examples=8, deadline=None)
-@given(networks())
-def test_exact_corners_agree_with_an_mpmath_reference(c):
-    a = analyze(c)
-    system = build_system(c)
-    with mp.workdps(30):
-        G, C = mp.matrix(system.G.toarray().tolist()), mp.matrix(system.C.toarray().tolist())
-        b, sel = mp.matrix(system.b.tolist()), mp.matrix(system.c.tolist())
-        level = abs(mp.mpf(a.midband_gain)) / mp.sqrt(2)
-        f_m = a.midband_frequency
-        # Where the bands overlap the exact gain can stay below A_m's −3 dB level at f_m itself;
-        # the corners are then taken from the nearest sweep points above it (checked below).
-        outward = _mp_magnitude(G, C, b, sel, f_m) >= level
-        for corner, end in ((a.f_low_exact, a.sweep_frequencies[0]), (a.f_high_exact, a.sweep_frequencies[-1])):
-            stop = corner if corner is not None else end
-            for f in np.geomspace(f_m, stop, 24)[1:-1] if outward else ():
-                assert _mp_magnitude(G, C, b, sel, f) > level * (1 - 1e-9), (f, corner)
-            if corner is not None:
-                assert abs(_mp_magnitude(G, C, b, sel, corner) / level - 1) < 1e-9
-
-
-# No silent miss: an estimate more than 25 % from its exact corner always comes with a
-# warning that says so (the rule of issue 11; common practice, no source).
-@settings(max_examples=40, deadline=None)
-@given(networks())
-def test_an_estimate_far_off_always_warns(c):
-    a = analyze(c)
-    for sym, ratio in (("f_H", a.f_high_ratio), ("f_L", a.f_low_ratio)):
-        if ratio is not None and abs(ratio - 1) > 0.25:
-            assert any(w.startswith(f"The {sym} estimate") for w in a.warnings), (sym, ratio, a.warnings)
+# The exact corners against an mpmath reference, and the no-silent-miss rule, on random
+# stages: tests/fuzz/test_band_properties.py (with the fuzz budget).

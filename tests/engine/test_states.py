@@ -7,8 +7,9 @@ by hand from the element values.
 import math
 
 import pytest
+from scipy.optimize import brentq
 
-from bandstages import common_gate
+from bandstages import common_gate, lower_corner, partly_bypassed_ce
 from bandsketch.engine import Circuit, analyze
 
 
@@ -60,8 +61,11 @@ def test_a_stray_across_a_quiet_branch_is_open():
 # Three coupling capacitors in a triangle: any one can be opened while the other two carry
 # the signal, so each tests neutral. By impedance they are shorts (two shorted, the third's
 # ends then already joined), and the mid-band gain is the divider (R_b ‖ R_L)/(R_sig + R_b ‖ R_L)
-# = 1 kΩ / 1.3 kΩ = 0.769 (worked by hand).
-def test_capacitor_triangle_carries_the_signal():
+# = 1 kΩ / 1.3 kΩ = 0.769 (worked by hand). Tested together, opening all three cuts the signal
+# off: they are a coupling as a group, the estimate cannot take the loop apart, and the
+# analysis says so beside the exact corner, which is checked against the sympy/scipy
+# reference (bandstages.lower_corner).
+def _triangle():
     c = Circuit("sensor coupling triangle (invented)")
     c.vsource("Vsig", "sig", "0")
     c.resistor("Rsig", "sig", "a", 300)
@@ -71,12 +75,98 @@ def test_capacitor_triangle_carries_the_signal():
     c.resistor("Rb", "b", "0", 2000)
     c.resistor("RL", "c", "0", 2000)
     c.output("c")
-    a = analyze(c)
+    return c
+
+
+def test_capacitor_triangle_carries_the_signal():
+    a = analyze(_triangle())
     assert a.midband_gain == pytest.approx(1000 / 1300, rel=1e-9)
     states = sorted(r.state for r in a.capacitors.values())
     assert states == ["open", "short", "short"]
     assert any("other shorts already join its ends" in r.state_reason for r in a.capacitors.values())
     assert abs(a.response([a.midband_frequency])[0]) == pytest.approx(1000 / 1300, rel=1e-3)
+
+
+def test_capacitor_triangle_is_judged_as_a_group():
+    a = analyze(_triangle())
+    for r in a.capacitors.values():
+        assert r.band == "neutral" and "together they are low band" in r.reason
+    assert a.f_low_exact == pytest.approx(lower_corner(_triangle(), a.midband_frequency, a.midband_gain), rel=1e-6)
+    assert a.f_low_estimate is None
+    group = next(w for w in a.warnings if w.startswith("Ca, Cb and Cc act only together"))
+    assert "opening them all changes the gain to nothing" in group and "trust the exact lower corner" in group
+    assert any(w.startswith("The f_L estimate finds no lower corner (no element tests as low band)")
+               for w in a.warnings)
+
+
+# A coupling capacitor made of two in parallel: shorting or opening one leaves the other, so
+# they are tested as one port; capacitances in parallel add (common practice, no source), so
+# the stage's figures equal those of one 4.7 µF capacitor, and each shares its port's part
+# of the 3 dB in proportion to its capacitance.
+def test_parallel_coupling_capacitors_act_as_one():
+    single = analyze(partly_bypassed_ce(100, 470, 100e-6))
+    a = analyze(partly_bypassed_ce(100, 470, 100e-6, cin=(1e-6, 3.7e-6)))
+    one = single.capacitors["Cin"]
+    for name, cap in (("Cin1", 1e-6), ("Cin2", 3.7e-6)):
+        r = a.capacitors[name]
+        assert r.band == "low" and r.state == "short"
+        assert r.resistance == pytest.approx(one.resistance, rel=1e-9)
+        assert r.time_constant == pytest.approx(one.time_constant, rel=1e-9)
+        assert r.share == pytest.approx(one.share * cap / 4.7e-6, rel=1e-9)
+    assert a.f_low_estimate == pytest.approx(single.f_low_estimate, rel=1e-9)
+    assert a.f_low_exact == pytest.approx(single.f_low_exact, rel=1e-9)
+    assert a.capacitors["Cin2"].state_reason.startswith("shorted at mid band, in parallel with Cin1")
+    assert a.midband_states()["Cin2"] == "open"  # the network joins the nodes once
+
+
+# A choke from a quiet monitor node to ground (the node hangs off the ideal source, so no
+# state of the choke moves the gain): its state is what 2π·f_m·L is beside the R_mon ‖ R_mon2
+# = 5 kΩ it sees (worked by hand), shorted for a small choke and open for a large one
+# (common practice, no source).
+@pytest.mark.parametrize("inductance, state", [(10e-6, "short"), (0.1, "open")])
+def test_an_inconclusive_inductor_takes_the_state_of_its_impedance(inductance, state):
+    c = common_gate()
+    c.resistor("Rmon", "sig", "mon", 10e3)
+    c.resistor("Rmon2", "mon", "0", 10e3)
+    c.inductor("Lmon", "mon", "0", inductance)
+    r = analyze(c).inductors["Lmon"]
+    assert r.band == "neutral" and r.state == state
+    assert r.midband_resistance == pytest.approx(5e3, rel=1e-9)
+    assert (r.midband_reactance < 5e3) == (state == "short")
+    assert r.state_reason.startswith(f"{'shorted' if state == 'short' else 'open'} at mid band: 2π·f_m·L = ")
+
+
+# Shunt peaking: g_m into C_L ‖ (R + L), so Z = (R + sL)/(1 + sRC + s²LC) (derived in writing
+# this test). The inductor is a short at mid band (high band: opening it removes R); with
+# the capacitor open it sees an open circuit, so its zero-value time constant is 0 and
+# b1 = RC, b2 = LC. With m = L/(R²C) = 0.41 and 0.71 the bandwidth grows to 1.72 and 1.85
+# times 1/(2πRC) (T. H. Lee, The Design of CMOS Radio-Frequency Integrated Circuits; from
+# memory), which the first-order estimate misses and the analysis says, with why.
+@pytest.mark.parametrize("m, extension", [(0.41, 1.72), (0.71, 1.85)])
+def test_shunt_peaking(m, extension):
+    R, C = 1000.0, 1e-12
+    c = Circuit("video output stage, shunt peaked (invented)")
+    c.vsource("Vsig", "sig", "0")
+    c.vccs("Gm", "d", "0", "sig", "0", 1e-3)
+    c.capacitor("CL", "d", "0", C)
+    c.resistor("RD", "d", "x", R)
+    c.inductor("Lp", "x", "0", m * R * R * C)
+    c.output("d")
+    a = analyze(c)
+    r = a.inductors["Lp"]
+    assert r.band == "high" and r.state == "short" and r.time_constant == 0 and r.resistance == math.inf
+    assert a.b1 == pytest.approx(R * C, rel=1e-12) and a.b2 == pytest.approx(m * R * R * C * C, rel=1e-12)
+
+    def excess(w):
+        z = (R + 1j * w * m * R * R * C) / (1 + 1j * w * R * C - w * w * m * R * R * C * C)
+        return abs(z) - R / math.sqrt(2)
+
+    exact = brentq(excess, 1 / (R * C), 3 / (R * C)) / (2 * math.pi)
+    assert a.f_high_exact == pytest.approx(exact, rel=1e-9)
+    assert a.f_high_exact * 2 * math.pi * R * C == pytest.approx(extension, abs=0.01)
+    note = next(w for w in a.warnings if w.startswith("The f_H estimate"))
+    assert f"{100 * (1 - a.f_high_ratio):.0f} % below the exact corner" in note
+    assert "complex poles" in note and "zero" in note
 
 
 def _cascode(rb, cb):
