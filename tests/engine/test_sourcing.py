@@ -30,8 +30,11 @@ def _ce():
 def test_knobs_are_the_designers_values_only():
     doc = _ce()
     found = knobs(doc)
+    # The sample is biased from the sheet: its rails' voltages and Q1's I_S (the choice of
+    # transistor) are the designer's too.
     assert {k.part for k in found} == {p.name for p in doc.parts.values()
-                                        if p.kind in ("resistor", "capacitor")}
+                                        if p.kind in ("resistor", "capacitor", "rail")} | {"Q1"}
+    assert {k.key for k in found if k.part == "Q1"} == {"isat"}
     assert not any(k.device for k in found)
     assert {k.series for k in found if k.part.startswith("R")} == {"E24"}
     assert {k.series for k in found if k.part.startswith("C")} == {"E6"}
@@ -46,7 +49,8 @@ def test_choosing_another_device_and_holding_a_part_fixed():
     assert "RL" not in found
     assert found["RC"].series == "E96"
     device = {label for label, k in found.items() if k.device}
-    assert {"Q1 β", "Q1 I_C", "Q1 f_T"} <= device  # offered only because the designer ticked it
+    # Q1 is biased from the sheet, so its I_C is solved, never a knob.
+    assert {"Q1 β", "Q1 f_T"} <= device and "Q1 I_C" not in found  # offered only because the designer ticked it
     assert all(found[label].part == "Q1" for label in device)
     assert "Q1 Temperature" not in found  # a condition of use, never a knob
 
