@@ -113,6 +113,11 @@ def _stamp_coefficient(element, value: float) -> float:
     return 1.0 / value if isinstance(element, Resistor) else float(value)
 
 
+def value_of(element) -> float:
+    """The number an element carries (Ω, F, H, S or a gain), as :func:`part_values` reads it."""
+    return float(getattr(element, _VALUE_ATTR[type(element)][0]))
+
+
 def with_value(element, value: float):
     """A copy of ``element`` holding ``value`` (SI units) instead of its own number.
 

@@ -30,6 +30,7 @@ from ..core.band import Band
 from ..network.elements import Capacitor, Inductor, Resistor
 from ..solve.lowcorner import section_corner
 from ..solve.mna import OPEN, build_system
+from .biasslopes import bias_slopes
 from .partvalues import PartValue, parametric_system, part_values
 from ..solve.timeconstants import CUT_OFF, port_columns, port_weights
 
@@ -81,10 +82,15 @@ class Sensitivities:
     notes : Mapping[str, str]
         Figure (one of :data:`FIGURES`) -> why none of its sensitivities could be computed
         (the network it is worked out on is singular); its entries in ``rows`` are None.
+    through_bias : bool
+        Whether blocks are biased from the circuit. Then a part value in the DC network (a
+        bias resistor) counts its effect through the operating point as well, while the rows
+        of the derived values (g_m, r_π ...) hold the operating point fixed.
     """
 
     rows: tuple
     notes: Mapping[str, str] = field(default_factory=lambda: MappingProxyType({}))
+    through_bias: bool = False
 
     def ranked(self, figure: str = "high_exact") -> tuple:
         """Rows with a value for ``figure`` (one of :data:`FIGURES`), largest magnitude first."""
@@ -258,12 +264,33 @@ def sensitivities(circuit, analysis) -> Sensitivities:
         value = _guarded(notes, figure, lambda f_hz=f_hz: _corner_exact(dc_sys, full_ps, f_hz, d_gain, coef, sign))
         hi_ex, lo_ex = (value, lo_ex) if figure == "high_exact" else (hi_ex, value)
 
+    slopes = bias_slopes(circuit, names)
+    if slopes is not None:
+        hi_ex, hi_est, lo_ex, lo_est, d_gain = (_through_bias(v, slopes, names)
+                                                for v in (hi_ex, hi_est, lo_ex, lo_est, d_gain))
+
     def at(v, k):
         return None if v is None else float(v[k])
 
     rows = tuple(Sensitivity(pv, at(hi_ex, k), at(hi_est, k), at(lo_ex, k), at(lo_est, k), at(d_gain, k))
                  for k, pv in enumerate(pvs))
-    return Sensitivities(rows, MappingProxyType(notes))
+    return Sensitivities(rows, MappingProxyType(notes), slopes is not None)
+
+
+def _through_bias(direct, slopes, names):
+    """Add each part value's effect through the bias: Σ_j S(y_j)·d ln y_j / d ln x_k over the
+    derived values y_j (g_m, r_π ...) whose direct sensitivities S(y_j) ``direct`` holds."""
+    if direct is None:
+        return None
+    at = {n: k for k, n in enumerate(names)}
+    rows = [j for j, d in enumerate(slopes.derived) if d in at]
+    s_derived = np.array([direct[at[slopes.derived[j]]] for j in rows])
+    total = np.array(direct, dtype=float)
+    if rows:
+        extra = s_derived @ slopes.matrix[rows, :]
+        for k, name in enumerate(slopes.values):
+            total[at[name]] += extra[k]
+    return total
 
 
 _WORKED_ON = {"high_estimate": "the mid-band network seen by the high-band capacitors",

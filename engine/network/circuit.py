@@ -435,23 +435,24 @@ class Circuit:
         """
         self.output_nodes = (_node_name(p), _node_name(n))
 
-    def with_elements(self, replacements: dict) -> "Circuit":
+    def with_elements(self, replacements: dict, *, rebias: bool = False) -> "Circuit":
         """A copy in which some primitive elements are replaced (same names), e.g. for what-if.
-
-        Blocks biased from the circuit keep the small-signal values of the operating point
-        they hold (a what-if on the small-signal network); a changed bias network is
-        re-solved by building the circuit again.
 
         Parameters
         ----------
         replacements : dict
             Name -> new primitive element.
+        rebias : bool
+            False: blocks biased from the circuit keep the small-signal values of the operating
+            point they hold (a what-if on the small-signal network, or on a derived value such as
+            g_m). True: the copy has no operating point, so the next analysis solves the bias
+            of the changed DC network again (a changed bias resistor moves g_m).
         """
         other = Circuit(self.title)
         other._elements = {k: replacements.get(k, el) for k, el in self._elements.items()}
         other._blocks = dict(self._blocks)
-        # A what-if on the small-signal network: the biased blocks keep the point they hold.
-        other._large, other._expanded, other._point = dict(self._large), dict(self._expanded), self._point
+        other._large, other._expanded = dict(self._large), dict(self._expanded)
+        other._point = None if rebias else self._point
         other.input_name, other.output_nodes = self.input_name, self.output_nodes
         return other
 

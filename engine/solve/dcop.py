@@ -249,7 +249,7 @@ def _dc_excitation(view, system) -> np.ndarray:
     return b
 
 
-class _Problem:
+class DcEquations:
     """The DC equations G·x + f(x) = b, with the devices' currents f."""
 
     def __init__(self, circuit):
@@ -341,7 +341,7 @@ def solved(circuit) -> OperatingPoint:
     """
     if circuit.operating_point is not None:
         return circuit.operating_point
-    problem = _Problem(circuit)
+    problem = DcEquations(circuit)
     x, iterations, method = _solve(problem)
     point = _point(circuit, problem, x, iterations, method)
     circuit.install_bias(point, {name: d.small_signal for name, d in point.devices.items()})

@@ -20,7 +20,7 @@ import pytest
 
 from bandsketch.engine import analyze
 from bandsketch.engine.advise.effect import effect_of
-from bandsketch.engine.advise.knobs import knobs
+from bandsketch.engine.advise.knobs import is_design_choice, knobs
 from bandsketch.engine.advise.search import search
 from bandsketch.engine.advise.suggest import suggest, yield_of
 from bandsketch.engine.advise.targets import check_targets, parse_targets, with_field
@@ -55,7 +55,8 @@ def test_suggestions_marked_as_meeting_meet_every_target_when_applied(path):
     kinds = {p.name: p.kind for p in doc.parts.values()}
     for s in advice.suggestions:
         # Nothing changes a device's physics: no part here has "I can choose another device".
-        assert all(kinds[c.knob.part] in ("resistor", "capacitor", "inductor") for c in s.changes), s.label
+        # A part value, a rail, a device's size (I_S, K_P, W, L) are the designer's to choose.
+        assert all(is_design_choice(kinds[c.knob.part], c.knob.key) for c in s.changes), s.label
         assert not any(c.knob.device for c in s.changes)
         checks = _reanalysed(doc, s.changes)
         assert all(c.passed for c in checks) == s.meets_all, (s.label, [c.text for c in checks])
@@ -66,12 +67,14 @@ def test_suggestions_marked_as_meeting_meet_every_target_when_applied(path):
 def test_device_physics_is_offered_only_when_the_designer_can_choose_another_device():
     doc = load_design(SAMPLES / "ce_hydrophone_preamp.json")
     doc.set_target("f_high_min", "1M")
-    assert not [k for k in knobs(doc) if k.part == "Q1"]
+    # Without "I can choose another device", only Q1's size (I_S scales with emitter area).
+    assert [k.key for k in knobs(doc) if k.part == "Q1"] == ["isat"]
     doc.replace_part("Q1", doc.parts["Q1"].with_sourcing(knob="yes"))
+    assert {k.key for k in knobs(doc) if k.part == "Q1" and k.device} >= {"beta", "va"}
     doc.replace_part("RC", doc.parts["RC"].with_sourcing(knob="no"))
     advice = suggest(doc, parse_targets(doc.targets), only={"Q1", "RC"}, with_yield=False)
     assert advice.suggestions and {c.knob.part for s in advice.suggestions for c in s.changes} == {"Q1"}
-    assert all(c.knob.device for s in advice.suggestions for c in s.changes)
+    assert any(c.knob.device for s in advice.suggestions for c in s.changes)
 
 
 # -- a hand-built common-emitter stage ---------------------------------------------------------

@@ -26,8 +26,13 @@ ATTR = {"high_exact": "f_high_exact", "high_estimate": "f_high_estimate", "low_e
 
 def _central(c, bands, element, nominal, attr):
     el = c.elements[element]
-    up = getattr(analyze(c.with_elements({element: with_value(el, nominal * math.exp(H))}), bands=bands), attr)
-    down = getattr(analyze(c.with_elements({element: with_value(el, nominal * math.exp(-H))}), bands=bands), attr)
+    # A part value in the DC network moves the bias: the copy solves it again. A value the bias
+    # derives (g_m, r_π ...) is varied with the operating point held, as its row says.
+    rebias = element in {e.name for e in c.dc_elements()}
+    up = getattr(analyze(c.with_elements({element: with_value(el, nominal * math.exp(H))}, rebias=rebias),
+                         bands=bands), attr)
+    down = getattr(analyze(c.with_elements({element: with_value(el, nominal * math.exp(-H))}, rebias=rebias),
+                           bands=bands), attr)
     if up is None or down is None:
         return None
     return (math.log(abs(up)) - math.log(abs(down))) / (2 * H)
