@@ -21,8 +21,8 @@ from .partvalues import stamp_coefficient, value_of, with_value
 VOLT_STEP = 1e-6
 """Junction-voltage step of the model's central differences, V."""
 
-_VOLTAGES = {"bjt": ("vbe", "vbc"), "mosfet": ("vgs", "vds", "vbs")}
-_RAW_SLICE = {"bjt": slice(0, 2), "mosfet": slice(2, 5)}
+VOLTAGES = {"bjt": ("vbe", "vbc"), "mosfet": ("vgs", "vds", "vbs")}
+RAW_SLICE = {"bjt": slice(0, 2), "mosfet": slice(2, 5)}
 """Where each kind's voltages sit in :meth:`DcEquations.devices.raw`'s tuple."""
 
 
@@ -65,7 +65,7 @@ def bias_slopes(circuit, names) -> BiasSlopes | None:
     if point is None or not circuit.large_blocks:
         return None
     eqs = DcEquations(circuit)
-    x = _unknowns(eqs, point)
+    x = unknowns(eqs, point)
     xe = np.append(x, 0.0)
     volts = eqs.devices.raw(xe)
     _, J, _ = eqs.devices.stamp(volts, eqs.n + 1)
@@ -78,8 +78,8 @@ def bias_slopes(circuit, names) -> BiasSlopes | None:
     derived, rows = [], []
     for large in circuit.large_blocks.values():
         own = _device_voltage_slopes(eqs, large, dxe)
-        k = _index(eqs, large)
-        at = {key: float(v[k]) for key, v in zip(_VOLTAGES[large.kind], volts[_RAW_SLICE[large.kind]])}
+        k = device_index(eqs, large)
+        at = {key: float(v[k]) for key, v in zip(VOLTAGES[large.kind], volts[RAW_SLICE[large.kind]])}
         for key, slope in _log_value_slopes(large, at).items():
             name = f"{large.name}.{key}"
             # r_b is a part value of its own in the DC network, not a value the bias sets.
@@ -90,7 +90,8 @@ def bias_slopes(circuit, names) -> BiasSlopes | None:
     return BiasSlopes(tuple(derived), tuple(values), matrix.reshape(len(derived), len(values)))
 
 
-def _unknowns(eqs: DcEquations, point) -> np.ndarray:
+def unknowns(eqs: DcEquations, point) -> np.ndarray:
+    """The unknowns x of ``eqs`` (node voltages in V, branch currents in A) at a solved point."""
     x = np.zeros(eqs.n)
     for node, i in eqs.system.node_index.items():
         x[i] = point.node_voltages[node]
@@ -99,29 +100,37 @@ def _unknowns(eqs: DcEquations, point) -> np.ndarray:
     return x
 
 
-def _residual_slope(circuit, eqs: DcEquations, x, name) -> np.ndarray:
-    """∂F/∂ln x_k = (∂G/∂p_k)·x·(dp_k/d ln x_k), with p_k the stamp coefficient."""
+def dc_pattern(circuit, eqs: DcEquations, name: str) -> tuple:
+    """(∂G/∂p, p) of one element in the DC equations, with p its stamp coefficient (1/R ...).
+
+    Doubling the coefficient is exact in binary, so the difference is its pattern.
+    """
     el = circuit.elements[name]
     p0 = stamp_coefficient(el, value_of(el))
-    # Doubling the coefficient is exact in binary, so the difference is its pattern.
     doubled = DcEquations(circuit.with_elements({name: with_value(el, 1.0 / (2 * p0) if isinstance(el, Resistor)
                                                                   else 2 * p0)}))
-    dG_dp = (doubled.G - eqs.G) / p0
-    dp_dlnx = -p0 if isinstance(el, Resistor) else p0
+    return (doubled.G - eqs.G) / p0, p0
+
+
+def _residual_slope(circuit, eqs: DcEquations, x, name) -> np.ndarray:
+    """∂F/∂ln x_k = (∂G/∂p_k)·x·(dp_k/d ln x_k)."""
+    dG_dp, p0 = dc_pattern(circuit, eqs, name)
+    dp_dlnx = -p0 if isinstance(circuit.elements[name], Resistor) else p0
     return dG_dp @ x * dp_dlnx
 
 
-def _index(eqs: DcEquations, large) -> int:
+def device_index(eqs: DcEquations, large) -> int:
+    """Where a biased block sits among its kind in ``eqs.devices``."""
     names = eqs.devices.bjt_names if large.kind == "bjt" else eqs.devices.mos_names
     return names.index(large.name)
 
 
 def _device_voltage_slopes(eqs: DcEquations, large, dxe) -> dict:
     """Each junction voltage's slope (V per unit ln x) against every part value."""
-    k, part = _index(eqs, large), _RAW_SLICE[large.kind]
+    k, part = device_index(eqs, large), RAW_SLICE[large.kind]
     # raw() is linear in the unknowns, so it maps their slopes to the voltages' slopes.
     cols = [eqs.devices.raw(dxe[:, j])[part] for j in range(dxe.shape[1])]
-    return {key: np.array([c[i][k] for c in cols]) for i, key in enumerate(_VOLTAGES[large.kind])}
+    return {key: np.array([c[i][k] for c in cols]) for i, key in enumerate(VOLTAGES[large.kind])}
 
 
 def _log_value_slopes(large, volts: dict) -> dict:

@@ -278,6 +278,8 @@ def _with_yield(row: Suggestion, doc, targets: Targets, samples: int) -> Suggest
 
 
 def _miss(check) -> str:
+    if check.exact is None:
+        return f"{TARGET_LABELS[check.key]} (no −3 dB band: the gain never comes within 3 dB of |A_m|)"
     if check.key == "gain":
         return f"the gain by {abs(check.margin):.2f} dB"
     pct = 100 * abs(check.margin)
@@ -294,5 +296,5 @@ def verdict_line(effect: Effect) -> str:
     if effect.problem:
         return f"cannot be analysed: {effect.problem}"
     missed = [_miss(c) for c in effect.checks if not c.passed]
-    missed += [f"keeps {d.text}, out of its amplifying region" for d in effect.devices if not d.ok]
+    missed += [f"leaves {d.text} (out of its amplifying region)" for d in effect.devices if not d.ok]
     return "meets every target" if not missed else "misses " + ", ".join(missed)

@@ -253,6 +253,9 @@ def check_targets(targets: Targets, analysis, gain_unit: str = "V/V") -> tuple:
     tuple of TargetCheck
         One per target that is set, in the order f_H, f_L, gain.
     """
+    short = getattr(analysis, "shortfall_db", None)
+    if short is not None:
+        return _no_band_checks(targets, analysis, gain_unit, short)
     out = []
     if targets.f_high_min is not None:
         out.append(_corner_check("f_high_min", "f_H", "≥", targets.f_high_min,
@@ -275,6 +278,27 @@ def check_targets(targets: Targets, analysis, gain_unit: str = "V/V") -> tuple:
         else:
             text = f"|A_m| = 0: no signal reaches the output; {target_text} failed"
         out.append(TargetCheck("gain", target_text, g, g, passed, margin, passed, text))
+    return tuple(out)
+
+
+def _no_band_checks(targets: Targets, analysis, gain_unit: str, short_db: float) -> tuple:
+    """Every target fails where the exact gain never comes within 3 dB of |A_m|: the stage
+    has no −3 dB band, and the gain it delivers is not its mid-band gain."""
+    why = f"the exact gain never comes within 3 dB of |A_m| (it peaks {short_db:.1f} dB below): no −3 dB band"
+    out = []
+    if targets.f_high_min is not None:
+        text = f"f_H ≥ {format_value(targets.f_high_min, 'Hz')}"
+        out.append(TargetCheck("f_high_min", text, None, analysis.f_high_estimate, False, -1.0, None,
+                               f"{why}; {text} failed"))
+    if targets.f_low_max is not None:
+        text = f"f_L ≤ {format_value(targets.f_low_max, 'Hz')}"
+        out.append(TargetCheck("f_low_max", text, None, analysis.f_low_estimate, False, -1.0, None,
+                               f"{why}; {text} failed"))
+    if targets.gain is not None:
+        g = abs(float(analysis.midband_gain)) * 10 ** (-short_db / 20)
+        text = f"|A_m| = {format_value(targets.gain, gain_unit)} {targets.gain_window_text}"
+        out.append(TargetCheck("gain", text, g, g, False, -short_db, False,
+                               f"{why}; the stage peaks at {format_value(g, gain_unit)}; {text} failed"))
     return tuple(out)
 
 

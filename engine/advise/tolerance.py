@@ -32,6 +32,7 @@ from ..solve.analysis import analyze
 from ..core.errors import Cancelled, CircuitError
 from ..design.netlist import design_to_circuit
 from ..design.sourcing import tolerance_fraction
+from .biasbatch import BiasBatch
 from .partvalues import PartValue, coefficients_for, parametric_system, part_values
 from .targets import Targets, parse_targets
 from ..core.values import format_value
@@ -70,6 +71,8 @@ DEFAULT_TOLERANCES = MappingProxyType({
 Controlled sources placed by the designer are ideal model elements: they default to 0."""
 
 IDEAL_SOURCE = "0 %: an ideal model element, exact unless given a tolerance"
+BIASED_GM_SOURCE = ("no spread of its own: g_m follows the bias, which is solved again for every sample "
+                    "from that sample's resistor values")
 
 CHUNK = 2000
 """Samples solved per batch: large enough to amortise Python overhead, small enough that
@@ -124,6 +127,8 @@ def default_tolerances(circuit, overrides: Mapping[str, float] | None = None) ->
     out = []
     for pv in part_values(circuit):
         tol, source = DEFAULT_TOLERANCES.get((pv.kind, pv.key), (0.0, IDEAL_SOURCE))
+        if pv.part in circuit.large_blocks and pv.key == "gm":
+            tol, source = 0.0, BIASED_GM_SOURCE
         if pv.element in overrides:
             tol, source = float(overrides[pv.element]), "set for this part"
         if not (0 <= tol < 1):
@@ -244,24 +249,46 @@ def _refine(batch: _Batch, idx, xa, ya, xb, yb) -> np.ndarray:
 
 
 class _Evaluator:
-    """Exact corners and gain of any batch of value multipliers of one design."""
+    """Exact corners and gain of any batch of value multipliers of one design.
+
+    Where blocks are biased from the circuit, each row's bias is solved again first
+    (:class:`~bandsketch.engine.advise.biasbatch.BiasBatch`), so a bias resistor's factor
+    moves g_m, r_π ... as it would on the bench; a row whose bias does not settle, or that
+    pushes a transistor out of its amplifying region, gets NaN figures (a failure).
+    """
 
     def __init__(self, circuit, analysis, tolerances):
         self.circuit = circuit
         self.tolerances = tuple(tolerances)
         names = [t.value.element for t in self.tolerances]
-        self.full = parametric_system(circuit, names)
-        self.mid = parametric_system(circuit, names, analysis.midband_states())
+        self.bias = None
+        if circuit.large_blocks and circuit.operating_point is not None:
+            self.bias = BiasBatch(circuit, names)
+            names += [d for d in self.bias.derived if d not in names]
+        self.names = tuple(names)
+        self.columns = {n: k for k, n in enumerate(self.names)}
+        self.full = parametric_system(circuit, self.names)
+        self.mid = parametric_system(circuit, self.names, analysis.midband_states())
         self.f_high0 = _positive(analysis.f_high_exact)
         self.f_low0 = _positive(analysis.f_low_exact)
 
     def __call__(self, factors) -> tuple:
         """(f_H, f_L, A_m) for each row of ``factors``; NaN where a sample has no corner."""
-        batch = _Batch(self.full, self.mid, self.circuit, factors)
-        m = len(factors)
+        f = np.asarray(factors, dtype=float)
+        m = len(f)
+        ok = np.ones(m, dtype=bool)
+        if len(self.names) > f.shape[1]:
+            f = np.hstack([f, np.ones((m, len(self.names) - f.shape[1]))])
+        if self.bias is not None:
+            f, ok = self.bias.apply(f, self.columns)
+            f[~ok] = 1.0
+        batch = _Batch(self.full, self.mid, self.circuit, f)
         fh = _corner(batch, self.f_high0, True) if self.f_high0 else np.full(m, np.nan)
         fl = _corner(batch, self.f_low0, False) if self.f_low0 else np.full(m, np.nan)
-        return fh, fl, batch.gain
+        gain = batch.gain.copy()
+        for v in (fh, fl, gain):
+            v[~ok] = np.nan
+        return fh, fl, gain
 
 
 def exact_figures(circuit, analysis, elements, factors) -> tuple:

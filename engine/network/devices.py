@@ -13,8 +13,10 @@ from dataclasses import dataclass
 from types import MappingProxyType
 from typing import Callable
 
+import numpy as np
+
 from .elements import VCCS, VCVS, Capacitor, Resistor
-from .largesignal import BjtParams, MosParams, bjt_currents, bjt_region, mos_current
+from .largesignal import JUNCTION_ON, BjtParams, MosParams, bjt_currents, mos_current
 from ..core.errors import BadValueError
 from ..core.values import parse_value
 
@@ -224,32 +226,44 @@ class LargeBjt:
         g_m = ∂I_C/∂V_BE and 1/r_o = ∂I_C/∂V_CE at constant V_CE and V_BE, 1/r_π = ∂I_B/∂V_BE;
         C_π = g_m/(2π f_T) − C_μ or τ_F·g_m; C_μ = C_jc0/(1 + V_CB/φ_C)^m (held at its value
         at V_CB = −φ_C/2 on a forward-biased collector junction, where the law has no meaning).
+        Values in S, Ω, F and V; arrays of voltages give arrays of values (one per sample).
+
+        Raises
+        ------
+        BadValueError
+            f_T is too high for C_μ at a single operating point (C_π would be negative); an
+            array of points gets NaN there instead.
         """
-        p, vbe, vbc = self.params, volts["vbe"], volts["vbc"]
-        ic, _, dc_be, dc_bc, db_be, db_bc = (float(a) for a in bjt_currents(
-            vbe, vbc, p.isat, p.beta, p.beta_r, p.va, p.vt))
+        p = self.params
+        vbe, vbc = np.asarray(volts["vbe"], dtype=float), np.asarray(volts["vbc"], dtype=float)
+        ic, _, dc_be, dc_bc, db_be, db_bc = bjt_currents(vbe, vbc, p.isat, p.beta, p.beta_r, p.va, p.vt)
         gm = dc_be + dc_bc
         go = -dc_bc
-        gpi = db_be + db_bc
-        out = {"gm": gm, "rpi": 1.0 / gpi, "ro": 1.0 / go if go > 1e-12 * abs(gm) else math.inf,
-               "rb": self.rb, "ccs": self.ccs, "vt": p.vt}
+        with np.errstate(divide="ignore"):
+            ro = np.where(go > 1e-12 * np.abs(gm), 1.0 / np.where(go > 0, go, 1.0), math.inf)
+        out = {"gm": gm, "rpi": 1.0 / (db_be + db_bc), "ro": ro,
+               "rb": np.full(gm.shape, self.rb), "ccs": np.full(gm.shape, self.ccs), "vt": np.full(gm.shape, p.vt)}
         if self.cjc0:
-            vcb = max(-vbc, -0.5 * self.vjc)
-            out["cmu"] = self.cjc0 / (1.0 + vcb / self.vjc) ** self.mjc
+            out["cmu"] = self.cjc0 / (1.0 + np.maximum(-vbc, -0.5 * self.vjc) / self.vjc) ** self.mjc
         else:
-            out["cmu"] = self.cmu
-        if self.ft and bjt_region(vbe, vbc) != "forward active":
+            out["cmu"] = np.full(gm.shape, self.cmu)
+        if self.ft:
             # f_T describes the active region; out of it the diffusion charge C_π stands for is
             # g_m·τ_F with τ_F = 1/(2π f_T) (the region warning says the values are not an amplifier's).
-            out["cpi"] = gm / (2 * math.pi * self.ft)
-        elif self.ft:
-            out["cpi"] = _need_positive_result(
-                name, "ft", gm / (2 * math.pi * self.ft) - out["cmu"],
-                f"f_T = {self.ft:g} Hz is too high for C_μ = {out['cmu']:g} F at I_C = {ic:g} A "
-                "(C_π would be negative); lower f_T or C_μ")
+            active = (vbe > JUNCTION_ON) & ~(vbc > JUNCTION_ON)
+            cpi = gm / (2 * math.pi * self.ft) - np.where(active, out["cmu"], 0.0)
+            out["cpi"] = np.where(cpi > 0, cpi, math.nan)
         else:
             out["cpi"] = (self.tf or 0.0) * gm
-        return out
+        if gm.ndim:
+            return out
+        values = {key: float(v) for key, v in out.items()}
+        if self.ft:
+            _need_positive_result(
+                name, "ft", values["cpi"],
+                    f"f_T = {self.ft:g} Hz is too high for C_μ = {values['cmu']:g} F at I_C = {float(ic):g} A "
+                "(C_π would be negative); lower f_T or C_μ")
+        return values
 
 
 def _bjt_large(name: str, given: dict) -> LargeBjt:
@@ -282,11 +296,14 @@ class LargeMos:
         return {"vgs": self.params.vth + 0.2, "vds": 1.0, "vbs": 0.0}
 
     def small_signal(self, name: str, volts: dict) -> dict:
-        """g_m, g_mb, r_o = 1/(∂I_D/∂V_DS) at ``volts`` (``vgs``, ``vds``, ``vbs`` in V) and the capacitances."""
+        """g_m, g_mb (S), r_o = 1/(∂I_D/∂V_DS) (Ω) at ``volts`` (``vgs``, ``vds``, ``vbs`` in V)
+        and the capacitances (F); arrays of voltages give arrays of values (one per sample)."""
         p = self.params
-        _, gm, gds, gmb, _ = (float(a) for a in mos_current(
-            volts["vgs"], volts["vds"], volts["vbs"], p.vth, p.kp, p.lam, p.gamma, p.phi))
-        return {"gm": gm, "gmb": gmb, "ro": 1.0 / gds if gds > 0 else math.inf, **self.caps}
+        _, gm, gds, gmb, _ = mos_current(volts["vgs"], volts["vds"], volts["vbs"], p.vth, p.kp, p.lam, p.gamma, p.phi)
+        with np.errstate(divide="ignore"):
+            ro = np.where(gds > 0, 1.0 / np.where(gds > 0, gds, 1.0), math.inf)
+        out = {"gm": gm, "gmb": gmb, "ro": ro, **{k: np.full(gm.shape, c) for k, c in self.caps.items()}}
+        return out if gm.ndim else {key: float(v) for key, v in out.items()}
 
 
 def _mosfet_large(name: str, given: dict) -> LargeMos:

@@ -20,8 +20,8 @@ import numpy as np
 from ..core.band import Band
 from .bands import (IN_BAND_DB, NEUTRAL_DB, BandTest, GroupTest, band_tests, fixed_elements, group_tests,
                     parallel_capacitance, parallel_groups)
-from .corners import (brackets, corners_around, first_span, midband_guess, points_per_decade, second_order_corner,
-                      wide_sweep)
+from .corners import (brackets, corners_around, first_span, midband_guess, points_per_decade, refine_peak,
+                      second_order_corner, wide_sweep)
 from ..network.elements import Capacitor, Inductor, ISource, VSource
 from ..core.errors import CircuitError
 from .dcop import OperatingPoint, solved
@@ -219,6 +219,10 @@ class Analysis:
         Estimate / exact (first order).
     dominant_high, dominant_low : str or None
         The element with the largest share of each band.
+    shortfall_db : float or None
+        dB by which the exact gain's peak stays below |A_m| when it never comes within 3 dB of
+        it (the bands overlap: there is no −3 dB band, and both exact corners are None); None
+        when the stage reaches its mid-band gain.
     sweep_frequencies : numpy.ndarray
         Hz, the exact sweep the corners were found on (read-only).
     sweep_response : numpy.ndarray
@@ -248,6 +252,7 @@ class Analysis:
     f_low_ratio: float | None
     dominant_high: str | None
     dominant_low: str | None
+    shortfall_db: float | None
     sweep_frequencies: np.ndarray = field(repr=False)
     sweep_response: np.ndarray = field(repr=False)
     _warnings: tuple[str, ...] = field(repr=False)
@@ -687,10 +692,14 @@ class ExactCorners:
     ----------
     f_low, f_high : float or None
         Hz; None where the exact gain never falls 3 dB on that side.
+    shortfall_db : float or None
+        dB by which the exact peak stays below |A_m| when it never reaches |A_m|/√2 (the
+        corners are then both None); None otherwise.
     """
 
     f_low: float | None
     f_high: float | None
+    shortfall_db: float | None = None
 
 
 def prepare(c, bands=None, per_decade: int | None = None) -> Stage:
@@ -847,8 +856,18 @@ def exact_corners(stage: Stage, bands: Classification) -> ExactCorners:
     ExactCorners
     """
     level = abs(bands.midband_gain) / math.sqrt(2)
-    return ExactCorners(*corners_around(stage.system, stage.sweep_frequencies, stage.sweep_response,
-                                        bands.midband_frequency, level))
+    f, H = stage.sweep_frequencies, stage.sweep_response
+    low, high = corners_around(stage.system, f, H, bands.midband_frequency, level)
+    if low is None and high is None:
+        peak = float(np.max(np.abs(H)))
+        if peak < level:
+            # The capacitors of the two bands load each other (a coupling capacitor comparable
+            # with the device capacitance it feeds): the stage never delivers its mid-band gain.
+            peak = max(peak, abs(frequency_response(stage.system, [refine_peak(stage.system, f, H,
+                                                                                 bands.midband_frequency)])[0]))
+        if peak < level:
+            return ExactCorners(None, None, 20 * math.log10(abs(bands.midband_gain) / peak) if peak > 0 else math.inf)
+    return ExactCorners(low, high)
 
 
 def _results(stage, bands, est):
@@ -975,7 +994,7 @@ def analyze(c, bands=None, *, per_decade: int | None = None, full_matrix_limit: 
         f_high_exact=exact.f_high, f_low_exact=exact.f_low,
         f_high_ratio=_ratio(est.f_high, exact.f_high), f_low_ratio=_ratio(est.f_low, exact.f_low),
         dominant_high=_dominant(every, Band.HIGH), dominant_low=_dominant(every, Band.LOW),
-        sweep_frequencies=stage.sweep_frequencies, sweep_response=stage.sweep_response,
+        shortfall_db=exact.shortfall_db, sweep_frequencies=stage.sweep_frequencies, sweep_response=stage.sweep_response,
         _warnings=tuple(notes), sources=tuple(el.name for el in c.elements.values() if isinstance(el, (VSource, ISource))),
         _system=stage.system, _zeros=known_zeros, operating_point=stage.operating_point)
 
@@ -1068,7 +1087,12 @@ def _high_band_notes(est, exact, known_zeros, too_many, limit) -> list[str]:
     if too_many:
         notes.append(f"The high band has more than {limit} elements: b2, the second-order estimate and the exact "
                      "high-band time constants were not computed.")
-    if exact.f_high is None and est.f_high is not None:
+    if exact.shortfall_db is not None:
+        notes.append(f"The exact gain never comes within 3 dB of the mid-band gain: it peaks {exact.shortfall_db:.1f} dB "
+                     "below it, so there is no −3 dB band and neither corner exists. The low- and high-band "
+                     "capacitors load each other (a coupling capacitor no larger than the capacitance it feeds); "
+                     "the estimates do not describe this stage.")
+    elif exact.f_high is None and est.f_high is not None:
         notes.append("The exact gain never falls 3 dB above the mid band: there is no upper corner, only the estimate.")
     return notes
 

@@ -185,10 +185,15 @@ class _Devices:
                 self.vth + 0.2, np.ones_like(self.vth), np.zeros_like(self.vth))
 
     def raw(self, xe):
-        """Device voltages (own polarity) from the unknowns ``xe`` (ground appended)."""
+        """Device voltages (own polarity) from the unknowns ``xe`` (ground appended; a leading
+        axis of samples is kept)."""
         s, m = self.bs, self.msign
-        return (s * (xe[self.bb] - xe[self.be]), s * (xe[self.bb] - xe[self.bc]),
-                m * (xe[self.mg] - xe[self.ms]), m * (xe[self.md] - xe[self.ms]), m * (xe[self.mb] - xe[self.ms]))
+
+        def at(i):
+            return xe[..., i]
+
+        return (s * (at(self.bb) - at(self.be)), s * (at(self.bb) - at(self.bc)),
+                m * (at(self.mg) - at(self.ms)), m * (at(self.md) - at(self.ms)), m * (at(self.mb) - at(self.ms)))
 
     def limited(self, raw, old):
         vbe, vbc, vgs, vds, vbs = raw
@@ -200,40 +205,43 @@ class _Devices:
 
     def stamp(self, volts, size):
         """At device voltages ``volts``: the currents leaving each node into the devices, their
-        Jacobian J in node voltages, and the constant i_eq of the linearisation f ≈ i_eq + J·x."""
+        Jacobian J in node voltages, and the constant i_eq of the linearisation f ≈ i_eq + J·x.
+        A leading axis of samples in ``volts`` gives one of each per sample."""
         vbe, vbc, vgs, vds, vbs = volts
-        f, i_eq = np.zeros(size), np.zeros(size)
-        J = np.zeros((size, size))
+        batch = np.shape(vbe)[:-1]
+        f, i_eq = np.zeros(batch + (size,)), np.zeros(batch + (size,))
+        J = np.zeros(batch + (size, size))
+        E = Ellipsis
         if self.bjt_names:
             ic, ib, c_be, c_bc, b_be, b_bc = bjt_currents(vbe, vbc, self.isat, self.beta, self.beta_r, self.va, self.vt)
             s = self.bs
             # Terminal currents into the device: s·I_C at the collector, s·I_B at the base.
-            np.add.at(f, self.bc, s * ic)
-            np.add.at(f, self.bb, s * ib)
-            np.add.at(f, self.be, -s * (ic + ib))
+            np.add.at(f, (E, self.bc), s * ic)
+            np.add.at(f, (E, self.bb), s * ib)
+            np.add.at(f, (E, self.be), -s * (ic + ib))
             eq_c = s * (ic - c_be * vbe - c_bc * vbc)
             eq_b = s * (ib - b_be * vbe - b_bc * vbc)
-            np.add.at(i_eq, self.bc, eq_c)
-            np.add.at(i_eq, self.bb, eq_b)
-            np.add.at(i_eq, self.be, -(eq_c + eq_b))
+            np.add.at(i_eq, (E, self.bc), eq_c)
+            np.add.at(i_eq, (E, self.bb), eq_b)
+            np.add.at(i_eq, (E, self.be), -(eq_c + eq_b))
             # d(s·I)/dv_node with v_be = s(v_b − v_e), v_bc = s(v_b − v_c): the signs cancel.
             for row, d_be, d_bc in ((self.bc, c_be, c_bc), (self.bb, b_be, b_bc), (self.be, -(c_be + b_be), -(c_bc + b_bc))):
-                np.add.at(J, (row, self.bb), d_be + d_bc)
-                np.add.at(J, (row, self.be), -d_be)
-                np.add.at(J, (row, self.bc), -d_bc)
+                np.add.at(J, (E, row, self.bb), d_be + d_bc)
+                np.add.at(J, (E, row, self.be), -d_be)
+                np.add.at(J, (E, row, self.bc), -d_bc)
         if self.mos_names:
             i_d, gm, gds, gmb, _ = mos_current(vgs, vds, vbs, self.vth, self.kp, self.lam, self.gamma, self.phi)
             m = self.msign
-            np.add.at(f, self.md, m * i_d)
-            np.add.at(f, self.ms, -m * i_d)
+            np.add.at(f, (E, self.md), m * i_d)
+            np.add.at(f, (E, self.ms), -m * i_d)
             eq_d = m * (i_d - gm * vgs - gds * vds - gmb * vbs)
-            np.add.at(i_eq, self.md, eq_d)
-            np.add.at(i_eq, self.ms, -eq_d)
+            np.add.at(i_eq, (E, self.md), eq_d)
+            np.add.at(i_eq, (E, self.ms), -eq_d)
             for row, k in ((self.md, 1.0), (self.ms, -1.0)):
-                np.add.at(J, (row, self.mg), k * gm)
-                np.add.at(J, (row, self.md), k * gds)
-                np.add.at(J, (row, self.mb), k * gmb)
-                np.add.at(J, (row, self.ms), -k * (gm + gds + gmb))
+                np.add.at(J, (E, row, self.mg), k * gm)
+                np.add.at(J, (E, row, self.md), k * gds)
+                np.add.at(J, (E, row, self.mb), k * gmb)
+                np.add.at(J, (E, row, self.ms), -k * (gm + gds + gmb))
         return f, J, i_eq
 
 
@@ -303,6 +311,58 @@ class DcEquations:
                     and self.accepted(x, scale_b, gmin):
                 return x, volts, it, True, swing
         return x, volts, limit, False, swing
+
+    def solve_batch(self, G, x0, limit: int = MAX_NEWTON):
+        """Newton–Raphson for many variants of these equations at once, each from ``x0``.
+
+        Parameters
+        ----------
+        G : numpy.ndarray
+            (m, n, n) the linear part of each variant (its resistors changed, say); the
+            devices and sources are these equations' own.
+        x0 : numpy.ndarray
+            (n,) the start of every variant: the solved point of the nominal network, so a
+            variant within its tolerances settles in a few steps.
+        limit : int
+            Newton steps before a variant is given up.
+
+        Returns
+        -------
+        (numpy.ndarray, numpy.ndarray)
+            x, (m, n) node voltages (V) and branch currents (A), and whether each variant's
+            current sums were met (:data:`ABS_TOL`, :data:`REL_TOL`); an unsettled variant's
+            row is NaN.
+        """
+        m, dev = G.shape[0], self.devices
+        x = np.broadcast_to(np.asarray(x0, dtype=float), (m, self.n)).copy()
+        volts = dev.raw(np.concatenate([x, np.zeros((m, 1))], axis=1))
+        todo = np.arange(m)
+        done = np.zeros(m, dtype=bool)
+        for _ in range(limit):
+            if todo.size == 0:
+                break
+            xe = np.concatenate([x[todo], np.zeros((todo.size, 1))], axis=1)
+            limited = dev.limited(dev.raw(xe), tuple(v[todo] for v in volts))
+            _, J, i_eq = dev.stamp(limited, self.n + 1)
+            A = G[todo] + J[:, :-1, :-1]
+            try:
+                new = np.linalg.solve(A, (self.b - i_eq[:, :-1])[..., None])[..., 0]
+            except np.linalg.LinAlgError:
+                break
+            swing = new - x[todo]
+            x[todo] = new
+            for v, lv in zip(volts, limited):
+                v[todo] = lv
+            xe = np.concatenate([new, np.zeros((todo.size, 1))], axis=1)
+            f, _, _ = dev.stamp(dev.raw(xe), self.n + 1)
+            r = np.einsum("mij,mj->mi", G[todo], new) + f[:, :-1] - self.b
+            size = np.einsum("mij,mj->mi", np.abs(G[todo]), np.abs(new)) + np.abs(f[:, :-1]) + np.abs(self.b)
+            settled = np.all(np.abs(swing) <= SETTLED * (1.0 + np.abs(new)), axis=1) \
+                & np.all(np.abs(r) <= ABS_TOL + REL_TOL * size, axis=1) & np.all(np.isfinite(new), axis=1)
+            done[todo[settled]] = True
+            todo = todo[~settled]
+        x[~done] = np.nan
+        return x, done
 
 
 def operating_point(circuit) -> OperatingPoint:

@@ -96,9 +96,9 @@ def test_done_when_suggest_apply_pass_undo(panel, window):
     # best standard-value change that meets all three applied in one click (with its yield
     # shown), the verdict turning to pass, the previous curve kept on the Bode plot until
     # dismissed, and one undo step taking it all back.
-    panel.set_target("f_high_min", "250k")
-    panel.set_target("f_low_max", "50")
-    panel.set_target("gain", "54 dB")
+    panel.set_target("f_high_min", "150k")
+    panel.set_target("f_low_max", "40")
+    panel.set_target("gain", "46 dB")
     panel.settle()
     targets = parse_targets(panel.doc.targets)
     assert not meets(targets, *_figures(panel.doc))["f_high_min"]

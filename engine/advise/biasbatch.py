@@ -1,0 +1,111 @@
+"""The bias of many variants of one design solved at once, for the spread and the search.
+
+A tolerance sample or a candidate value of a bias resistor moves the operating point, so
+its small-signal values are not the nominal ones. :class:`BiasBatch` solves the DC
+equations of every variant together (Newton–Raphson from the nominal point, one batched
+linear solve a step) and turns each variant's point into factors on the derived
+small-signal values (g_m, r_π, r_o, C_π ...), which the batched AC evaluator then applies
+like any other value's factor.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from ..network.elements import Resistor
+from ..network.largesignal import JUNCTION_ON, mos_current
+from ..solve.dcop import DcEquations
+from .biasslopes import RAW_SLICE, VOLTAGES, dc_pattern, device_index, unknowns
+from .partvalues import value_of
+
+class BiasBatch:
+    """Re-solves the bias of a design for rows of value factors.
+
+    Parameters
+    ----------
+    circuit : bandsketch.engine.network.circuit.Circuit
+        A circuit with blocks biased from it and its operating point solved.
+    names : sequence of str
+        The element names whose factors the rows hold (the spread's or the search's).
+
+    Attributes
+    ----------
+    derived : tuple of str
+        Element names of the derived small-signal values it gives factors for.
+    """
+
+    def __init__(self, circuit, names) -> None:
+        self._circuit = circuit
+        self._eqs = DcEquations(circuit)
+        self._x0 = unknowns(self._eqs, circuit.operating_point)
+        dc = {el.name for el in circuit.dc_elements()}
+        self._names = tuple(names)
+        self._dc_cols = [k for k, n in enumerate(self._names) if n in dc]
+        patterns = [dc_pattern(circuit, self._eqs, self._names[k]) for k in self._dc_cols]
+        self._patterns = np.array([p for p, _ in patterns]).reshape(len(patterns), self._eqs.n, self._eqs.n)
+        self._p0 = np.array([p0 for _, p0 in patterns])
+        self._inverse = np.array([isinstance(circuit.elements[self._names[k]], Resistor) for k in self._dc_cols])
+        derived = []
+        for large in circuit.large_blocks.values():
+            for key in large.model.small_signal(large.name, _point_volts(self._eqs, large, self._x0)):
+                name = f"{large.name}.{key}"
+                if name in circuit.elements and name not in dc:
+                    derived.append(name)
+        self.derived = tuple(derived)
+
+    def apply(self, factors: np.ndarray, columns) -> tuple:
+        """Factors on the derived values for each row, from its own solved bias.
+
+        Parameters
+        ----------
+        factors : numpy.ndarray
+            (m, len(names)) value multipliers, in the order of ``names``.
+        columns : Mapping[str, int]
+            Element name -> its column in the returned factors (every derived value has one).
+
+        Returns
+        -------
+        (numpy.ndarray, numpy.ndarray)
+            The factors with each derived value's column multiplied by (its value at the row's
+            bias) / (its nominal value), and a (m,) mask of the rows whose bias settled with
+            every transistor in its amplifying region (the others are not an amplifier as
+            drawn: their figures should not count).
+        """
+        f = np.array(factors, dtype=float)
+        m = f.shape[0]
+        if self._dc_cols:
+            scale = f[:, self._dc_cols]
+            p = self._p0 * np.where(self._inverse, 1.0 / scale, scale)
+            G = self._eqs.G + np.einsum("mk,kij->mij", p - self._p0, self._patterns)
+        else:
+            G = np.broadcast_to(self._eqs.G, (m, self._eqs.n, self._eqs.n))
+        x, ok = self._eqs.solve_batch(G, self._x0)
+        xe = np.concatenate([np.where(ok[:, None], x, self._x0), np.zeros((m, 1))], axis=1)
+        raw = self._eqs.devices.raw(xe)
+        for large in self._circuit.large_blocks.values():
+            k = device_index(self._eqs, large)
+            volts = {key: v[:, k] for key, v in zip(VOLTAGES[large.kind], raw[RAW_SLICE[large.kind]])}
+            ok &= _in_region(large, volts)
+            values = large.model.small_signal(large.name, volts)
+            for key, y in values.items():
+                name = f"{large.name}.{key}"
+                if name in columns and name in self.derived:
+                    f[:, columns[name]] *= y / value_of(self._circuit.elements[name])
+        return f, ok & np.all(np.isfinite(f), axis=1)
+
+
+def _point_volts(eqs: DcEquations, large, x) -> dict:
+    raw = eqs.devices.raw(np.append(x, 0.0))
+    k = device_index(eqs, large)
+    return {key: float(v[k]) for key, v in zip(VOLTAGES[large.kind], raw[RAW_SLICE[large.kind]])}
+
+
+def _in_region(large, volts) -> np.ndarray:
+    """Per row, whether the device is forward active (BJT) or saturated (MOSFET), by the
+    rules of :func:`~bandsketch.engine.network.largesignal.bjt_region` and ``mos_region``."""
+    if large.kind == "bjt":
+        return (volts["vbe"] > JUNCTION_ON) & ~(volts["vbc"] > JUNCTION_ON)
+    p = large.model.params
+    *_, vth = mos_current(volts["vgs"], volts["vds"], volts["vbs"], p.vth, p.kp, p.lam, p.gamma, p.phi)
+    vov = volts["vgs"] - vth
+    return (vov > 0) & (np.abs(volts["vds"]) >= vov)
