@@ -43,6 +43,7 @@ _SUGGEST_COLUMNS = (
     ("|A_m|", "Mid-band gain with the change"), ("Bias", "Each transistor's region, when biased from the sheet"),
     ("Yield", "Share of the tolerance spread (1000 samples) meeting every target, for rows that meet them"),
     ("Verdict", "Against every target; hover for each target's margin"))
+BIAS_COLUMN = [title for title, _ in _SUGGEST_COLUMNS].index("Bias")
 
 
 def _hz(f) -> str:
@@ -429,6 +430,13 @@ class AdvisorPanel(QWidget):
                 if col == len(cells) - 1:
                     item.setForeground(QColor(good if s.meets_all else bad))
                     item.setToolTip("\n".join(c.text for c in e.checks))
+                if col == BIAS_COLUMN and e.out_of_region:
+                    # A change that saturates or cuts off a transistor is no amplifier: say so where
+                    # the eye lands, not only in the verdict.
+                    item.setText("⚠ " + text)
+                    item.setForeground(QColor(bad))
+                    item.setToolTip(f"{', '.join(e.out_of_region)} out of the amplifying region with this change: "
+                                    "its small-signal values no longer describe an amplifier.")
                 if len(s.changes) > 1:
                     font = item.font()
                     font.setBold(True)

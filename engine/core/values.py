@@ -254,7 +254,7 @@ def format_value(x: float, unit: str = "", digits: int = 3) -> str:
     str
         E.g. ``"4.7 kΩ"`` for 4700 ohms, ``"2.2 nF"``, ``"4.7k"`` with no
         unit.  Values outside femto to tera, and values in a squared or cubed
-        unit, use exponent form (``"1e-18 F"``, ``"4.77e-14 s²"``); infinity is ``"∞ Ω"`` and NaN is ``"nan"``.
+        unit, use exponent form (``"1e-18 F"``, ``"4.77e-14 s²"``; ``"19.6 mA/V²"`` keeps its prefix); infinity is ``"∞ Ω"`` and NaN is ``"nan"``.
 
     Raises
     ------
@@ -282,8 +282,10 @@ def format_value(x: float, unit: str = "", digits: int = 3) -> str:
     significant = mantissa.replace(".", "")
     engineering = 3 * math.floor(exponent / 3)
     # A prefix binds to the unit before its power (1 fs² is 1e-30 s²), which few readers
-    # expect, so a squared or cubed unit is written with an exponent instead.
-    prefix = None if unit[-1:] in ("²", "³") else _PREFIX_AT.get(engineering)
+    # expect, so a squared or cubed unit is written with an exponent instead; a power under a
+    # slash is not the prefixed unit's (19.6 mA/V² reads as meant).
+    powered = unit[-1:] in ("²", "³") and "/" not in unit
+    prefix = None if powered else _PREFIX_AT.get(engineering)
     if prefix is None:
         return f"{sign}{_strip_zeros(mantissa)}e{exponent:+03d}{space}{unit}"
     point = exponent - engineering + 1

@@ -14,6 +14,8 @@ from ..design.parts import KINDS
 
 REGION_OK = {"bjt": "forward active", "mosfet": "saturation"}
 """The region an amplifying transistor is meant to be in."""
+QUIET_RAIL_A = 1e-9
+"""A rail supplying less than this (A) gets no current note on the sheet."""
 
 
 @dataclass(frozen=True)
@@ -86,7 +88,9 @@ def bias_marks(doc, netlist, point) -> BiasMarks:
     for part in doc.parts.values():
         # A rail's current is written once, beside the first of its symbols.
         net = KINDS[part.kind].joins(part.params) if part.kind == "rail" else None
-        if net in point.branch_currents and not any(n.lines[0].endswith(f"({net})") for n in devices.values()):
+        # A rail that supplies no current (a gate bias rail) has nothing to say on the sheet.
+        if net in point.branch_currents and abs(point.branch_currents[net]) >= QUIET_RAIL_A \
+                and not any(n.lines[0].endswith(f"({net})") for n in devices.values()):
             supplied = format_value(-point.branch_currents[net], "A")
             devices[part.name] = DeviceNote((f"supplies {supplied} ({net})",), beside=True)
     return BiasMarks(tuple(nodes), MappingProxyType(devices))

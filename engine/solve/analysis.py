@@ -714,13 +714,16 @@ def prepare(c, bands=None, per_decade: int | None = None) -> Stage:
         Sweep points per decade, as for :func:`analyze`.
     """
     validate(c)
-    # Blocks biased from the circuit take their small-signal values from the DC point, so it is
-    # solved before the network is assembled.
-    point = solved(c) if c.large_blocks else None
     reactive = tuple(el for el in c.elements.values() if isinstance(el, (Capacitor, Inductor)))
     pins = _check_pins(bands, {el.name for el in reactive})
     system = build_system(c)
+    # A floating node is named first: the bias solve would only fail to settle there.
     check_dc_solvable(c, system)
+    point = None
+    if c.large_blocks:
+        # Blocks biased from the circuit take their small-signal values from the DC point.
+        point = solved(c)
+        system = build_system(c)
     freqs, H = wide_sweep(system, first_span(c), per_decade or points_per_decade(system))
     freqs.flags.writeable = False
     H.flags.writeable = False

@@ -23,6 +23,7 @@ from ..core.values import format_value
 from ..network.elements import ISource, Rail, VSource
 from ..network.largesignal import bjt_currents, bjt_region, limit_junction, mos_current, mos_region
 from ..network.validate import validate
+from .floating import check_dc_solvable
 from .mna import build_system
 
 ABS_TOL = 1e-12
@@ -388,6 +389,8 @@ def operating_point(circuit) -> OperatingPoint:
         that swings most.
     """
     validate(circuit)
+    # A floating node is named first: Newton–Raphson would only fail to settle there.
+    check_dc_solvable(circuit, build_system(circuit))
     return solved(circuit)
 
 

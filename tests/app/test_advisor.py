@@ -11,6 +11,7 @@ import pytest
 from bandsketch.engine import analyze
 from bandsketch.engine.design.designfile import load_design
 from bandsketch.engine.design.netlist import design_to_circuit
+from bandsketch.app.advisor.panel import BIAS_COLUMN
 from bandsketch.engine.advise.targets import meets, parse_targets
 
 SAMPLES = Path(__file__).resolve().parents[2] / "sample_designs"
@@ -169,3 +170,20 @@ def test_report_html_and_pdf(panel, tmp_path):
         assert f'<img alt="{alt}" src="data:image/png;base64,' in html
     assert panel.export_report(str(pdf_path)).startswith("Report written")
     assert pdf_path.read_bytes().startswith(b"%PDF")
+
+
+def test_a_suggestion_that_saturates_is_marked(panel, window):
+    # The two-stage sample: raising RC2 far enough saturates Q2; that row's bias cell is marked
+    # and its verdict says so (common practice, no source: a saturated BJT does not amplify).
+    panel.set_target("f_high_min", "150k")
+    panel.set_target("gain", "46 dB")
+    panel.settle()
+    panel.find_suggestions()
+    assert panel.jobs.wait(180000)
+    marked = [i for i, s in enumerate(panel.suggestions) if s.effect.out_of_region]
+    assert marked
+    for i in marked:
+        cell = panel.suggest_table.item(i, BIAS_COLUMN)
+        assert cell.text().startswith("⚠") and "saturated" in cell.text()
+        assert "out of its amplifying region" in panel.suggest_table.item(i, BIAS_COLUMN + 2).text()
+        assert not panel.suggestions[i].meets_all
