@@ -714,16 +714,17 @@ def prepare(c, bands=None, per_decade: int | None = None) -> Stage:
         Sweep points per decade, as for :func:`analyze`.
     """
     validate(c)
-    reactive = tuple(el for el in c.elements.values() if isinstance(el, (Capacitor, Inductor)))
-    pins = _check_pins(bands, {el.name for el in reactive})
     system = build_system(c)
     # A floating node is named first: the bias solve would only fail to settle there.
     check_dc_solvable(c, system)
     point = None
     if c.large_blocks:
-        # Blocks biased from the circuit take their small-signal values from the DC point.
+        # Blocks biased from the circuit take their small-signal values (C_π among them) from
+        # the DC point, so the network is read again once it is solved.
         point = solved(c)
         system = build_system(c)
+    reactive = tuple(el for el in c.elements.values() if isinstance(el, (Capacitor, Inductor)))
+    pins = _check_pins(bands, {el.name for el in reactive})
     freqs, H = wide_sweep(system, first_span(c), per_decade or points_per_decade(system))
     freqs.flags.writeable = False
     H.flags.writeable = False
