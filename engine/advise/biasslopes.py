@@ -91,7 +91,19 @@ def bias_slopes(circuit, names) -> BiasSlopes | None:
 
 
 def unknowns(eqs: DcEquations, point) -> np.ndarray:
-    """The unknowns x of ``eqs`` (node voltages in V, branch currents in A) at a solved point."""
+    """The unknowns x of ``eqs`` at a solved point.
+
+    Parameters
+    ----------
+    eqs : bandsketch.engine.solve.dcop.DcEquations
+    point : bandsketch.engine.solve.dcop.OperatingPoint
+        A point solved for the same circuit.
+
+    Returns
+    -------
+    numpy.ndarray
+        (n,) node voltages (V) and branch currents (A) in the equations' order.
+    """
     x = np.zeros(eqs.n)
     for node, i in eqs.system.node_index.items():
         x[i] = point.node_voltages[node]
@@ -104,6 +116,19 @@ def dc_pattern(circuit, eqs: DcEquations, name: str) -> tuple:
     """(∂G/∂p, p) of one element in the DC equations, with p its stamp coefficient (1/R ...).
 
     Doubling the coefficient is exact in binary, so the difference is its pattern.
+
+    Parameters
+    ----------
+    circuit : bandsketch.engine.network.circuit.Circuit
+    eqs : bandsketch.engine.solve.dcop.DcEquations
+        The circuit's DC equations.
+    name : str
+        An element of the DC network with a value.
+
+    Returns
+    -------
+    (numpy.ndarray, float)
+        The (n, n) pattern of the coefficient in G, and the coefficient (S for a resistor).
     """
     el = circuit.elements[name]
     p0 = stamp_coefficient(el, value_of(el))
@@ -120,7 +145,18 @@ def _residual_slope(circuit, eqs: DcEquations, x, name) -> np.ndarray:
 
 
 def device_index(eqs: DcEquations, large) -> int:
-    """Where a biased block sits among its kind in ``eqs.devices``."""
+    """Where a biased block sits among its kind in ``eqs.devices``.
+
+    Parameters
+    ----------
+    eqs : bandsketch.engine.solve.dcop.DcEquations
+    large : bandsketch.engine.network.circuit.LargeBlock
+
+    Returns
+    -------
+    int
+        Its index among the BJTs or the MOSFETs.
+    """
     names = eqs.devices.bjt_names if large.kind == "bjt" else eqs.devices.mos_names
     return names.index(large.name)
 

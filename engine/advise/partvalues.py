@@ -108,13 +108,36 @@ def part_values(circuit) -> tuple:
     return tuple(out)
 
 
-def _stamp_coefficient(element, value: float) -> float:
-    """The number an element's stamp is linear in: 1/R for a resistor, the value otherwise."""
+def stamp_coefficient(element, value: float) -> float:
+    """The number an element's stamp is linear in: 1/R for a resistor, the value otherwise.
+
+    Parameters
+    ----------
+    element : Resistor, Capacitor, Inductor or a controlled source
+        The element (its type decides).
+    value : float
+        Its value, SI units (Ω, F, H, S or a gain).
+
+    Returns
+    -------
+    float
+        1/value (S) for a resistor, else the value itself.
+    """
     return 1.0 / value if isinstance(element, Resistor) else float(value)
 
 
 def value_of(element) -> float:
-    """The number an element carries (Ω, F, H, S or a gain), as :func:`part_values` reads it."""
+    """The number an element carries, as :func:`part_values` reads it.
+
+    Parameters
+    ----------
+    element : Resistor, Capacitor, Inductor or a controlled source
+
+    Returns
+    -------
+    float
+        Its value, SI units (Ω, F, H, S or a gain).
+    """
     return float(getattr(element, _VALUE_ATTR[type(element)][0]))
 
 
@@ -208,7 +231,7 @@ def parametric_system(circuit, names, states=None) -> ParametricSystem:
     coefs = np.zeros(k)
     for i, name in enumerate(names):
         el = circuit.elements[name]
-        p0 = _stamp_coefficient(el, getattr(el, _VALUE_ATTR[type(el)][0]))
+        p0 = stamp_coefficient(el, getattr(el, _VALUE_ATTR[type(el)][0]))
         # Doubling is exact in binary, so the difference is the pattern to rounding of the sums.
         p1 = 2.0 * p0 if p0 != 0 else 1.0
         other = build_system(circuit.with_elements({name: with_value(el, _value_for_coefficient(el, p1))}), states)

@@ -98,11 +98,27 @@ def _magnitude(system, f: float) -> float:
     return float(abs(frequency_response(system, [f])[0]))
 
 
-def _refine_peak(system, f: np.ndarray, H: np.ndarray, near: float) -> float:
+def refine_peak(system, f: np.ndarray, H: np.ndarray, near: float) -> float:
     """Hz of the exact maximum of |H| around the sweep sample nearest ``near``'s local peak.
 
     Between the sample's neighbours |H| is searched on log f (bounded Brent), so a narrow
     peak that falls between two samples is found where it is, not where a sample happens to be.
+
+    Parameters
+    ----------
+    system : bandsketch.engine.solve.mna.MnaSystem
+        The full network.
+    f : numpy.ndarray
+        Sweep frequencies, Hz, rising.
+    H : numpy.ndarray
+        The exact response there (gain unit).
+    near : float
+        Hz; the local peak uphill from the sample nearest it is refined.
+
+    Returns
+    -------
+    float
+        Hz of the peak.
     """
     mag = np.abs(H)
     i = int(np.argmin(np.abs(np.log(f / near))))
@@ -122,7 +138,7 @@ def midband_guess(system, f: np.ndarray, H: np.ndarray) -> float:
     """Hz: the geometric centre of the stretch around the peak where |H| stays within 3 dB of it.
 
     When no other sweep sample lies within 3 dB of the peak (a band narrower than the sweep's
-    spacing), the exact peak (:func:`_refine_peak`) is the mid band.
+    spacing), the exact peak (:func:`refine_peak`) is the mid band.
 
     Parameters
     ----------
@@ -142,7 +158,7 @@ def midband_guess(system, f: np.ndarray, H: np.ndarray) -> float:
     while hi < len(mag) - 1 and mag[hi + 1] >= level:
         hi += 1
     if lo == hi:
-        return _refine_peak(system, f, H, float(f[top]))
+        return refine_peak(system, f, H, float(f[top]))
     return math.sqrt(f[lo] * f[hi])
 
 
@@ -244,7 +260,7 @@ def corners_around(system, f: np.ndarray, H: np.ndarray, f_mid: float, level: fl
     """
     start = f_mid
     if _magnitude(system, start) < level:
-        start = _refine_peak(system, f, H, f_mid)
+        start = refine_peak(system, f, H, f_mid)
     if _magnitude(system, start) < level:
         # The exact gain stays below the resistive mid-band gain's −3 dB level around f_mid
         # (the bands overlap): the nearest sweep points above the level are the places to start.
