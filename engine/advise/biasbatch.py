@@ -13,7 +13,7 @@ from __future__ import annotations
 import numpy as np
 
 from ..network.elements import Resistor
-from ..network.largesignal import JUNCTION_ON, mos_current
+from ..network.largesignal import bjt_forward_active, mos_current, mos_saturated
 from ..solve.dcop import DcEquations
 from .biasslopes import RAW_SLICE, VOLTAGES, dc_pattern, device_index, unknowns
 from .partvalues import value_of
@@ -101,11 +101,9 @@ def _point_volts(eqs: DcEquations, large, x) -> dict:
 
 
 def _in_region(large, volts) -> np.ndarray:
-    """Per row, whether the device is forward active (BJT) or saturated (MOSFET), by the
-    rules of :func:`~bandsketch.engine.network.largesignal.bjt_region` and ``mos_region``."""
+    """Per row, whether the device is forward active (BJT) or saturated (MOSFET)."""
     if large.kind == "bjt":
-        return (volts["vbe"] > JUNCTION_ON) & ~(volts["vbc"] > JUNCTION_ON)
+        return bjt_forward_active(volts["vbe"], volts["vbc"])
     p = large.model.params
     *_, vth = mos_current(volts["vgs"], volts["vds"], volts["vbs"], p.vth, p.kp, p.lam, p.gamma, p.phi)
-    vov = volts["vgs"] - vth
-    return (vov > 0) & (np.abs(volts["vds"]) >= vov)
+    return mos_saturated(volts["vgs"], volts["vds"], vth)

@@ -13,13 +13,10 @@ from dataclasses import dataclass
 
 from ..core.errors import CircuitError
 from ..design.netlist import design_to_circuit
+from ..network.largesignal import AMPLIFYING_REGION
 from ..solve.analysis import analyze
 from .targets import Targets, check_targets
 
-_GOOD_REGIONS = {"bjt": ("active", "forward active", "forward_active", "forward-active"),
-                 "mosfet": ("saturation", "saturated")}
-"""Regions in which a transistor amplifies as a small-signal stage assumes (common practice,
-no source): a BJT in forward active, a MOSFET in saturation."""
 
 
 @dataclass(frozen=True)
@@ -123,9 +120,8 @@ def _devices(analysis, doc) -> tuple:
     for name, bias in point.devices.items():
         region = str(getattr(bias, "region", ""))
         part = doc.parts.get(name)
-        good = _GOOD_REGIONS.get(part.kind if part is not None else "", ())
-        ok = region.lower().replace("_", " ") in good or region.lower() in good
-        out.append(DeviceBias(name, region, ok, f"{name} {region.replace('_', ' ')}"))
+        ok = part is not None and region == AMPLIFYING_REGION.get(part.kind)
+        out.append(DeviceBias(name, region, ok, f"{name} {region}"))
     return tuple(out)
 
 

@@ -16,7 +16,7 @@ from typing import Callable
 import numpy as np
 
 from .elements import VCCS, VCVS, Capacitor, Resistor
-from .largesignal import JUNCTION_ON, BjtParams, MosParams, bjt_currents, mos_current
+from .largesignal import BjtParams, MosParams, bjt_currents, bjt_forward_active, mos_current
 from ..core.errors import BadValueError
 from ..core.values import parse_value
 
@@ -250,7 +250,7 @@ class LargeBjt:
         if self.ft:
             # f_T describes the active region; out of it the diffusion charge C_π stands for is
             # g_m·τ_F with τ_F = 1/(2π f_T) (the region warning says the values are not an amplifier's).
-            active = (vbe > JUNCTION_ON) & ~(vbc > JUNCTION_ON)
+            active = bjt_forward_active(vbe, vbc)
             cpi = gm / (2 * math.pi * self.ft) - np.where(active, out["cmu"], 0.0)
             out["cpi"] = np.where(cpi > 0, cpi, math.nan)
         else:

@@ -14,6 +14,8 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
+from types import MappingProxyType
+
 import numpy as np
 
 EXP_LIMIT = 80.0
@@ -97,6 +99,42 @@ def bjt_currents(vbe, vbc, isat, beta, beta_r, va, vt):
     ic = ict - i_r / beta_r
     ib = i_f / beta + i_r / beta_r
     return ic, ib, dict_dvbe, dict_dvbc - g_r / beta_r, g_f / beta, g_r / beta_r
+
+
+AMPLIFYING_REGION = MappingProxyType({"bjt": "forward active", "mosfet": "saturation"})
+"""The region in which each kind amplifies as its small-signal values assume (common
+practice, no source)."""
+
+
+def bjt_forward_active(vbe, vbc):
+    """Whether a BJT is forward active (the rule of :func:`bjt_region`), for arrays too.
+
+    Parameters
+    ----------
+    vbe, vbc : array_like
+        Junction voltages, V (device polarity).
+
+    Returns
+    -------
+    numpy.ndarray of bool
+    """
+    return (np.asarray(vbe) > JUNCTION_ON) & ~(np.asarray(vbc) > JUNCTION_ON)
+
+
+def mos_saturated(vgs, vds, vth):
+    """Whether a MOSFET is in saturation (the rule of :func:`mos_region`), for arrays too.
+
+    Parameters
+    ----------
+    vgs, vds, vth : array_like
+        Gate–source and drain–source voltages and the threshold, V (device polarity).
+
+    Returns
+    -------
+    numpy.ndarray of bool
+    """
+    vov = np.asarray(vgs) - vth
+    return (vov > 0) & (np.abs(vds) >= vov)
 
 
 def bjt_region(vbe, vbc) -> str:

@@ -9,11 +9,10 @@ from dataclasses import dataclass
 from types import MappingProxyType
 from typing import Mapping
 
+from ..network.largesignal import AMPLIFYING_REGION
 from ..core.values import format_value
 from ..design.parts import KINDS
 
-REGION_OK = {"bjt": "forward active", "mosfet": "saturation"}
-"""The region an amplifying transistor is meant to be in."""
 QUIET_RAIL_A = 1e-9
 """A rail supplying less than this (A) gets no current note on the sheet."""
 
@@ -82,7 +81,7 @@ def bias_marks(doc, netlist, point) -> BiasMarks:
         nodes.append((x, y, format_value(volts, "V")))
     devices = {}
     for name, bias in point.devices.items():
-        wrong = bias.region != REGION_OK[bias.kind]
+        wrong = bias.region != AMPLIFYING_REGION[bias.kind]
         said = next((w for w in point.warnings if w.startswith(f"{name} ")), None)
         devices[name] = DeviceNote(_device_lines(bias), said if wrong else None)
     for part in doc.parts.values():
