@@ -26,6 +26,7 @@ from bandsketch.engine.design.document import ChangeKind, Document
 from bandsketch.engine.core.errors import Cancelled, CircuitError
 from bandsketch.engine.present.plotdata import histogram_axis
 from bandsketch.engine.advise.sensitivity import FIGURE_TITLES, FIGURES, sensitivities
+from bandsketch.engine.advise.timetargets import rise_time_sensitivities
 from bandsketch.engine.design.schema import target_problem
 from bandsketch.engine.advise.search import search
 from bandsketch.engine.advise.suggest import suggest, verdict_line
@@ -49,8 +50,12 @@ BIAS_COLUMN = [title for title, _ in _SUGGEST_COLUMNS].index("Bias")
 def _hz(f) -> str:
     return format_value(f, "Hz") if f is not None and math.isfinite(f) and f > 0 else "none"
 _SPREAD_TITLES = {"f_high": "f_H", "f_low": "f_L", "gain": "|A_m|"}
-_TARGET_FIELDS = (("f_high_min", "Minimum f_H", "e.g. 1M"), ("f_low_max", "Maximum f_L", "e.g. 20"),
-                  ("gain", "Mid-band gain", "e.g. 100 or 40 dB"), ("gain_tolerance", "Gain tolerance", "e.g. 10 % or 1 dB"))
+_TARGET_FIELDS = ((("f_high_min", "Minimum f_H", "e.g. 1M"), ("f_low_max", "Maximum f_L", "e.g. 20"),
+                   ("gain", "Mid-band gain", "e.g. 100 or 40 dB"), ("gain_tolerance", "Gain tolerance", "e.g. 10 % or 1 dB")),
+                  (("rise_time_max", "Longest rise (10–90 %)", "e.g. 50n"),
+                   ("overshoot_max", "Largest overshoot", "e.g. 5 %"),
+                   ("settling_time_max", "Longest settling (1 %)", "e.g. 400n")))
+"""The target entries, in two columns: the frequency response's, then the step's."""
 
 
 class _Relay(QObject):
@@ -173,20 +178,26 @@ class AdvisorPanel(QWidget):
         # The fields keep a field's width on the left; the verdict reads beside them.
         w = QWidget()
         row = QHBoxLayout(w)
-        form = QFormLayout()
-        form.setFieldGrowthPolicy(QFormLayout.FieldGrowthPolicy.FieldsStayAtSizeHint)
+        fields = QVBoxLayout()
+        columns = QHBoxLayout()
         self.target_edits = {}
-        for key, label, hint in _TARGET_FIELDS:
-            edit = QLineEdit()
-            edit.setPlaceholderText(hint)
-            edit.setFixedWidth(edit.fontMetrics().horizontalAdvance("m") * 14)
-            edit.editingFinished.connect(lambda k=key: self._target_edited(k))
-            form.addRow(label, edit)
-            self.target_edits[key] = edit
+        for group in _TARGET_FIELDS:
+            form = QFormLayout()
+            form.setFieldGrowthPolicy(QFormLayout.FieldGrowthPolicy.FieldsStayAtSizeHint)
+            for key, label, hint in group:
+                edit = QLineEdit()
+                edit.setPlaceholderText(hint)
+                edit.setFixedWidth(edit.fontMetrics().horizontalAdvance("m") * 11)
+                edit.editingFinished.connect(lambda k=key: self._target_edited(k))
+                form.addRow(label, edit)
+                self.target_edits[key] = edit
+            columns.addLayout(form)
+        fields.addLayout(columns)
         self.target_problem = QLabel()
         self.target_problem.setWordWrap(True)
-        form.addRow(self.target_problem)
-        row.addLayout(form)
+        fields.addWidget(self.target_problem)
+        fields.addStretch(1)
+        row.addLayout(fields)
         row.addSpacing(18)
         self.verdict_label = QLabel()
         self.verdict_label.setWordWrap(True)
@@ -222,10 +233,9 @@ class AdvisorPanel(QWidget):
     def _sensitivity_tab(self) -> QWidget:
         w = QWidget()
         v = QVBoxLayout(w)
-        self.sens_table = QTableWidget(0, 6)
-        self.sens_table.setHorizontalHeaderLabels(
-            ["Part value"] + [f"{FIGURE_TITLES[f]}" for f in ("high_exact", "high_estimate", "low_exact",
-                                                           "low_estimate", "gain")])
+        self.sens_table = QTableWidget(0, len(FIGURES) + 2)
+        self.sens_table.setHorizontalHeaderLabels(["Part value"] + [FIGURE_TITLES[f] for f in FIGURES]
+                                                  + ["t_r estimated"])
         self.sens_table.horizontalHeader().setSectionResizeMode(QHeaderView.ResizeMode.Stretch)
         self.sens_table.setMouseTracking(True)
         self.sens_table.cellEntered.connect(self._sens_hover)
@@ -315,6 +325,7 @@ class AdvisorPanel(QWidget):
         self.verdict_label.setText("<br>".join(lines))
 
     def _show_sensitivities(self, sens) -> None:
+        rise = rise_time_sensitivities(sens)
         rows = sorted(sens.rows, key=lambda r: (-abs(r.high_exact or 0.0), -abs(r.low_exact or 0.0)))
         self.sens_table.setRowCount(len(rows))
         for i, r in enumerate(rows):
@@ -325,6 +336,10 @@ class AdvisorPanel(QWidget):
                 v = getattr(r, figure)
                 self.sens_table.setItem(i, j, _item("—" if v is None else f"{v:+.3f}", sens.notes.get(figure, ""),
                                                     numeric=True))
+            v = rise.get(r.value.label)
+            self.sens_table.setItem(i, len(FIGURES) + 1, _item(
+                "—" if v is None else f"{v:+.3f}", "The estimated rise time, ln 9·b1: minus the estimated f_H's",
+                numeric=True))
         self.sens_notes.setText("\n".join(sens.notes.values()))
 
     # -- suggestions ----------------------------------------------------------------------
@@ -449,7 +464,7 @@ class AdvisorPanel(QWidget):
             head = "The design meets every target now; nothing to suggest."
         elif meeting:
             best = meeting[0]
-            y = f", yield {100 * best.spread.fraction:.0f} %" if best.spread else ""
+            y = f", yield {100 * best.spread.fraction:.0f} %{best.spread.note}" if best.spread else ""
             head = (f"<b>{len(meeting)}</b> of {len(advice.suggestions)} single changes meet every target; "
                     f"best first by yield: <b>{best.label}</b>{y}. Rows that break a target follow.")
         else:
@@ -559,7 +574,8 @@ class AdvisorPanel(QWidget):
             if hist.nominal:
                 plot.addItem(pg.InfiniteLine(hist.nominal, angle=90, pen=pg.mkPen("#1d2430", style=Qt.PenStyle.DashLine)))
         parts = [f"{spread.samples:,} samples, seed {spread.seed}, {spread.seconds:.2f} s."]
-        names = {"f_high_min": "f_H target", "f_low_max": "f_L target", "gain": "gain window", "all": "all targets"}
+        names = {"f_high_min": "f_H target", "f_low_max": "f_L target", "gain": "gain window",
+                 "all": "corner and gain targets together"}
         parts += [f"Yield, {names[k]}: {100 * v:.1f} %" for k, v in spread.yields.items()]
         worst = [w for w in spread.worst_cases if w.extreme == ("min" if w.figure == "f_high" else "max")
                  and w.figure != "gain" and math.isfinite(w.value)]

@@ -10,15 +10,14 @@ from __future__ import annotations
 import math
 
 import pyqtgraph as pg
-import pyqtgraph.exporters  # noqa: F401  (registers pg.exporters)
-from PySide6.QtCore import QPointF, QRectF, Qt, Signal
-from PySide6.QtGui import QColor, QPainter
-from PySide6.QtSvg import QSvgGenerator
+from PySide6.QtCore import QPointF, Qt, Signal
+from PySide6.QtGui import QColor
 from PySide6.QtWidgets import QVBoxLayout, QWidget
 
 from bandsketch.engine.present.plotdata import BodeData
 from bandsketch.engine.core.values import format_value
 
+from .plotexport import export_canvas
 from .style import Restyles, ViewColours, view_colours
 
 MARKER_SLOTS = (("high", True), ("high", False), ("low", True), ("low", False))
@@ -327,21 +326,4 @@ class BodePlot(Restyles, QWidget):
         ValueError
             The suffix is neither ``.png`` nor ``.svg``.
         """
-        suffix = path.lower().rsplit(".", 1)[-1]
-        if suffix == "png":
-            pg.exporters.ImageExporter(self.canvas.ci).export(path)
-        elif suffix == "svg":
-            # Qt's own SVG writer: pyqtgraph's SVG exporter cannot parse the path data that
-            # Qt 6.12 writes, and fails on every plot with a curve.
-            scene = self.canvas.scene()
-            rect = self.canvas.ci.sceneBoundingRect()
-            svg = QSvgGenerator()
-            svg.setFileName(path)
-            svg.setSize(rect.size().toSize())
-            svg.setViewBox(QRectF(0, 0, rect.width(), rect.height()))
-            svg.setTitle("Bandsketch response")
-            painter = QPainter(svg)
-            scene.render(painter, QRectF(0, 0, rect.width(), rect.height()), rect)
-            painter.end()
-        else:
-            raise ValueError(f"{path}: save the plot as .png or .svg")
+        export_canvas(self.canvas, path, "Bandsketch response")

@@ -19,6 +19,8 @@ from bandsketch.engine.design.netlist import Problem
 from bandsketch.engine.advise.targets import parse_targets
 from bandsketch.engine.core.errors import BadValueError
 from bandsketch.engine.core.values import parse_value
+from bandsketch.engine.present.stepdata import time_target_lines
+from bandsketch.engine.present.timesummary import write_step_csv
 from bandsketch.engine.present.plotdata import bode_data, part_of, sweep_range, target_marks, write_curves_csv
 
 from .. import edits
@@ -85,35 +87,27 @@ class AnalysisPanel(QWidget):
         self.dismiss_before.clicked.connect(lambda: self.compare_with_before(None))
         self.dismiss_before.hide()
         tools.addWidget(self.dismiss_before)
-        sweep = QToolButton(text="Sweep")
-        sweep.setToolTip("Choose the frequencies the Bode plot spans (blank: a decade beyond the corners)")
-        sweep.setPopupMode(QToolButton.ToolButtonPopupMode.InstantPopup)
-        sweep_menu = QMenu(sweep)
-        box = QWidget()
-        form = QFormLayout(box)
         self.sweep_from, self.sweep_to = QLineEdit(), QLineEdit()
-        for edit in (self.sweep_from, self.sweep_to):
-            edit.setPlaceholderText("automatic")
-            edit.editingFinished.connect(self._sweep_edited)
         self.sweep_note = QLabel()
-        self.sweep_note.setWordWrap(True)
-        form.addRow("From (Hz)", self.sweep_from)
-        form.addRow("To (Hz)", self.sweep_to)
-        form.addRow(self.sweep_note)
-        holder = QWidgetAction(sweep_menu)
-        holder.setDefaultWidget(box)
-        sweep_menu.addAction(holder)
-        sweep.setMenu(sweep_menu)
-        tools.addWidget(sweep)
-        self.sweep_button = sweep
+        self.sweep_button = _popup_form(
+            "Sweep", "Choose the frequencies the Bode plot spans (blank: a decade beyond the corners)",
+            (("From (Hz)", self.sweep_from), ("To (Hz)", self.sweep_to)), self.sweep_note, self._sweep_edited)
+        tools.addWidget(self.sweep_button)
         self.sweep: tuple | None = None
         """The sweep the designer chose (Hz, lowest and highest), or None for the automatic one."""
+        self.pulse_width_edit = QLineEdit()
+        self.pulse_note = QLabel()
+        self.pulse_button = _popup_form(
+            "Pulse", "Choose the width of the input pulse (blank: wide enough for a 10 % estimated sag)",
+            (("Width (s)", self.pulse_width_edit),), self.pulse_note, self._pulse_edited)
+        self.pulse_button.hide()
+        tools.addWidget(self.pulse_button)
         fit = QToolButton(text="Fit")
         fit.setToolTip("Show the whole sweep again after zooming or panning")
         fit.clicked.connect(lambda: self.plots.currentWidget().fit())
         tools.addWidget(fit)
         export = QToolButton(text="Export")
-        export.setToolTip("Save the plot as a picture, or the swept curves as CSV")
+        export.setToolTip("Save the plot on show as a picture, or its curves as CSV")
         export.setPopupMode(QToolButton.ToolButtonPopupMode.InstantPopup)
         menu = QMenu(export)
         menu.addAction("Plot as PNG…", lambda: self._export("PNG image (*.png)", ".png"))
@@ -184,6 +178,7 @@ class AnalysisPanel(QWidget):
             self.bars.show_bars(outcome.bars)
             self._show_bode()
             self.time.show_response(outcome.step, outcome.pulse, problem=outcome.time_problem)
+            self._show_time_targets()
             self.verdict.show_verdict(outcome.verdict)
             self._mark_canvas(outcome)
             self.bias_notes.show(outcome.bias)
@@ -212,6 +207,14 @@ class AnalysisPanel(QWidget):
             targets = None  # the advisor says what is wrong with the text; nothing is drawn
         self.bode.show_targets(None if targets is None else target_marks(targets, outcome.analysis.gain_unit))
 
+    def _show_time_targets(self) -> None:
+        step = self.good.step if self.good is not None else None
+        try:
+            targets = parse_targets(self.doc.targets)
+        except BadValueError:
+            targets = None  # as on the Bode plot: the advisor says what is wrong
+        self.time.show_targets(() if targets is None or step is None else time_target_lines(targets, step))
+
     def _span(self, analysis) -> tuple | None:
         if self.sweep is None:
             return None
@@ -237,6 +240,27 @@ class AnalysisPanel(QWidget):
         if problem:
             return
         self.set_sweep(None if lo is None and hi is None else (lo, hi))
+
+    def _pulse_edited(self) -> None:
+        """Take the pulse width typed in the Pulse menu (blank is automatic)."""
+        text = self.pulse_width_edit.text().strip()
+        try:
+            width = parse_value(text, field="pulse width") if text else None
+        except BadValueError as exc:
+            self.pulse_note.setText(exc.message)
+            return
+        self.pulse_note.clear()
+        self.set_pulse_width(width)
+
+    def set_pulse_width(self, width: float | None) -> None:
+        """Show the response to a pulse ``width`` s wide (None: wide enough for a 10 %
+        estimated sag); the design is analysed again."""
+        if width is None:
+            self.pulse_width_edit.clear()
+            self.pulse_note.clear()
+        if width != self.runner.pulse_width:
+            self.runner.pulse_width = width
+            self.refresh()
 
     def set_sweep(self, span: tuple | None) -> None:
         """Span the Bode plot over ``span`` (Hz, lowest and highest; None at either end, or
@@ -373,16 +397,22 @@ class AnalysisPanel(QWidget):
     def _export(self, kind: str, suffix: str) -> None:
         if self.good is None:
             return
-        path, _ = QFileDialog.getSaveFileName(self, "Export", f"response{suffix}", kind)
+        name = "step" if self.plots.currentWidget() is self.time else "response"
+        path, _ = QFileDialog.getSaveFileName(self, "Export", f"{name}{suffix}", kind)
         if path:
             self.export(path)
 
     def export(self, path: str) -> None:
-        """Save the plot (``.png``, ``.svg``) or the plotted curves (``.csv``) to ``path``."""
-        if path.lower().endswith(".csv"):
-            write_curves_csv(self.bode.data(), path)
+        """Save the plot on show (``.png``, ``.svg``) or its curves (``.csv``) to ``path``: the
+        Bode plot's swept curves, or the step response's waveform."""
+        on_show = self.plots.currentWidget()
+        if not path.lower().endswith(".csv"):
+            on_show.export_image(path)
+        elif on_show is self.time:
+            if self.good.step is not None:  # an unstable stage has no waveform to write
+                write_step_csv(self.good.analysis.step_response(), path)
         else:
-            self.bode.export_image(path)
+            write_curves_csv(self.bode.data(), path)
 
     # -- looks ----------------------------------------------------------------------------
     def changeEvent(self, event):
@@ -393,6 +423,7 @@ class AnalysisPanel(QWidget):
     def _plot_switched(self, *_) -> None:
         self.legend.setText(self.plots.currentWidget().legend_html())
         self.sweep_button.setVisible(self.plots.currentWidget() is self.bode)
+        self.pulse_button.setVisible(self.plots.currentWidget() is self.time)
         self.hover_readout.clear()
 
     def restyle(self) -> None:
@@ -401,6 +432,28 @@ class AnalysisPanel(QWidget):
         for view in (self.bars, self.bode, self.time, self.verdict, self.banner, self.overlay):
             view.set_colours(colours)
         self._plot_switched()
+
+
+def _popup_form(text: str, tip: str, rows, note: QLabel, edited) -> QToolButton:
+    """A tool button whose menu is a small form of line edits, each blank meaning
+    "automatic"; ``edited`` runs when one is finished, ``note`` says what is wrong."""
+    button = QToolButton(text=text)
+    button.setToolTip(tip)
+    button.setPopupMode(QToolButton.ToolButtonPopupMode.InstantPopup)
+    menu = QMenu(button)
+    box = QWidget()
+    form = QFormLayout(box)
+    for label, edit in rows:
+        edit.setPlaceholderText("automatic")
+        edit.editingFinished.connect(edited)
+        form.addRow(label, edit)
+    note.setWordWrap(True)
+    form.addRow(note)
+    holder = QWidgetAction(menu)
+    holder.setDefaultWidget(box)
+    menu.addAction(holder)
+    button.setMenu(menu)
+    return button
 
 
 class _TabRowCorner(QObject):

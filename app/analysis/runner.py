@@ -94,7 +94,8 @@ def _problem_outcome(generation, doc, nets, message, parts=(), points=(), starte
                    problem_points=tuple(points), seconds=time.perf_counter() - started)
 
 
-def analyse_design(doc: Document, generation: int = 0, drawn: DrawnDesign | None = None) -> Outcome:
+def analyse_design(doc: Document, generation: int = 0, drawn: DrawnDesign | None = None,
+                   pulse_width: float | None = None) -> Outcome:
     """Analyse a design snapshot and prepare what the views draw; never raises.
 
     Parameters
@@ -106,6 +107,8 @@ def analyse_design(doc: Document, generation: int = 0, drawn: DrawnDesign | None
     drawn : DrawnDesign, optional
         The nets and circuit of ``doc`` as the sheet already read them (read here if not
         given); from here on only this run uses the circuit.
+    pulse_width : float, optional
+        s, the width of the pulse the time view shows; None for the default.
     """
     started = time.perf_counter()
     if doc.is_empty():
@@ -129,7 +132,7 @@ def analyse_design(doc: Document, generation: int = 0, drawn: DrawnDesign | None
                                 "check the values of the parts you changed last.", started=started)
     step = pulse = time_problem = None
     try:
-        step, pulse = time_views(analysis)
+        step, pulse = time_views(analysis, pulse_width)
     except CircuitError as exc:
         time_problem = exc.message
     point = analysis.operating_point
@@ -169,6 +172,8 @@ class AnalysisRunner(QObject):
     ----------
     last : Outcome or None
         The outcome announced last, for a view that starts listening late.
+    pulse_width : float or None
+        s, the pulse the time view shows (None: the default); read by each request.
     """
 
     finished = Signal(object)
@@ -189,6 +194,7 @@ class AnalysisRunner(QObject):
         self.last_seconds = 0.0
         self.last: Outcome | None = None
         self.threaded_runs = 0
+        self.pulse_width: float | None = None
 
     @property
     def generation(self) -> int:
@@ -199,21 +205,21 @@ class AnalysisRunner(QObject):
         """Analyse ``doc`` as it is now (``drawn``: its reading, if the sheet made one); a
         newer request supersedes this one."""
         self._generation += 1
-        job = (self._generation, doc.copy(), drawn)
+        job = (self._generation, doc.copy(), drawn, self.pulse_width)
         if self._running:
             self._pending = job
         else:
             self._start(job)
 
     def _start(self, job) -> None:
-        generation, doc, drawn = job
+        generation, doc, drawn, width = job
         if self.last_seconds <= self.thread_after_s:
-            self._on_done(analyse_design(doc, generation, drawn))
+            self._on_done(analyse_design(doc, generation, drawn, width))
             return
         self._running = True
         self.threaded_runs += 1
         relay = self._relay
-        self.pool.start(lambda: relay.done.emit(analyse_design(doc, generation, drawn)))
+        self.pool.start(lambda: relay.done.emit(analyse_design(doc, generation, drawn, width)))
 
     def _on_done(self, outcome: Outcome) -> None:
         self._running = False

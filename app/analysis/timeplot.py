@@ -16,12 +16,15 @@ from PySide6.QtCore import QPointF, Qt, Signal
 from PySide6.QtGui import QColor
 from PySide6.QtWidgets import QLabel, QVBoxLayout, QWidget
 
-from bandsketch.engine.present.stepdata import PulseData, StepData
+from bandsketch.engine.present.stepdata import PulseData, StepData, TimeTargetLine
 
+from .plotexport import export_canvas
 from .style import Restyles, ViewColours, view_colours
 
 MARKER_COUNT = 3
 """10 %, 90 % and the overshoot's peak."""
+TARGET_COUNT = 3
+"""The rise, overshoot and settling targets."""
 LEVELS = (0.1, 0.9, 1.0)
 """Reference lines on the step plot, as fractions of the final value."""
 
@@ -76,6 +79,14 @@ class TimePlot(Restyles, QWidget):
         self.labels = [pg.TextItem(anchor=(0, 1)) for _ in range(MARKER_COUNT)]
         for label in self.labels:
             self.step.addItem(label, ignoreBounds=True)
+        # The designer's time targets, dash-dotted as on the Bode plot.
+        self.target_lines = [pg.InfiniteLine(angle=90, movable=False, label="",
+                                             labelOpts={"position": 0.45, "anchors": [(0, 0.5), (0, 0.5)]})
+                             for _ in range(TARGET_COUNT)]
+        for line in self.target_lines:
+            line.setZValue(-1)
+            line.hide()
+            self.step.addItem(line, ignoreBounds=True)
         self.cursor = pg.InfiniteLine(angle=90, movable=False)
         self.step.addItem(self.cursor, ignoreBounds=True)
         self.canvas.scene().sigMouseMoved.connect(self._on_mouse_moved)
@@ -127,10 +138,37 @@ class TimePlot(Restyles, QWidget):
         self.fit()
         self._restyle()
 
+    def show_targets(self, lines: tuple[TimeTargetLine, ...]) -> None:
+        """Draw the designer's time targets (see
+        :func:`bandsketch.engine.present.stepdata.time_target_lines`; empty draws none)."""
+        for i, item in enumerate(self.target_lines):
+            if i >= len(lines):
+                item.hide()
+                continue
+            line = lines[i]
+            item.show()  # first: a hidden line's label ignores its new text
+            item.setAngle(90 if line.vertical else 0)
+            item.setValue(line.position)
+            # A time's label sits halfway up, right of its line, where the edge has already
+            # risen past; a level's at the right end, over the settled part of the step.
+            item.label.anchors = [(0, 0.5), (0, 0.5)] if line.vertical else [(1, 1), (1, 1)]
+            item.label.setPosition(0.45 if line.vertical else 0.97)
+            item.label.setFormat(line.text)
+
     def fit(self) -> None:
         """Show both responses whole."""
         for plot in (self.step, self.pulse):
             plot.enableAutoRange()
+
+    def export_image(self, path: str) -> None:
+        """Save both plots as PNG or SVG, chosen by the file's suffix.
+
+        Raises
+        ------
+        ValueError
+            The suffix is neither ``.png`` nor ``.svg``.
+        """
+        export_canvas(self.canvas, path, "Bandsketch step and pulse response")
 
     def data(self) -> tuple[StepData | None, PulseData | None]:
         """The responses shown."""
@@ -172,6 +210,9 @@ class TimePlot(Restyles, QWidget):
             label.setColor(ink)
             label.fill = pg.mkBrush(fill)
         self.cursor.setPen(pg.mkPen(c.selection, width=1))
+        for item in self.target_lines:
+            item.setPen(pg.mkPen(high, width=2, style=Qt.PenStyle.DashDotLine))
+            item.label.setColor(high)
         self.summary.setStyleSheet(f"color: {ink.name()}")
 
     def _on_mouse_moved(self, pos: QPointF) -> None:

@@ -33,6 +33,7 @@ from .knobs import Knob, knobs
 from .sensitivity import sensitivities
 from .suggest import YIELD_SAMPLES, Change, Suggestion, apply_changes, change_text, verdict_line, yield_of
 from .targets import Targets
+from .timetargets import time_figure
 from .tolerance import exact_figures
 
 SPAN_DECADES = 1.0
@@ -42,7 +43,17 @@ MAX_VALUES = 25
 combinations for three knobs, a few seconds of batched solves."""
 VERIFY = 12
 """How many of the best screened combinations are analysed again in full."""
-_FIGURE_OF = {"f_high_min": "high_exact", "f_low_max": "low_exact", "gain": "gain"}
+_FIGURE_OF = {"f_high_min": ("high_exact", 1.0), "f_low_max": ("low_exact", 1.0), "gain": ("gain", 1.0),
+              # A rise or a settling time scales as 1/f_H where one pole leads (t_r ≈ 0.35/f_H,
+              # common practice, no source): the screen's proxy, confirmed by the full analysis.
+              "rise_time_max": ("high_exact", -1.0), "settling_time_max": ("high_exact", -1.0)}
+"""Target key -> (sensitivity row attribute, sign) of the figure the target reads; the
+overshoot has no first-order proxy and does not steer the screen."""
+
+
+def _sensitivity(row, key: str) -> float:
+    attr, sign = _FIGURE_OF.get(key, (None, 0.0))
+    return sign * (getattr(row, attr) or 0.0) if attr else 0.0
 
 
 @dataclass(frozen=True)
@@ -88,11 +99,13 @@ def _values(knob: Knob, span: float, limit: int) -> np.ndarray:
     return vals
 
 
-def _margins(targets: Targets, analysis, fh, fl, gain) -> np.ndarray:
+def _margins(targets: Targets, analysis, fh, fl, gain, nominal_times=None) -> np.ndarray:
     """Per combination, the worst natural-log margin over the targets.
 
     A NaN corner is "none found near the nominal one": a failure, unless the nominal design
-    has no such corner at all (a d.c.-coupled stage's f_L), which meets its target."""
+    has no such corner at all (a d.c.-coupled stage's f_L), which meets its target.
+    ``nominal_times`` (target key -> the nominal design's exact rise or settling time, s)
+    screens those targets by t ≈ t_nominal·f_H,nominal/f_H; the overshoot is not screened."""
     cols = []
 
     def corner(f, limit, above, nominal):
@@ -108,7 +121,21 @@ def _margins(targets: Targets, analysis, fh, fl, gain) -> np.ndarray:
         if targets.gain is not None:
             g = np.abs(gain)
             cols.append(np.minimum(np.log(g / targets.gain_min), np.log(targets.gain_max / g)))
+        for key, t0 in (nominal_times or {}).items():
+            t = t0 * analysis.f_high_exact / fh
+            cols.append(np.where(np.isfinite(t), np.log(getattr(targets, key) / t), -np.inf))
     return np.min(np.vstack(cols), axis=0) if cols else np.zeros(np.size(gain))
+
+
+def _nominal_times(targets: Targets, analysis) -> dict:
+    if not targets.has_time() or not analysis.f_high_exact:
+        return {}
+    try:
+        step = analysis.step_response()
+    except CircuitError:
+        return {}
+    return {key: time_figure(step, key) for key in ("rise_time_max", "settling_time_max")
+            if getattr(targets, key) is not None and time_figure(step, key)}
 
 
 def _propose_knobs(doc, targets: Targets, count: int = 2) -> tuple:
@@ -135,7 +162,7 @@ def _propose_knobs(doc, targets: Targets, count: int = 2) -> tuple:
     order = sorted(before.checks, key=lambda c: (c.passed, log_margin(c)))
     keys = [c.key for c in order]
     weight = np.array([10.0 if not c.passed else 1.0 for c in order])
-    S = np.array([[getattr(sens[k.part], _FIGURE_OF[t]) or 0.0 for t in keys] for k in pool]) * weight
+    S = np.array([[_sensitivity(sens[k.part], t) for t in keys] for k in pool]) * weight
     if len(keys) < 2 or count != 2:
         score = np.abs(S).sum(axis=1)
         return tuple(pool[i] for i in np.argsort(-score, kind="stable")[:count])
@@ -181,7 +208,7 @@ def search(doc, targets: Targets, chosen=None, *, span: float = SPAN_DECADES, li
         Fewer than two or more than three knobs, or a name that is not a knob of the design.
     """
     if targets.is_empty():
-        raise ValueError("the design has no targets to meet; set f_H, f_L or gain targets first")
+        raise ValueError("the design has no targets to meet; set f_H, f_L, gain or time targets first")
     if chosen is None:
         picked = _propose_knobs(doc, targets)
     else:
@@ -201,7 +228,8 @@ def search(doc, targets: Targets, chosen=None, *, span: float = SPAN_DECADES, li
     batched = all(k.key == "value" and k.part in circuit.elements for k in picked)
     if batched:
         fh, fl, gain = exact_figures(circuit, analysis, [k.part for k in picked], combos / nominal)
-        order = np.argsort(-_margins(targets, analysis, fh, fl, gain), kind="stable")[:verify]
+        order = np.argsort(-_margins(targets, analysis, fh, fl, gain, _nominal_times(targets, analysis)),
+                           kind="stable")[:verify]
     else:
         # Device or rail knobs do not map onto one element: every combination in full, fewer of them.
         order = np.arange(len(combos))
@@ -230,7 +258,8 @@ def search(doc, targets: Targets, chosen=None, *, span: float = SPAN_DECADES, li
                                   yield_of(apply_changes(doc, best.changes), targets, samples))
             except CircuitError:
                 pass
-        y = f", yield {100 * best.spread.fraction:.0f} % under the parts' tolerances" if best.spread else ""
+        y = (f", yield {100 * best.spread.fraction:.0f} % under the parts' tolerances{best.spread.note}"
+             if best.spread else "")
         text = f"{best.label} meets every target{y} (searched {len(combos)} combinations: {reach})."
     else:
         text = (f"No combination of {names} meets every target ({len(combos)} standard-value combinations: "

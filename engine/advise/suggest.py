@@ -24,7 +24,8 @@ from ..solve.analysis import analyze
 from . import eseries
 from .effect import Effect, effect_of
 from .knobs import Knob, knobs
-from .targets import TARGET_LABELS, Targets, exact_root, field_text, with_field
+from .timetargets import TIME_TARGETS
+from .targets import JUDGED, TARGET_LABELS, Targets, exact_root, field_text, with_field
 from .tolerance import design_tolerances, monte_carlo
 
 YIELD_SAMPLES = 1000
@@ -44,11 +45,22 @@ class Yield:
         How many were drawn.
     standard_error : float
         √(p(1 − p)/n), the binomial standard error of ``fraction``.
+    nominal_only : tuple of str
+        Target keys the spread does not judge (the time targets: each sample would need a
+        step response of its own); they are judged at the nominal values only.
     """
 
     fraction: float
     samples: int
     standard_error: float
+    nominal_only: tuple = ()
+
+    @property
+    def note(self) -> str:
+        """What the yield leaves out, as a clause to follow it ("" when it judges every target)."""
+        if not self.nominal_only:
+            return ""
+        return "; the spread judges the corners and the gain, the time targets at the nominal values only"
 
 
 @dataclass(frozen=True)
@@ -172,7 +184,8 @@ def change_text(value: float) -> str:
 
 
 def yield_of(doc, targets: Targets, samples: int = YIELD_SAMPLES, seed: int = 1) -> Yield | None:
-    """The tolerance spread's yield against every target (None when there are no targets).
+    """The tolerance spread's yield against the corner and gain targets (None when none is set;
+    the time targets are judged at the nominal values, see :attr:`Yield.nominal_only`).
 
     The design is analysed again from the sheet, then spread under its parts' tolerances
     (:func:`bandsketch.engine.advise.tolerance.design_tolerances`).
@@ -187,14 +200,15 @@ def yield_of(doc, targets: Targets, samples: int = YIELD_SAMPLES, seed: int = 1)
     seed : int
         Seed of the random generator.
     """
-    if targets.is_empty():
-        return None
+    if targets.f_high_min is None and targets.f_low_max is None and targets.gain is None:
+        return None  # only time targets: nothing the spread judges
     circuit = design_to_circuit(doc)
     analysis = analyze(circuit, bands=dict(doc.band_pins))
     spread = monte_carlo(circuit, analysis, design_tolerances(doc, circuit), samples=samples, seed=seed,
                          targets=targets, gain_unit=analysis.gain_unit)
     p = spread.yields["all"]
-    return Yield(p, samples, math.sqrt(p * (1 - p) / samples))
+    left = tuple(key for key in TIME_TARGETS if getattr(targets, key) is not None)
+    return Yield(p, samples, math.sqrt(p * (1 - p) / samples), left)
 
 
 CANDIDATE_STEPS = 2
@@ -242,7 +256,7 @@ def suggest(doc, targets: Targets, *, only=None, with_yield: bool = True, sample
     if before.problem:
         raise CircuitError(f"The design cannot be analysed, so nothing can be suggested: {before.problem}")
     chosen = knobs(doc, only)
-    failing = [k for k in ("f_high_min", "f_low_max", "gain") if k in before.failing]
+    failing = [k for k in JUDGED if k in before.failing]
     rows, seen, met = [], set(), set()
     for i, knob in enumerate(chosen):
         if cancel is not None and cancel():
@@ -278,11 +292,14 @@ def _with_yield(row: Suggestion, doc, targets: Targets, samples: int) -> Suggest
 
 
 def _miss(check) -> str:
+    if check.exact is None and check.key in TIME_TARGETS:
+        return f"{TARGET_LABELS[check.key]} (the step does not show it: {check.text})"
     if check.exact is None:
         return f"{TARGET_LABELS[check.key]} (no −3 dB band: the gain never comes within 3 dB of |A_m|)"
     if check.key == "gain":
         return f"the gain by {abs(check.margin):.2f} dB"
-    pct = 100 * abs(check.margin)
+    # A time figure is over its maximum by exact/target − 1; the margin is target/exact − 1.
+    pct = 100 * (1 / (1 + check.margin) - 1) if check.key in TIME_TARGETS else 100 * abs(check.margin)
     return f"{TARGET_LABELS[check.key]} by {pct:.1f} %" if pct < 9.95 else f"{TARGET_LABELS[check.key]} by {pct:.0f} %"
 
 

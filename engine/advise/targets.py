@@ -1,7 +1,8 @@
 """Design targets: what the document asks for, whether the stage meets it, and what would.
 
-A design may hold a minimum upper corner f_H, a maximum lower corner f_L and a mid-band gain
-with a tolerance (texts, see :data:`bandsketch.engine.design.document.TARGET_KEYS`). :func:`parse_targets`
+A design may hold a minimum upper corner f_H, a maximum lower corner f_L, a mid-band gain
+with a tolerance, and a longest step rise time, largest overshoot and longest settling time
+(texts, see :data:`bandsketch.engine.design.schema.TARGET_KEYS`). :func:`parse_targets`
 reads them; :func:`check_targets` judges the exact figures of an analysis against them and
 says beside each what the time-constant estimate would have said; :func:`values_that_meet`
 finds, per part field, the single value that alone meets a failing target.
@@ -21,12 +22,16 @@ from ..core.errors import BadValueError, Cancelled, CircuitError
 from ..design.netlist import design_to_circuit
 from ..core.values import format_value, parse_value
 from .knobs import Knob, knobs
+from .targetcheck import TargetCheck
+from .timetargets import TIME_TARGETS, check_time_targets, parse_time_target, time_figure
 
 DEFAULT_GAIN_TOLERANCE_DB = 1.0
 """The gain window when a gain target has no tolerance: ±1 dB (common practice, no source)."""
 
 TARGET_LABELS = {"f_high_min": "minimum f_H", "f_low_max": "maximum f_L",
-                 "gain": "mid-band gain", "gain_tolerance": "gain tolerance"}
+                 "gain": "mid-band gain", "gain_tolerance": "gain tolerance",
+                 "rise_time_max": "longest rise time", "overshoot_max": "largest overshoot",
+                 "settling_time_max": "longest settling time"}
 """How messages and tables name each target field."""
 
 _DB = re.compile(r"^\s*(?P<num>[+-]?[0-9.]+(?:[eE][+-]?[0-9]+)?)\s*dB\s*$")
@@ -50,6 +55,12 @@ class Targets:
         The window |A_m| must fall in (same unit as ``gain``).
     gain_window_text : str
         How the window was given, e.g. ``"±10 %"`` or ``"±1 dB (default)"``.
+    rise_time_max : float or None
+        s, the exact 10–90 % step rise time must be at most this.
+    overshoot_max : float or None
+        The step's overshoot must be at most this fraction of its final value (``"5 %"`` is 0.05).
+    settling_time_max : float or None
+        s, the step must stay within 1 % of its final value after at most this.
     """
 
     f_high_min: float | None = None
@@ -58,10 +69,17 @@ class Targets:
     gain_min: float | None = None
     gain_max: float | None = None
     gain_window_text: str = ""
+    rise_time_max: float | None = None
+    overshoot_max: float | None = None
+    settling_time_max: float | None = None
 
     def is_empty(self) -> bool:
         """Whether no target is set."""
-        return self.f_high_min is None and self.f_low_max is None and self.gain is None
+        return self.f_high_min is None and self.f_low_max is None and self.gain is None and not self.has_time()
+
+    def has_time(self) -> bool:
+        """Whether a time-domain target (rise, overshoot, settling) is set."""
+        return any(getattr(self, key) is not None for key in TIME_TARGETS)
 
 
 def _bad(key: str, text: str, problem: str) -> BadValueError:
@@ -100,7 +118,8 @@ def parse_targets(targets) -> Targets:
     targets : Mapping[str, str]
         :attr:`bandsketch.engine.design.document.Document.targets`: ``f_high_min`` and ``f_low_max`` in Hz
         (``"1M"``, ``"20 Hz"``), ``gain`` in V/V or dB (``"-100"``, ``"40 dB"``),
-        ``gain_tolerance`` as a percentage or in dB (``"10 %"``, ``"1 dB"``).
+        ``gain_tolerance`` as a percentage or in dB (``"10 %"``, ``"1 dB"``), ``rise_time_max``
+        and ``settling_time_max`` in s (``"20n"``), ``overshoot_max`` as a percentage (``"5 %"``).
 
     Returns
     -------
@@ -118,13 +137,14 @@ def parse_targets(targets) -> Targets:
         return parse_value(text, unit="Hz", field=f"target {TARGET_LABELS[key]}")
 
     f_high, f_low = hz("f_high_min"), hz("f_low_max")
+    times = {key: parse_time_target(key, targets.get(key)) for key in TIME_TARGETS}
     gain_text = (targets.get("gain") or "").strip()
     tol_text = (targets.get("gain_tolerance") or "").strip()
     if not gain_text:
         if tol_text:
             raise _bad("gain_tolerance", tol_text, "has no gain to apply to: set the gain target too, "
                                                    "or clear the tolerance")
-        return Targets(f_high, f_low)
+        return Targets(f_high, f_low, **times)
     gain = _gain(gain_text)
     if gain == 0:
         raise _bad("gain", gain_text, "is zero; a gain target must be a size the stage should reach")
@@ -133,7 +153,7 @@ def parse_targets(targets) -> Targets:
     else:
         d = DEFAULT_GAIN_TOLERANCE_DB
         lo, hi, shown = gain * 10 ** (-d / 20), gain * 10 ** (d / 20), f"±{d:g} dB (default)"
-    return Targets(f_high, f_low, gain, lo, hi, shown)
+    return Targets(f_high, f_low, gain, lo, hi, shown, **times)
 
 
 def _usable(x) -> bool:
@@ -165,42 +185,6 @@ def meets(targets: Targets, f_high, f_low, gain) -> dict:
     if targets.gain is not None:
         out["gain"] = targets.gain_min <= abs(gain) <= targets.gain_max
     return out
-
-
-@dataclass(frozen=True)
-class TargetCheck:
-    """One target judged on the exact figures, with the estimate's verdict beside it.
-
-    Attributes
-    ----------
-    key : str
-        ``"f_high_min"``, ``"f_low_max"`` or ``"gain"``.
-    target_text : str
-        The target as shown, e.g. ``"f_H ≥ 1 MHz"``.
-    exact : float or None
-        The exact figure (Hz, or |A_m| in V/V); None where there is no corner.
-    estimate : float or None
-        The time-constant estimate of the same figure (Hz); for the gain, the same as exact.
-    passed : bool
-        Whether the exact figure meets the target.
-    margin : float or None
-        How far inside (positive) or outside (negative) the target the exact figure is:
-        a fraction of the target for a corner, dB for the gain; None where there is no corner.
-    estimate_passed : bool or None
-        What the estimate would have said; None where there is no estimate.
-    text : str
-        The verdict line, e.g. ``"f_H = 1.2 MHz ≥ 1 MHz: pass by 20 % (the estimate, 950 kHz,
-        would have said fail)"``.
-    """
-
-    key: str
-    target_text: str
-    exact: float | None
-    estimate: float | None
-    passed: bool
-    margin: float | None
-    estimate_passed: bool | None
-    text: str
 
 
 def _corner_check(key, sym, op, target, exact, estimate) -> TargetCheck:
@@ -251,8 +235,26 @@ def check_targets(targets: Targets, analysis, gain_unit: str = "V/V") -> tuple:
     Returns
     -------
     tuple of TargetCheck
-        One per target that is set, in the order f_H, f_L, gain.
+        One per target that is set, in the order f_H, f_L, gain, rise, overshoot, settling.
+        The time targets are judged on the exact step response (:meth:`~bandsketch.engine.
+        solve.analysis.Analysis.step_response`); an unstable stage, which has none, fails them.
     """
+    return _frequency_checks(targets, analysis, gain_unit) + _time_checks(targets, analysis)
+
+
+def _time_checks(targets: Targets, analysis) -> tuple:
+    if not targets.has_time():
+        return ()
+    try:
+        step = analysis.step_response()
+    except CircuitError as exc:
+        return tuple(TargetCheck(key, TARGET_LABELS[key], None, None, False, -1.0, None,
+                                 f"{TARGET_LABELS[key]}: no step response ({exc.message})")
+                     for key in TIME_TARGETS if getattr(targets, key) is not None)
+    return check_time_targets(targets, step)
+
+
+def _frequency_checks(targets: Targets, analysis, gain_unit: str) -> tuple:
     short = getattr(analysis, "shortfall_db", None)
     if short is not None:
         return _no_band_checks(targets, analysis, gain_unit, short)
@@ -303,6 +305,8 @@ def _no_band_checks(targets: Targets, analysis, gain_unit: str, short_db: float)
 
 
 # -- the value that meets it -------------------------------------------------------------------
+JUDGED = ("f_high_min", "f_low_max", "gain", *TIME_TARGETS)
+"""The targets a value can be searched for, in the order they are judged."""
 SEARCH_DECADES = 2.0
 """How far a part's value is searched: from 1/100 to 100 times its present value."""
 _ROOT_XTOL = 1e-5
@@ -344,7 +348,7 @@ class Remedy:
     Attributes
     ----------
     target : str
-        The target key (``"f_high_min"``, ``"f_low_max"``, ``"gain"``).
+        The target key (one of :data:`JUDGED`).
     knob : Knob
         Which field.
     exact_value : float or None
@@ -387,8 +391,7 @@ class _Figure:
         self._build = lambda d: analyze(design_to_circuit(d), bands=dict(d.band_pins))
         self.doc, self.knob, self.target, self.targets = doc, knob, target, targets
         self.cache: dict = {}
-        self.goal = {"f_high_min": targets.f_high_min, "f_low_max": targets.f_low_max,
-                     "gain": targets.gain}[target]
+        self.goal = getattr(targets, target)
 
     def analysis(self, x: float):
         if x not in self.cache:
@@ -407,6 +410,8 @@ class _Figure:
             return math.nan
         if self.target == "gain":
             return math.log(abs(a.midband_gain)) - math.log(self.goal) if a.midband_gain else -math.inf
+        if self.target in TIME_TARGETS:
+            return self._time_g(a, estimate)
         side = "high" if self.target == "f_high_min" else "low"
         f = getattr(a, f"f_{side}_{'estimate' if estimate else 'exact'}")
         if not _usable(f):
@@ -414,12 +419,22 @@ class _Figure:
             return 50.0 if side == "high" else -50.0
         return math.log(f) - math.log(self.goal)
 
+    def _time_g(self, a, estimate: bool) -> float:
+        try:
+            figure = time_figure(a.step_response(), self.target, estimate)
+        except CircuitError:
+            return math.nan  # unstable here: no step to judge
+        if figure is None:
+            return 50.0  # the edge does not complete in the window: far beyond any maximum
+        # No overshoot at all meets any maximum; a finite floor keeps the root search bracketed.
+        return math.log(max(figure, self.goal * 1e-6)) - math.log(self.goal)
+
     def passes(self, x: float, estimate: bool = False) -> bool:
         a = self.analysis(x)
         if a is None:
             return False
-        if estimate:
-            return self.ok(self.g(x, True))
+        if estimate or self.target in TIME_TARGETS:
+            return self.ok(self.g(x, estimate))
         return meets(self.targets, a.f_high_exact, a.f_low_exact, a.midband_gain)[self.target]
 
     def ok(self, g: float) -> bool:
@@ -427,7 +442,7 @@ class _Figure:
             return False
         if self.target == "f_high_min":
             return g >= 0
-        if self.target == "f_low_max":
+        if self.target == "f_low_max" or self.target in TIME_TARGETS:
             return g <= 0
         return math.log(self.targets.gain_min / self.goal) <= g <= math.log(self.targets.gain_max / self.goal)
 
@@ -472,7 +487,7 @@ def exact_root(doc, knob: Knob, target: str, targets: Targets) -> float | None:
     knob : bandsketch.engine.advise.knobs.Knob
         The value searched (SI units).
     target : str
-        Which target: ``"f_high_min"``, ``"f_low_max"`` or ``"gain"``.
+        Which target: one of :data:`JUDGED`.
     targets : bandsketch.engine.advise.targets.Targets
         The targets, SI units (Hz; the gain in V/V, Ω for a current input).
     """
@@ -501,7 +516,7 @@ def values_that_meet(doc, target: str, targets: Targets, series: str | None = No
     doc : bandsketch.engine.design.document.Document
         The design (not changed: each trial value is analysed on a copy).
     target : str
-        ``"f_high_min"``, ``"f_low_max"`` or ``"gain"``.
+        One of :data:`JUDGED` (a corner, the gain or a time target).
     targets : Targets
         The design's targets (:func:`parse_targets`).
     series : str, optional
@@ -518,7 +533,7 @@ def values_that_meet(doc, target: str, targets: Targets, series: str | None = No
         Fields that can meet the target first, the smallest change first; then the ones
         that cannot.
     """
-    if target not in ("f_high_min", "f_low_max", "gain") or getattr(targets, target) is None:
+    if target not in JUDGED or getattr(targets, target) is None:
         raise ValueError(f"the design has no {TARGET_LABELS[target]} target")
     found = []
     all_knobs = knobs(doc)

@@ -1,26 +1,22 @@
 """Time-domain targets: a longest rise time, a largest overshoot, a longest settling time.
 
-:func:`check_time_targets` judges a step response's exact figures against them and says
-beside each what the estimate would have said (2.2·b1 for the rise and the settling, the pair
-from b1 and b2 for the overshoot). :func:`rise_time_sensitivities` turns the adjoint
+They are targets of the design like its corners and gain (:class:`~.targets.Targets` holds
+them, :func:`~.targets.check_targets` judges them, the advisor searches for them).
+:func:`parse_time_target` reads one text; :func:`check_time_targets` judges a step response's
+exact figures and says beside each what the estimate would have said (2.2·b1 for the rise and
+the settling, the pair from b1 and b2 for the overshoot); :func:`time_figure` is the figure a
+target reads, exact or estimated; :func:`rise_time_sensitivities` turns the adjoint
 sensitivities of the estimated upper corner into those of the estimated rise time
 (t_r = ln 9·b1 = ln 9/(2π·f_H,est), so d ln t_r/d ln x = −d ln f_H,est/d ln x, exactly).
-:func:`value_that_meets_time_target` finds, for one part field, the single value whose exact
-step meets a failing target, by a root find on the full analysis.
 """
 
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
 
-from scipy.optimize import brentq
-
-from ..core.errors import BadValueError, CircuitError
+from ..core.errors import BadValueError
 from ..core.values import format_value, parse_value
-from ..design.netlist import design_to_circuit
-from ..solve.analysis import analyze
-from .targets import SEARCH_DECADES, TargetCheck, field_text, with_field
+from .targetcheck import TargetCheck
 
 TIME_TARGETS = {
     "rise_time_max": ("t_r", "rise_time", "s"),
@@ -28,59 +24,72 @@ TIME_TARGETS = {
     "settling_time_max": ("t_s(1 %)", "settling_time", "s"),
 }
 """Target key -> (symbol, StepResponse attribute, unit). Every one is a maximum."""
-_ROOT_XTOL = 1e-5
 
 
-@dataclass(frozen=True)
-class TimeTargets:
-    """The time-domain targets in SI units; None where not set.
-
-    Attributes
-    ----------
-    rise_time_max : float or None
-        s, the 10–90 % rise time must be at most this.
-    overshoot_max : float or None
-        Fraction of the final value the overshoot must stay below (``"5 %"`` is 0.05).
-    settling_time_max : float or None
-        s, the response must stay within 1 % after at most this.
-    """
-
-    rise_time_max: float | None = None
-    overshoot_max: float | None = None
-    settling_time_max: float | None = None
-
-
-def parse_time_targets(texts) -> TimeTargets:
-    """Read ``{"rise_time_max": "20n", "overshoot_max": "5 %", ...}``; a bad text is a
-    :class:`BadValueError` naming the target.
+def parse_time_target(key: str, text: str) -> float | None:
+    """Read one time target's text; None when it is blank.
 
     Parameters
     ----------
-    texts : Mapping[str, str]
-        Target key -> text: times in s (``"20n"``), overshoot as a per cent (``"5 %"``).
+    key : str
+        One of :data:`TIME_TARGETS`.
+    text : str
+        A time in s (``"20n"``, ``"1.5 us"``), or for the overshoot a per cent (``"5 %"``)
+        or a fraction (``"0.05"``).
+
+    Returns
+    -------
+    float or None
+        s, or the overshoot as a fraction of the final value.
+
+    Raises
+    ------
+    BadValueError
+        The text is not a value above zero; the message names the target and what to write.
     """
-    values = {}
-    for key, text in dict(texts).items():
-        if key not in TIME_TARGETS:
-            raise BadValueError(f"Unknown time target {key!r}: use {', '.join(TIME_TARGETS)}.")
-        if text is None or not str(text).strip():
-            continue
-        raw = str(text).strip()
-        try:
-            value = float(raw[:-1]) / 100 if raw.endswith("%") else parse_value(raw)
-        except ValueError:
-            raise BadValueError(f"The {key} target {raw!r} is not a value: write 20n (s) or 5 %.") from None
-        if not (value > 0 and math.isfinite(value)):
-            raise BadValueError(f"The {key} target {raw!r} must be above zero.")
-        values[key] = value
-    return TimeTargets(**values)
+    raw = (text or "").strip()
+    if not raw:
+        return None
+    what = {"rise_time_max": "longest rise time", "overshoot_max": "largest overshoot",
+            "settling_time_max": "longest settling time"}[key]
+    hint = "a per cent (5 %)" if key == "overshoot_max" else "a time (20n, 1.5 us)"
+    try:
+        value = float(raw[:-1]) / 100 if raw.endswith("%") else parse_value(raw, field=f"target {what}")
+    except (ValueError, BadValueError):
+        raise BadValueError(f"Target {what}: '{raw}' is not a value: write {hint}.",
+                            part=None, field=key, text=raw) from None
+    if not (value > 0 and math.isfinite(value)):
+        raise BadValueError(f"Target {what}: '{raw}' must be above zero: write {hint}.",
+                            part=None, field=key, text=raw)
+    return value
 
 
 def _text(value, unit):
     return f"{100 * value:.1f} %" if unit == "fraction" else format_value(value, "s")
 
 
-def _estimate(step, attr):
+def time_figure(step, key: str, estimate: bool = False) -> float | None:
+    """The figure a time target reads off a step response, exact or estimated.
+
+    Parameters
+    ----------
+    step : bandsketch.engine.solve.step.StepResponse
+        Times in s.
+    key : str
+        One of :data:`TIME_TARGETS`.
+    estimate : bool
+        The estimate's figure (2.2·b1 for the rise and the settling, the pair from b1 and b2
+        for the overshoot) instead of the exact one.
+
+    Returns
+    -------
+    float or None
+        s, or a fraction of the final value for the overshoot; None where the response does
+        not show it (a rise not complete in the window, no estimate).
+    """
+    attr = TIME_TARGETS[key][1]
+    if not estimate:
+        return getattr(step, attr)
     if attr == "rise_time":
         return step.rise_time_estimate
     if attr == "overshoot":
@@ -89,32 +98,44 @@ def _estimate(step, attr):
     return settle.second_order if settle.second_order is not None else settle.first_order
 
 
-def check_time_targets(targets: TimeTargets, step) -> tuple[TargetCheck, ...]:
-    """Each set target judged on the exact figures of ``step`` (a StepResponse).
+def check_time_targets(targets, step) -> tuple[TargetCheck, ...]:
+    """Each time target that is set, judged on the exact figures of ``step``.
 
     Parameters
     ----------
-    targets : TimeTargets
-        Times in s, the overshoot a fraction of the final value.
+    targets : bandsketch.engine.advise.targets.Targets
+        Its ``rise_time_max`` and ``settling_time_max`` in s, ``overshoot_max`` a fraction of
+        the final value; those that are None are not judged.
     step : bandsketch.engine.solve.step.StepResponse
+        The exact step response of the design.
+
+    Returns
+    -------
+    tuple of TargetCheck
+        In the order rise, overshoot, settling. The margin is ``target / exact − 1`` (as
+        for a maximum f_L); None for a response with no overshoot at all.
     """
     out = []
-    for key, (sym, attr, unit) in TIME_TARGETS.items():
+    for key, (sym, _attr, unit) in TIME_TARGETS.items():
         target = getattr(targets, key)
         if target is None:
             continue
-        exact = getattr(step, attr)
+        exact = time_figure(step, key)
         target_text = f"{sym} ≤ {_text(target, unit)}"
         if exact is None:
-            passed, margin = False, None
+            passed, margin = False, -1.0
             head = f"{sym} not reached in the window: {target_text} not shown to be met"
+        elif exact <= 0:
+            passed, margin = True, None
+            head = f"no {sym}: {target_text} met"
         else:
             passed = exact <= target
-            margin = (target - exact) / target
-            head = (f"{sym} = {_text(exact, unit)} ≤ {_text(target, unit)}, {abs(margin) * 100:.0f} % to spare"
-                    if passed else f"{sym} = {_text(exact, unit)}, not ≤ {_text(target, unit)}: "
-                                   f"{abs(margin) * 100:.0f} % over")
-        est = _estimate(step, attr)
+            margin = target / exact - 1
+            # Said as a share of the limit, which reads plainly either side of it.
+            head = (f"{sym} = {_text(exact, unit)} ≤ {_text(target, unit)}, {(1 - exact / target) * 100:.0f} % "
+                    "under the limit" if passed else f"{sym} = {_text(exact, unit)}, not ≤ {_text(target, unit)}: "
+                                                   f"{(exact / target - 1) * 100:.0f} % over")
+        est = time_figure(step, key, estimate=True)
         est_ok = None if est is None else est <= target
         tail = " (no estimate)" if est is None else (
             f" (the estimate, {_text(est, unit)}, " + ("agrees)" if est_ok == passed else
@@ -133,46 +154,3 @@ def rise_time_sensitivities(sens) -> dict[str, float]:
         Normalised sensitivities (d ln f / d ln x, dimensionless).
     """
     return {row.value.label: -row.high_estimate for row in sens.rows if row.high_estimate is not None}
-
-
-def value_that_meets_time_target(doc, part: str, key: str, target_key: str, target: float) -> float | None:
-    """The value of ``part``'s field ``key`` (SI) whose exact step figure equals ``target``
-    (``target_key`` one of :data:`TIME_TARGETS`), searched from 1/100 to 100 times the present
-    value; None when no value in that range reaches it.
-
-    Parameters
-    ----------
-    doc : bandsketch.engine.design.document.Document
-    part : str
-        The part's name.
-    key : str
-        The field's key.
-    target_key : str
-        One of :data:`TIME_TARGETS`.
-    target : float
-        The figure wanted: a time in s, or a fraction of the final value.
-
-    Raises
-    ------
-    CircuitError
-        The design as it is cannot be analysed.
-    """
-    attr = TIME_TARGETS[target_key][1]
-    nominal = parse_value(doc.parts[part].params[key])
-
-    def g(log_x):
-        trial = with_field(doc, part, key, field_text(math.copysign(math.exp(log_x), nominal)))
-        try:
-            value = getattr(analyze(design_to_circuit(trial), bands=dict(trial.band_pins)).step_response(), attr)
-        except CircuitError:
-            return math.nan
-        return math.inf if value is None else math.log(max(value, 1e-300) / target)
-
-    center = math.log(abs(nominal))
-    span = SEARCH_DECADES * math.log(10)
-    grid = [center + span * k / 8 for k in range(-8, 9)]
-    values = [g(v) for v in grid]
-    for (a, ga), (b, gb) in zip(zip(grid, values), zip(grid[1:], values[1:])):
-        if math.isfinite(ga) and math.isfinite(gb) and ga * gb <= 0:
-            return math.copysign(math.exp(brentq(g, a, b, xtol=_ROOT_XTOL)), nominal)
-    return None

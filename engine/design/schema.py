@@ -35,8 +35,10 @@ MAX_WIRE_POINTS = 1000
 """Most points one wire may have."""
 NAME_RE = re.compile(r"[A-Za-z][A-Za-z0-9_]*")
 """What a part or net name may look like (whole, with ``fullmatch``): a letter, then letters, digits or _."""
-TARGET_KEYS = ("f_high_min", "f_low_max", "gain", "gain_tolerance")
-"""Design targets a document may hold (texts, parsed by the engine's value parser)."""
+TARGET_KEYS = ("f_high_min", "f_low_max", "gain", "gain_tolerance",
+               "rise_time_max", "overshoot_max", "settling_time_max")
+"""Design targets a document may hold (texts, parsed by the engine's value parser): the
+corners and the gain, then the step response's longest rise and settling and largest overshoot."""
 
 
 def text_problem(text) -> str | None:

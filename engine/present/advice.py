@@ -37,7 +37,7 @@ def advise_design(doc, only=None, samples: int = YIELD_SAMPLES) -> tuple:
     """
     targets = parse_targets(doc.targets)
     if targets.is_empty():
-        raise ValueError("the design has no targets; set f_H, f_L or gain targets (in the advisor) first")
+        raise ValueError("the design has no targets; set f_H, f_L, gain or time targets (in the advisor) first")
     advice = suggest(doc, targets, only=set(only) if only else None, samples=samples)
     found = None
     if only and 2 <= len(only) <= 3:
@@ -139,6 +139,8 @@ def advice_table(advice, found=None, title: str = "") -> str:
                      f"{format_value(abs(e.gain), unit):>10s} {y:>7s}  {verdict_line(e)}")
     for key in advice.unmet:
         lines.append(f"No single knob in reach meets the {key} target.")
+    notes = {s.spread.note for s in advice.suggestions if s.spread and s.spread.note}
+    lines += [f"Yield{note}." for note in notes]
     if found is not None:
         lines += ["", found.text]
     return "\n".join(lines)

@@ -70,6 +70,8 @@ class StepData:
         The final value in the gain unit (Ω for a current input): ``"−9.1 V/V"``.
     warnings : tuple of str
         The step's plain-language notes.
+    scale : float
+        s per ``time_label`` unit (1e-9 for ``"ns"``).
     """
 
     time: np.ndarray
@@ -81,6 +83,7 @@ class StepData:
     summary: str
     final_text: str
     warnings: tuple[str, ...]
+    scale: float = 1.0
 
     def readout(self, time: float) -> str:
         """The exact response at the sample nearest ``time`` (plot units); empty outside."""
@@ -150,7 +153,53 @@ def step_data(step) -> StepData:
                     first_order=None if step.y_first_order is None else step.y_first_order / final,
                     second_order=None if step.y_second_order is None else step.y_second_order / final,
                     markers=tuple(markers), summary=summary,
-                    final_text=format_value(final, "Ω" if step.gain_unit == "V/A" else "V/V"), warnings=step.warnings)
+                    final_text=format_value(final, "Ω" if step.gain_unit == "V/A" else "V/V"), warnings=step.warnings,
+                    scale=scale)
+
+
+@dataclass(frozen=True)
+class TimeTargetLine:
+    """One time target drawn on the step plot.
+
+    Attributes
+    ----------
+    vertical : bool
+        A time (True: ``position`` in the plot's time unit) or a level (False: a fraction of
+        the final value).
+    position : float
+        Where the line is drawn.
+    text : str
+        Its label, e.g. ``"90 % by 40 ns (t_r ≤ 30 ns)"``.
+    """
+
+    vertical: bool
+    position: float
+    text: str
+
+
+def time_target_lines(targets, step: StepData) -> tuple[TimeTargetLine, ...]:
+    """The design's time targets as lines on the step plot: where the 90 % point must be
+    reached (the 10 % point plus the longest rise), the highest peak allowed, and the time
+    by which the step must have settled.
+
+    Parameters
+    ----------
+    targets : bandsketch.engine.advise.targets.Targets
+        Parsed targets (times in s, the overshoot a fraction).
+    step : StepData
+        The step plot's data, for its time unit and its 10 % point.
+    """
+    out = []
+    start = next((m.time for m in step.markers if m.level == 0.1), None)
+    if targets.rise_time_max is not None and start is not None:
+        end = start + targets.rise_time_max / step.scale
+        out.append(TimeTargetLine(True, end, f"90 % by {_s(end * step.scale)} (t_r ≤ {_s(targets.rise_time_max)})"))
+    if targets.overshoot_max is not None:
+        out.append(TimeTargetLine(False, 1 + targets.overshoot_max, f"overshoot ≤ {_pct(targets.overshoot_max)}"))
+    if targets.settling_time_max is not None:
+        out.append(TimeTargetLine(True, targets.settling_time_max / step.scale,
+                                  f"settled to 1\u00a0% by {_s(targets.settling_time_max)}"))
+    return tuple(out)
 
 
 def _default_pulse_width(analysis, step) -> float:
@@ -171,13 +220,16 @@ def _pulse_data(pulse) -> PulseData:
                      sag_line=(1.0, 1.0 - pulse.sag_estimate), width=pulse.width / scale, summary=summary)
 
 
-def time_responses(analysis):
+def time_responses(analysis, pulse_width: float | None = None):
     """(StepResponse, PulseResponse) of an analysis: the step on the high band's time scale,
-    the pulse of :func:`_default_pulse_width`.
+    the pulse ``pulse_width`` s wide (by default as wide as makes the estimated sag
+    :data:`PULSE_SAG_SHOWN`).
 
     Parameters
     ----------
     analysis : bandsketch.engine.solve.analysis.Analysis
+    pulse_width : float, optional
+        s, the input pulse's width; None for the default.
 
     Raises
     ------
@@ -185,15 +237,17 @@ def time_responses(analysis):
         The stage has no step response (it is unstable).
     """
     step = analysis.step_response()
-    return step, analysis.pulse_response(_default_pulse_width(analysis, step))
+    return step, analysis.pulse_response(pulse_width or _default_pulse_width(analysis, step))
 
 
-def time_views(analysis) -> tuple[StepData, PulseData]:
+def time_views(analysis, pulse_width: float | None = None) -> tuple[StepData, PulseData]:
     """Both time plots' data for an analysis (see :func:`time_responses`).
 
     Parameters
     ----------
     analysis : bandsketch.engine.solve.analysis.Analysis
+    pulse_width : float, optional
+        s, the input pulse's width; None for the default.
     """
-    step, pulse = time_responses(analysis)
+    step, pulse = time_responses(analysis, pulse_width)
     return step_data(step), _pulse_data(pulse)

@@ -306,7 +306,14 @@ class Analysis:
         **options
             Passed to :func:`bandsketch.engine.solve.step.step_response`.
         """
+        if t_stop is None and points == 2000 and not options:
+            return self._default_step
         return step.step_response(self, t_stop, points, **options)
+
+    @cached_property
+    def _default_step(self) -> step.StepResponse:
+        # The view, the targets and the report all read this one window: worked out once.
+        return step.step_response(self, None, 2000)
 
     def pulse_response(self, width: float, t_stop: float | None = None, points: int = 2000,
                        **options) -> step.PulseResponse:

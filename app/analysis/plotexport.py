@@ -1,0 +1,37 @@
+"""Saving a plot canvas as a picture: one way for the Bode plot and the time view alike."""
+
+from __future__ import annotations
+
+import pyqtgraph as pg
+import pyqtgraph.exporters  # noqa: F401  (registers pg.exporters)
+from PySide6.QtCore import QRectF
+from PySide6.QtGui import QPainter
+from PySide6.QtSvg import QSvgGenerator
+
+
+def export_canvas(canvas: pg.GraphicsLayoutWidget, path: str, title: str) -> None:
+    """Save every plot on ``canvas`` as PNG or SVG, chosen by the file's suffix.
+
+    Raises
+    ------
+    ValueError
+        The suffix is neither ``.png`` nor ``.svg``.
+    """
+    suffix = path.lower().rsplit(".", 1)[-1]
+    if suffix == "png":
+        pg.exporters.ImageExporter(canvas.ci).export(path)
+    elif suffix == "svg":
+        # Qt's own SVG writer: pyqtgraph's SVG exporter cannot parse the path data that
+        # Qt 6.12 writes, and fails on every plot with a curve.
+        scene = canvas.scene()
+        rect = canvas.ci.sceneBoundingRect()
+        svg = QSvgGenerator()
+        svg.setFileName(path)
+        svg.setSize(rect.size().toSize())
+        svg.setViewBox(QRectF(0, 0, rect.width(), rect.height()))
+        svg.setTitle(title)
+        painter = QPainter(svg)
+        scene.render(painter, QRectF(0, 0, rect.width(), rect.height()), rect)
+        painter.end()
+    else:
+        raise ValueError(f"{path}: save the plot as .png or .svg")
