@@ -60,7 +60,7 @@ class Yield:
         """What the yield leaves out, as a clause to follow it ("" when it judges every target)."""
         if not self.nominal_only:
             return ""
-        return "; the spread judges the corners and the gain, the time targets at the nominal values only"
+        return "; the spread judges the corners and the gain, and the time targets only at the nominal values"
 
 
 @dataclass(frozen=True)

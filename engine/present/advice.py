@@ -140,7 +140,7 @@ def advice_table(advice, found=None, title: str = "") -> str:
     for key in advice.unmet:
         lines.append(f"No single knob in reach meets the {key} target.")
     notes = {s.spread.note for s in advice.suggestions if s.spread and s.spread.note}
-    lines += [f"Yield{note}." for note in notes]
+    lines += [f"Yield: {note.removeprefix('; ')}." for note in notes]
     if found is not None:
         lines += ["", found.text]
     return "\n".join(lines)
