@@ -18,8 +18,8 @@ import numpy as np
 import pyqtgraph as pg
 from PySide6.QtCore import QObject, QThreadPool, Qt, Signal
 from PySide6.QtGui import QColor
-from PySide6.QtWidgets import (QFormLayout, QGridLayout, QHBoxLayout, QHeaderView, QLabel,
-                               QLineEdit, QProgressBar, QPushButton, QSpinBox, QTableWidget,
+from PySide6.QtWidgets import (QFormLayout, QFrame, QGridLayout, QHBoxLayout, QHeaderView, QLabel,
+                               QLineEdit, QProgressBar, QPushButton, QScrollArea, QSpinBox, QTableWidget,
                                QTableWidgetItem, QTabWidget, QVBoxLayout, QWidget)
 
 from bandsketch.engine.design.document import ChangeKind, Document
@@ -175,7 +175,8 @@ class AdvisorPanel(QWidget):
 
     # -- targets --------------------------------------------------------------------------
     def _targets_tab(self) -> QWidget:
-        # The fields keep a field's width on the left; the verdict reads beside them.
+        # The fields keep a field's width on the left; the verdict reads beside them. The
+        # page scrolls rather than widen the window: seven fields in two columns would.
         w = QWidget()
         row = QHBoxLayout(w)
         fields = QVBoxLayout()
@@ -204,7 +205,11 @@ class AdvisorPanel(QWidget):
         self.verdict_label.setTextFormat(Qt.TextFormat.RichText)
         self.verdict_label.setAlignment(Qt.AlignmentFlag.AlignLeft | Qt.AlignmentFlag.AlignTop)
         row.addWidget(self.verdict_label, 1)
-        return w
+        page = QScrollArea()
+        page.setWidgetResizable(True)
+        page.setFrameShape(QFrame.Shape.NoFrame)
+        page.setWidget(w)
+        return page
 
     def _target_edited(self, key: str) -> None:
         text = self.target_edits[key].text().strip()
