@@ -17,17 +17,19 @@ from bandsketch.engine.network.elements import VCCS, Capacitor, Resistor, VSourc
 s = sympy.Symbol("s")
 
 
-def denominator(circuit, skip=()):
-    """Coefficients [1, b1, b2, ...] of det(G + sC)/det(G), exact, with the sources zeroed.
+def _nodal(circuit, skip=()):
+    """The exact nodal matrix Y(s) of ``circuit`` with its voltage sources as 0-V branches,
+    its node index, and the right-hand side of a unit input source.
 
-    Handles resistors, capacitors, transconductances and voltage sources (0-V branches);
-    capacitors named in ``skip`` are left out.
+    Handles resistors, capacitors, transconductances and voltage sources; capacitors and
+    resistors named in ``skip`` are left out.
     """
     nodes = sorted({n for el in circuit.elements.values() for n in el.nodes} - {"0"})
     vsrc = [el for el in circuit.elements.values() if isinstance(el, VSource)]
     idx = {n: i for i, n in enumerate(nodes)}
     size = len(nodes) + len(vsrc)
     Y = sympy.zeros(size, size)
+    rhs = sympy.zeros(size, 1)
 
     def add(r, c, v):
         if r in idx and c in idx:
@@ -50,6 +52,18 @@ def denominator(circuit, skip=()):
             if node in idx:
                 Y[idx[node], row] += sign
                 Y[row, idx[node]] += sign
+        if el.name == circuit.input_name:
+            rhs[row] = 1
+    return Y, idx, rhs
+
+
+def denominator(circuit, skip=()):
+    """Coefficients [1, b1, b2, ...] of det(G + sC)/det(G), exact, with the sources zeroed.
+
+    Handles resistors, capacitors, transconductances and voltage sources (0-V branches);
+    capacitors named in ``skip`` are left out.
+    """
+    Y, _, _ = _nodal(circuit, skip)
     poly = sympy.Poly(sympy.expand(Y.det(method="berkowitz")), s)
     coeffs = poly.all_coeffs()[::-1]
     return [sympy.Rational(c) / coeffs[0] for c in coeffs]
@@ -147,6 +161,21 @@ def common_gate(rg=4.7e3, cg=1e-6):
     return c
 
 
+def cascode(rb, cb):
+    """Invented "hydrophone cascode": common emitter into common base, upper base bypassed."""
+    c = Circuit("hydrophone cascode (invented)")
+    c.vsource("Vsig", "sig", "0")
+    c.resistor("Rsig", "sig", "b1", 600)
+    c.bjt("Q1", collector="m", base="b1", emitter="0", gm=0.04, rpi=2500, ro=20e3, rb=100, cpi=20e-12, cmu=2e-12)
+    c.bjt("Q2", collector="out", base="b2", emitter="m", gm=0.04, rpi=2500, ro=50e3, rb=100, cpi=20e-12,
+          cmu=2e-12)
+    c.resistor("Rb", "b2", "0", rb)
+    c.capacitor("Cb", "b2", "0", cb)
+    c.resistor("Rc", "out", "0", 5000)
+    c.output("out")
+    return c
+
+
 def tuned_tank(q, f0=10.7e6, inductance=1e-6):
     """Invented "IF strip" stage: a transconductance into a parallel RLC tank of quality ``q``.
 
@@ -193,34 +222,7 @@ def transfer(circuit):
     node's voltage is det(Y with its column replaced by the source vector)/det(Y). For
     scipy.signal (``freqs``); the output must be a node against ground.
     """
-    nodes = sorted({n for el in circuit.elements.values() for n in el.nodes} - {"0"})
-    vsrc = [el for el in circuit.elements.values() if isinstance(el, VSource)]
-    idx = {n: i for i, n in enumerate(nodes)}
-    size = len(nodes) + len(vsrc)
-    Y = sympy.zeros(size, size)
-    rhs = sympy.zeros(size, 1)
-
-    def add(r, c, v):
-        if r in idx and c in idx:
-            Y[idx[r], idx[c]] += v
-
-    for el in circuit.elements.values():
-        if isinstance(el, (Resistor, Capacitor)):
-            y = 1 / sympy.Rational(el.value) if isinstance(el, Resistor) else s * sympy.Rational(el.value)
-            add(el.a, el.a, y), add(el.b, el.b, y), add(el.a, el.b, -y), add(el.b, el.a, -y)
-        elif isinstance(el, VCCS):
-            g = sympy.Rational(el.gm)
-            add(el.p, el.cp, g), add(el.p, el.cn, -g), add(el.n, el.cp, -g), add(el.n, el.cn, g)
-        elif not isinstance(el, VSource):
-            raise TypeError(type(el).__name__)
-    for k, el in enumerate(vsrc):
-        row = len(nodes) + k
-        for node, sign in ((el.p, 1), (el.n, -1)):
-            if node in idx:
-                Y[idx[node], row] += sign
-                Y[row, idx[node]] += sign
-        if el.name == circuit.input_name:
-            rhs[row] = 1
+    Y, idx, rhs = _nodal(circuit)
     out, ground = circuit.output_nodes
     assert ground == "0"
     top = Y.copy()

@@ -5,7 +5,7 @@ All stages are invented scenarios (see bandstages.py).
 
 import pytest
 
-from bandstages import common_emitter, common_source, follower
+from bandstages import cascode, common_emitter, common_source, follower
 from bandsketch.engine import Circuit, CircuitError, analyze
 
 
@@ -87,17 +87,7 @@ def test_follower_with_load_capacitance_warns_of_peaking():
 # no source). The stage is d.c.-coupled, so there is no lower corner at all, and the
 # estimate, which counts the pair for the fraction of 3 dB it costs, finds none either.
 def test_bypassed_cascode_base_is_a_pole_zero_pair():
-    c = Circuit("hydrophone cascode (invented)")
-    c.vsource("Vsig", "sig", "0")
-    c.resistor("Rsig", "sig", "b1", 600)
-    c.bjt("Q1", collector="m", base="b1", emitter="0", gm=0.04, rpi=2500, ro=20e3, rb=100, cpi=20e-12, cmu=2e-12)
-    c.bjt("Q2", collector="out", base="b2", emitter="m", gm=0.04, rpi=2500, ro=50e3, rb=100, cpi=20e-12,
-          cmu=2e-12)
-    c.resistor("Rb1", "b2", "0", 100e3)
-    c.resistor("Rb2", "b2", "0", 100e3)
-    c.capacitor("Cb", "b2", "0", 10e-6)
-    c.resistor("Rc", "out", "0", 5000)
-    c.output("out")
+    c = cascode(50e3, 10e-6)  # the upper base biased from two 100 kΩ resistors, in parallel
     a = analyze(c)
     assert a.capacitors["Cb"].band == "low"
     assert a.f_low_exact is None and a.f_low_ratio is None and a.f_low_estimate is None

@@ -9,7 +9,7 @@ import math
 import pytest
 from scipy.optimize import brentq
 
-from bandstages import common_gate, lower_corner, partly_bypassed_ce
+from bandstages import cascode, common_gate, lower_corner, partly_bypassed_ce
 from bandsketch.engine import Circuit, analyze
 
 
@@ -169,29 +169,14 @@ def test_shunt_peaking(m, extension):
     assert "complex poles" in note and "zero" in note
 
 
-def _cascode(rb, cb):
-    """Invented "hydrophone cascode": common emitter into common base, upper base bypassed."""
-    c = Circuit("hydrophone cascode (invented)")
-    c.vsource("Vsig", "sig", "0")
-    c.resistor("Rsig", "sig", "b1", 600)
-    c.bjt("Q1", collector="m", base="b1", emitter="0", gm=0.04, rpi=2500, ro=20e3, rb=100, cpi=20e-12, cmu=2e-12)
-    c.bjt("Q2", collector="out", base="b2", emitter="m", gm=0.04, rpi=2500, ro=50e3, rb=100, cpi=20e-12,
-          cmu=2e-12)
-    c.resistor("Rb", "b2", "0", rb)
-    c.capacitor("Cb", "b2", "0", cb)
-    c.resistor("Rc", "out", "0", 5000)
-    c.output("out")
-    return c
-
-
 # Whatever the gain test makes of the bypass, it is a short at mid band, so the upper-corner
 # estimate equals the one with the bypass pinned low (the bypass shorted by the user; common
 # practice, no source), with the same high-band warnings.
 @pytest.mark.parametrize("rb", [5e3, 50e3])
 @pytest.mark.parametrize("cb", [100e-9, 10e-6])
 def test_bipolar_cascode_base_bypass_is_shorted(rb, cb):
-    a = analyze(_cascode(rb, cb))
-    pinned = analyze(_cascode(rb, cb), bands={"Cb": "low"})
+    a = analyze(cascode(rb, cb))
+    pinned = analyze(cascode(rb, cb), bands={"Cb": "low"})
     assert a.capacitors["Cb"].state == "short"
     assert a.f_high_estimate == pytest.approx(pinned.f_high_estimate, rel=1e-9)
     assert [w for w in a.warnings if "complex" in w] == [w for w in pinned.warnings if "complex" in w]
