@@ -7,8 +7,8 @@ the window; ``bandsketch samples`` lists the shipped samples;
 ``bandsketch report DESIGN -o FILE.html|FILE.pdf`` writes the design report;
 ``bandsketch spread DESIGN --samples N --seed S [--json]`` runs the tolerance spread;
 ``bandsketch advise DESIGN [--knobs R1,RC] [--json]`` prints the advisor's suggestions. Every DESIGN
-may be ``--sample NAME`` instead. Qt is imported only for the window (and a report's pictures),
-so the analysis runs where no Qt is installed or wanted.
+may be ``--sample NAME`` instead. Qt is imported only for the window and for pictures (a report's
+schematic, a figure as PNG, drawn offscreen), so the analysis runs where no Qt is installed or wanted.
 
 Exit status (:data:`EXIT_CODES`): 0 done, 1 the work failed (an output could not be written),
 2 bad input (arguments, or a design that cannot be read or analysed).
@@ -257,18 +257,27 @@ def _report_path(text: str) -> str:
     return text
 
 
+def _source(args):
+    """The name and SHA-256 of the design file the arguments name, for the report."""
+    from pathlib import Path
+
+    from bandsketch.engine.design.samples import sample_bytes
+    from bandsketch.engine.present.report import design_source
+
+    if args.sample:
+        return design_source(f"{args.sample}.json (a sample shipped with Bandsketch)", sample_bytes(args.sample))
+    return design_source(Path(args.design).name, Path(args.design).read_bytes())
+
+
 def _report(args) -> int:
-    from bandsketch.engine.present.report import write_report
-
     doc = _load(args)
-    if args.output.lower().endswith(".pdf"):
-        from .gui import offscreen_application
-        from .advisor.export import export_report
+    source = _source(args)
+    # The schematic is drawn by the window's scene code, so Qt starts, offscreen, for any report.
+    from .gui import offscreen_application
+    from .advisor.export import export_report
 
-        offscreen_application()
-        export_report(doc, args.output)
-    else:
-        write_report(doc, args.output, samples=args.samples, seed=args.seed)
+    offscreen_application()
+    export_report(doc, args.output, source=source, samples=args.samples, seed=args.seed)
     print(f"bandsketch: wrote {args.output}")
     return EXIT_OK
 

@@ -15,10 +15,8 @@ from bandsketch.engine.design.document import Document
 from bandsketch.engine.core.errors import DesignFileError
 from bandsketch.engine.design.parts import GRID
 from bandsketch.engine.design.samples import list_samples, load_sample
-from bandsketch.engine.present.report import Pictures
 
 from . import dialogs, edits, preferences
-from .advisor.export import scene_png, widget_png
 from .advisor.panel import AdvisorPanel
 from .analysis.panel import install_analysis_views
 from .canvas.controller import CanvasController, Mode
@@ -39,7 +37,6 @@ FRAGMENT_MIME = "application/x-bandsketch-fragment"
 PASTE_STEP = 2 * GRID
 PROPERTIES_WIDTH = 330
 """Pixels the Properties panel starts with: a design's title and notes read in full."""
-REPORT_MARGIN = 2 * GRID
 """Paper left round the drawing in the report's picture of the sheet (scene units)."""
 
 
@@ -126,7 +123,7 @@ class MainWindow(QMainWindow):
         self.advisor = AdvisorPanel(self.doc, self.editor, self.analysis_panel.runner)
         self.advisor.part_hovered.connect(self.scene.point_out)
         self.advisor.applied.connect(self.analysis_panel.compare_with_before)
-        self.advisor.pictures = self.report_pictures
+        self.advisor.source = self.report_source
         self.analysis_tabs.addTab(self.advisor, "Design advisor")
 
     # -- building -------------------------------------------------------------------------
@@ -315,11 +312,18 @@ class MainWindow(QMainWindow):
         self.palette_panel.restyle(self.theme, style)
         self.properties.theme = self.theme
 
-    def report_pictures(self) -> Pictures:
-        """The sheet, the Bode plot and the bars as they look now, for the design report."""
-        rect = self.scene.content_rect().adjusted(-REPORT_MARGIN, -REPORT_MARGIN, REPORT_MARGIN, REPORT_MARGIN)
-        return Pictures(schematic=scene_png(self.scene, rect), bode=widget_png(self.analysis_panel.bode),
-                        bars=widget_png(self.analysis_panel.bars))
+    def report_source(self):
+        """The design file's name and SHA-256 for the report: the file's bytes when the design is
+        saved and unchanged, else those it would be saved with."""
+        from bandsketch.engine.design.designfile import design_text
+        from bandsketch.engine.present.report import design_source
+
+        if self.path and not self.is_dirty():
+            try:
+                return design_source(self.display_name(), Path(self.path).read_bytes())
+            except OSError:
+                pass
+        return design_source(f"{self.display_name()} (unsaved changes)", design_text(self.doc).encode("utf-8"))
 
     # -- editing actions -----------------------------------------------------------------------
     def _selection(self):

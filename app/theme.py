@@ -1,14 +1,16 @@
 """Canvas colours, light and dark, chosen to follow the system palette.
 
-Accents come from the Okabe–Ito set, which stays distinguishable under the common forms of
-colour blindness; the ink and paper tones are our own.
+The colours themselves are :mod:`bandsketch.engine.present.colours` (one source for the window,
+the report and the exported figures); here they become Qt colours.
 """
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, fields
 
 from PySide6.QtGui import QColor, QGuiApplication, QPalette
+
+from bandsketch.engine.present import colours
 
 
 @dataclass(frozen=True)
@@ -31,22 +33,13 @@ class Theme:
     ghost: QColor
 
 
-def _c(hex_: str) -> QColor:
-    return QColor(hex_)
+def _theme(palette: colours.Palette) -> Theme:
+    return Theme(dark=palette.dark, **{f.name: QColor(getattr(palette, f.name))
+                                       for f in fields(Theme) if f.name != "dark"})
 
 
-LIGHT = Theme(
-    dark=False, paper=_c("#fbfaf6"), grid=_c("#c4c1b8"), ink=_c("#1d232b"), wire=_c("#2b5d7c"),
-    label=_c("#1d232b"), value=_c("#4b5563"), selection=_c("#e69f00"), hover=_c("#56b4e9"),
-    problem=_c("#d55e00"), input=_c("#009e73"), band_low=_c("#cc79a7"), band_high=_c("#0072b2"),
-    ghost=_c("#7d8793"),
-)
-DARK = Theme(
-    dark=True, paper=_c("#1c2026"), grid=_c("#3b424c"), ink=_c("#e4e7eb"), wire=_c("#8fbcd6"),
-    label=_c("#e4e7eb"), value=_c("#aab3bd"), selection=_c("#e69f00"), hover=_c("#56b4e9"),
-    problem=_c("#ff7b3a"), input=_c("#2fc497"), band_low=_c("#e08fbe"), band_high=_c("#4aa3e0"),
-    ghost=_c("#8a939e"),
-)
+LIGHT = _theme(colours.LIGHT)
+DARK = _theme(colours.DARK)
 
 
 def system_theme() -> Theme:

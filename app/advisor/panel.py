@@ -159,11 +159,13 @@ class AdvisorPanel(QWidget):
         self.tabs.currentChanged.connect(self._refresh_sensitivities)
         # The report covers every page, so its button sits by the tabs rather than on one.
         self.report_button = QPushButton("Export report…")
-        self.report_button.setToolTip("Write the design report, with the sheet and plots, as HTML or PDF")
+        self.report_button.setToolTip("Write the design report, with the sheet and plots, as HTML or PDF "
+                                      "(the same document bandsketch report writes)")
         self.report_button.clicked.connect(self._ask_report)
         self.tabs.setCornerWidget(self.report_button)
-        # The window sets this to a callable giving bandsketch.engine.present.report.Pictures of the sheet and plots.
-        self.pictures = None
+        # The window sets this to a callable giving the design file's
+        # bandsketch.engine.present.report.DesignSource (its name and hash).
+        self.source = None
         layout = QVBoxLayout(self)
         layout.setContentsMargins(0, 0, 0, 0)
         layout.addWidget(self.tabs)
@@ -602,8 +604,8 @@ class AdvisorPanel(QWidget):
         from .export import export_report
 
         try:
-            export_report(self.doc.copy(), path, self.pictures() if self.pictures else None, self.spread)
-        except (CircuitError, OSError) as exc:
+            export_report(self.doc.copy(), path, source=self.source() if self.source else None, spread=self.spread)
+        except (CircuitError, OSError, ValueError) as exc:
             message = f"The report was not written: {getattr(exc, 'message', None) or exc}"
         else:
             message = f"Report written to {path}"

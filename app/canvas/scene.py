@@ -54,6 +54,8 @@ class SchematicScene(QGraphicsScene):
         self._accents: dict[str, str | None] = {}
         self._pointed = ""
         self.problems: list = []
+        # A picture of the design for paper (the report, an export) has no grid dots.
+        self.grid_shown = True
         doc.changed.connect(self._on_change)
         doc.edited.connect(self.refresh_problems)
         self._rebuild()
@@ -172,6 +174,8 @@ class SchematicScene(QGraphicsScene):
 
     def drawBackground(self, painter, rect: QRectF) -> None:
         painter.fillRect(rect, self.theme.paper)
+        if not self.grid_shown:
+            return
         scale = painter.worldTransform().m11()
         step = GRID if scale * GRID >= 9 else GRID * 5
         if scale * step < 9:

@@ -310,10 +310,7 @@ def save_design(doc: Document, path) -> None:
     except DesignFileError as exc:
         raise DesignFileError(f"{path.name}: could not be saved ({exc}); the design is still open "
                               "and unsaved") from None
-    text = json.dumps(content, indent=1, ensure_ascii=False) + "\n"
-    if len(text) > MAX_FILE_BYTES // 4:
-        # Indented, each coordinate takes a line: a big design could outgrow what load_design reads.
-        text = json.dumps(content, separators=(",", ":"), ensure_ascii=False) + "\n"
+    text = _file_text(content)
     try:
         data = text.encode("utf-8")
     except UnicodeEncodeError as exc:
@@ -343,6 +340,24 @@ def save_design(doc: Document, path) -> None:
                 os.unlink(tmp)
             except OSError:
                 pass
+
+
+def design_text(doc: Document) -> str:
+    """The text :func:`save_design` writes for ``doc`` (what a report hashes for a design not saved).
+
+    Parameters
+    ----------
+    doc : bandsketch.engine.design.document.Document
+    """
+    return _file_text(document_to_dict(doc))
+
+
+def _file_text(content: dict) -> str:
+    text = json.dumps(content, indent=1, ensure_ascii=False) + "\n"
+    if len(text) > MAX_FILE_BYTES // 4:
+        # Indented, each coordinate takes a line: a big design could outgrow what load_design reads.
+        text = json.dumps(content, separators=(",", ":"), ensure_ascii=False) + "\n"
+    return text
 
 
 def _mode_for(path: Path) -> int:

@@ -70,9 +70,29 @@ def load_sample(name: str) -> Document:
     DesignFileError
         No sample has that name; the message lists the names there are.
     """
+    with resources.as_file(_file(name)) as path:
+        return load_design(path)
+
+
+def sample_bytes(name: str) -> bytes:
+    """The file of the sample called ``name``, as shipped (what a report of it hashes).
+
+    Parameters
+    ----------
+    name : str
+        The sample's name.
+
+    Raises
+    ------
+    DesignFileError
+        No sample has that name.
+    """
+    return _file(name).read_bytes()
+
+
+def _file(name: str):
     names = [f.name[:-5] for f in _files()]
     if name not in names:
         raise DesignFileError(f"no sample is called {name!r}; the samples are {', '.join(names)} "
                               "(bandsketch samples lists them)")
-    with resources.as_file(resources.files(_PACKAGE) / f"{name}.json") as path:
-        return load_design(path)
+    return resources.files(_PACKAGE) / f"{name}.json"

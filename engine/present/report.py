@@ -1,19 +1,25 @@
-"""The design report: one self-contained HTML file a reviewer can open anywhere.
+"""The design report: one document a reviewer can open anywhere, the same however it is made.
 
-It holds the schematic picture and the plots (PNG images the app renders, embedded as
-base64; without them — from the command line, with no Qt — the Bode plot and the
-time-constant bars are drawn here as inline SVG), every table the app shows (elements;
-bands and reasons; R, τ and shares; corners estimated and exact; sensitivities; the value
-that meets each failing target; spread and yield), the warnings, the method with its
-references, and the caution that these are design estimates. Every number is taken from
-the engine's results and their plot data; nothing here computes a figure of its own.
+The command line and the window build it here, from the design alone (never from what the
+window has selected), with the same sections in the same order: the design file's name and a
+SHA-256 of its contents, the tool's version, the schematic, the verdict, targets and the
+advisor's chosen change, the Bode plot, the time-constant bars with the bands and time
+constants, corners, the bias table, the step response, sensitivities, spread and yield,
+warnings, the method with its references, and the caution that these are design estimates.
+
+Every picture is SVG: the plots drawn by :mod:`bandsketch.engine.present.svgfigures`, the
+schematic given by the app (Qt draws the sheet; the engine has no Qt). The HTML holds them
+inline; a PDF writer passes ``figure_html`` to put its own rendering of each in their place.
+Every number is taken from the engine's results and their plot data; nothing here computes a
+figure of its own.
 """
 
 from __future__ import annotations
 
-import base64
+import hashlib
 import html
 import math
+from collections.abc import Callable
 from dataclasses import dataclass
 from datetime import date
 
@@ -24,7 +30,10 @@ from ..solve.analysis import analyze
 from ..design.netlist import design_to_circuit
 from ..advise.partvalues import part_values
 from .plotdata import bar_data, bode_data, verdict_data
+from .reportfigure import ReportFigure, inline_svg
 from .reportstep import step_section
+from .svgfigures import bars_svg, bode_svg
+from ..core.versions import version_line
 from ..advise.sensitivity import FIGURE_TITLES, sensitivities
 from ..advise.suggest import suggest, verdict_line
 from ..advise.targets import check_targets, parse_targets
@@ -60,6 +69,9 @@ REFERENCES = (
     "Circuits”, <i>IEEE Trans. Circuit Theory</i> CT-20(1), 1973.",
     "C.-W. Ho, A. E. Ruehli, P. A. Brennan, “The Modified Nodal Approach to Network Analysis”, "
     "<i>IEEE Trans. Circuits and Systems</i> CAS-22(6), 1975.",
+    "A. Hajimiri, “Generalized Time- and Transfer-Constant Circuit Analysis”, <i>IEEE Trans. Circuits and "
+    "Systems I</i> 57(6), 2010.",
+    "A. S. Sedra, K. C. Smith, <i>Microelectronic Circuits</i>, Oxford University Press.",
     "IEC 60063:2015, Preferred number series for resistors and capacitors.",
 )
 
@@ -67,43 +79,50 @@ SPREAD_SAMPLES = 10_000
 """Monte Carlo samples a report runs unless told otherwise."""
 
 _STYLE = """
-body{font-family:system-ui,-apple-system,"Segoe UI",sans-serif;max-width:1000px;margin:2em auto;
-color:#1d2430;line-height:1.45;padding:0 1em}
-h1{font-size:1.6em;margin-bottom:.2em}h2{font-size:1.2em;margin-top:1.8em;border-bottom:1px solid #ccd3dd}
-table{border-collapse:collapse;margin:.6em 0;font-size:.92em}
-th,td{border:1px solid #ccd3dd;padding:.25em .6em;text-align:left;vertical-align:top}
-th{background:#eef2f7}td.n{text-align:right;font-variant-numeric:tabular-nums}
-.caution{background:#fff4d6;border-left:4px solid #d49a00;padding:.6em 1em}
-.pass{color:#1a7f37;font-weight:600}.fail{color:#b3261e;font-weight:600}
-.small{font-size:.85em;color:#4a5566}figure{margin:1em 0}img{max-width:100%}
+body{font-family:"DejaVu Sans",system-ui,sans-serif;font-size:8pt;max-width:190mm;margin:1em auto;
+color:#1d2430;line-height:115%;padding:0 1em}
+h1{font-size:14pt;margin:0 0 3pt 0}h2{font-size:11pt;margin:9pt 0 2pt 0;color:#1d2430}
+h3{font-size:9pt;margin:6pt 0 2pt 0}p{margin:2pt 0}ul,ol{margin-top:1pt;margin-bottom:1pt}
+table{border-collapse:collapse;margin:2pt 0;font-size:7pt}
+th,td{border:1px solid #ccd3dd;padding:1pt 4pt;text-align:left;vertical-align:top}
+th{background:#eef2f7}td.n{text-align:right}
+.caution{background:#fff4d6;padding:3pt 6pt}
+.pass{color:#1a7f37;font-weight:bold}.fail{color:#b3261e;font-weight:bold}
+.small{font-size:7.5pt;color:#4a5566}figure{margin:4pt 0}svg{max-width:100%;height:auto}
 """
 
 
 @dataclass(frozen=True)
-class Pictures:
-    """Pictures the app renders for the report, as PNG bytes (None: draw it here as SVG).
+class DesignSource:
+    """Which design file a report is of.
 
     Attributes
     ----------
-    schematic : bytes or None
-        The sheet.
-    bode : bytes or None
-        The Bode plot.
-    bars : bytes or None
-        The time-constant bars.
+    name : str
+        The file's name as the reader knows it (``"ce_stage.json"``, or a shipped sample's).
+    sha256 : str
+        The SHA-256 of the file's bytes, hexadecimal: two reports of the same file match.
     """
 
-    schematic: bytes | None = None
-    bode: bytes | None = None
-    bars: bytes | None = None
+    name: str
+    sha256: str
+
+
+def design_source(name: str, content: bytes) -> DesignSource:
+    """The :class:`DesignSource` of a design file called ``name`` that holds ``content``.
+
+    Parameters
+    ----------
+    name : str
+        The file's name.
+    content : bytes
+        Its bytes, as on disk.
+    """
+    return DesignSource(name, hashlib.sha256(content).hexdigest())
 
 
 def _e(text) -> str:
     return html.escape(str(text))
-
-
-def _png(data: bytes, alt: str) -> str:
-    return f'<img alt="{_e(alt)}" src="data:image/png;base64,{base64.b64encode(data).decode("ascii")}">'
 
 
 def _table(head, rows, numeric=()) -> str:
@@ -126,92 +145,17 @@ def _signed(x) -> str:
     return "—" if x is None else f"{x:+.3f}"
 
 
-# -- inline SVG (plain Python; the data come from bandsketch.engine.present.plotdata) -------------------------------
-_W, _H, _PAD_L, _PAD_R, _PAD_T, _PAD_B = 900, 340, 60, 20, 20, 40
-
-
-def _bode_svg(bode) -> str:
-    f, mag = bode.exact.freq_hz, bode.exact.magnitude_db
-    finite = mag[np.isfinite(mag)]
-    top = math.ceil((bode.midband_db + 10) / 10) * 10
-    bottom = max(math.floor((finite.min() if finite.size else top - 60) / 10) * 10, top - 80)
-    lx0, lx1 = math.log10(f[0]), math.log10(f[-1])
-
-    def x(fr):
-        return _PAD_L + (math.log10(fr) - lx0) / (lx1 - lx0) * (_W - _PAD_L - _PAD_R)
-
-    def y(db):
-        db = min(max(db, bottom), top)
-        return _PAD_T + (top - db) / (top - bottom) * (_H - _PAD_T - _PAD_B)
-
-    def path(curve, colour, dash=""):
-        pts = " ".join(f"{x(a):.1f},{y(b):.1f}" for a, b in zip(curve.freq_hz, curve.magnitude_db) if np.isfinite(b))
-        extra = f' stroke-dasharray="{dash}"' if dash else ""
-        return f'<polyline fill="none" stroke="{colour}" stroke-width="2"{extra} points="{pts}"/>'
-
-    parts = [f'<svg xmlns="http://www.w3.org/2000/svg" width="{_W}" height="{_H}" font-size="11" '
-             f'font-family="sans-serif" role="img" aria-label="Bode magnitude">']
-    for dec in range(math.ceil(lx0), math.floor(lx1) + 1):
-        xx = x(10 ** dec)
-        parts.append(f'<line x1="{xx:.1f}" y1="{_PAD_T}" x2="{xx:.1f}" y2="{_H - _PAD_B}" stroke="#dde3ea"/>')
-        parts.append(f'<text x="{xx:.1f}" y="{_H - _PAD_B + 14}" text-anchor="middle">{_e(format_value(10 ** dec, "Hz"))}</text>')
-    for db in range(int(bottom), int(top) + 1, 10):
-        yy = y(db)
-        parts.append(f'<line x1="{_PAD_L}" y1="{yy:.1f}" x2="{_W - _PAD_R}" y2="{yy:.1f}" stroke="#dde3ea"/>')
-        parts.append(f'<text x="{_PAD_L - 6}" y="{yy + 4:.1f}" text-anchor="end">{db}</text>')
-    parts.append(f'<text x="14" y="{_H / 2:.0f}" transform="rotate(-90 14 {_H / 2:.0f})" text-anchor="middle">'
-                 f'|H| ({_e(db_unit(bode.gain_unit))})</text>')
-    parts.append(path(bode.exact, "#1f5fbf"))
-    for est in (bode.high_estimate, bode.low_estimate):
-        if est is not None:
-            parts.append(path(est, "#d9822b", "6 4"))
-    for m in bode.markers:
-        xx, yy = x(m.freq_hz), y(m.level_db)
-        colour = "#d9822b" if m.estimated else "#1f5fbf"
-        parts.append(f'<circle cx="{xx:.1f}" cy="{yy:.1f}" r="4" fill="{colour}"/>')
-        dy = 16 if m.estimated else -8
-        parts.append(f'<text x="{xx + 6:.1f}" y="{yy + dy:.1f}" fill="{colour}">{_e(m.text)}</text>')
-    parts.append(f'<text x="{_W - _PAD_R}" y="{_PAD_T + 12}" text-anchor="end">'
-                 '<tspan fill="#1f5fbf">— exact</tspan>  <tspan fill="#d9822b">- - estimate</tspan></text>')
-    parts.append("</svg>")
-    return "\n".join(parts)
-
-
-def _bars_svg(bars) -> str:
-    rows = [(g, r) for g in bars.groups for r in g.rows]
-    row_h, label_w, bar_w = 22, 160, 420
-    height = 20 + len(rows) * row_h + len(bars.groups) * 26
-    parts = [f'<svg xmlns="http://www.w3.org/2000/svg" width="{label_w + bar_w + 320}" height="{height}" '
-             f'font-size="12" font-family="sans-serif" role="img" aria-label="Time-constant bars">']
-    yy = 16
-    for g in bars.groups:
-        parts.append(f'<text x="0" y="{yy}" font-weight="bold">{_e(g.title)} — {_e(g.total_text)}</text>')
-        yy += 10
-        for r in g.rows:
-            colour = "#1f5fbf" if g.band == Band.HIGH else "#2f9e6e" if g.band == Band.LOW else "#9aa5b1"
-            w = max(1.0, r.share * bar_w)
-            parts.append(f'<text x="0" y="{yy + 14}">{_e(r.name)}{" (pinned)" if r.pinned else ""}</text>')
-            parts.append(f'<rect x="{label_w}" y="{yy + 3}" width="{w:.1f}" height="{row_h - 6}" fill="{colour}"/>')
-            parts.append(f'<text x="{label_w + w + 6:.1f}" y="{yy + 14}">{_e(r.value_text)}  {_e(r.share_text)}</text>')
-            yy += row_h
-        yy += 16
-    parts.append("</svg>")
-    return "\n".join(parts)
-
-
 # -- the sections -------------------------------------------------------------------------------
-def _elements_table(circuit) -> str:
-    rows = [(pv.part, pv.label, pv.element, _fmt(pv.nominal, pv.unit, 4)) for pv in part_values(circuit)]
-    return _table(("part", "value", "element", "nominal"), rows, numeric=(3,))
-
-
 def _bands_table(analysis) -> str:
     rows = []
     for r in analysis.elements.values():
         share = "—" if r.band == Band.NEUTRAL else f"{100 * r.share:.1f} %"
-        rows.append((r.name, r.band + (" (pinned)" if r.pinned else ""), _fmt(r.resistance, "Ω"),
-                     _fmt(r.time_constant, "s"), share, f"{r.reason}; {r.state_reason}"))
-    return _table(("element", "band", "R seen", "τ", "share", "why"), rows, numeric=(2, 3, 4))
+        state = "shorted" if r.state == "short" else "open"
+        rows.append((r.name, r.band + (" (pinned)" if r.pinned else ""), state, _fmt(r.resistance, "Ω"),
+                     _fmt(r.time_constant, "s"), share,
+                     f"{_fmt(r.midband_reactance, 'Ω')} against {_fmt(r.midband_resistance, 'Ω')}", r.reason))
+    return _table(("element", "band", "mid band", "R seen", "τ", "share", "|Z| at f_m against R", "why"), rows,
+                  numeric=(3, 4, 5, 6))
 
 
 def _corners_table(analysis) -> str:
@@ -241,7 +185,7 @@ def _sensitivity_table(sens) -> str:
             + "".join(f'<p class="small">{_e(note)}</p>' for note in sens.notes.values()))
 
 
-REPORT_SUGGESTIONS = 8
+REPORT_SUGGESTIONS = 4
 """Suggestion rows the report lists (the best first); the app and the command line show all."""
 
 
@@ -303,8 +247,8 @@ def _spread_section(spread, gain_unit) -> str:
     if spread.yields:
         names = {"f_high_min": "minimum f_H", "f_low_max": "maximum f_L", "gain": "gain window",
                  "all": "every target"}
-        out.append(_table(("target", "yield"), [(names[k], f"{100 * v:.1f} %") for k, v in spread.yields.items()],
-                          numeric=(1,)))
+        out.append("<p><b>Yield:</b> " + "; ".join(f"{names[k]} {100 * v:.1f} %" for k, v in spread.yields.items())
+                   + ".</p>")
     wc_rows = []
     for w in spread.worst_cases:
         unit = "Hz" if w.figure != "gain" else gain_unit
@@ -315,33 +259,58 @@ def _spread_section(spread, gain_unit) -> str:
     out.append("<p>Worst case over the vertices of the tolerance box:</p>")
     out.append(_table(("figure", "extreme", "value", "parts at the edge of their band (largest first)"),
                       wc_rows, numeric=(2,)))
-    out.append(_table(("part value", "nominal", "tolerance", "where the tolerance comes from"),
-                      [(t.value.label, _fmt(t.value.nominal, t.value.unit, 4), f"±{100 * t.tolerance:g} %", t.source)
-                       for t in spread.tolerances], numeric=(1, 2)))
+    # Parts that share a tolerance share its reason: one row per reason keeps the table short.
+    by_source: dict[str, list[str]] = {}
+    for t in spread.tolerances:
+        by_source.setdefault(t.source, []).append(f"{t.value.label} {_fmt(t.value.nominal, t.value.unit, 4)}")
+    out.append(_table(("part values (nominal)", "tolerance, and where it comes from"),
+                      [(", ".join(parts), source) for source, parts in by_source.items()]))
     return "\n".join(out)
 
 
-def build_report(doc, *, pictures: Pictures | None = None, samples: int = SPREAD_SAMPLES, seed: int = 1,
-                 spread=None) -> str:
+SCHEMATIC_MM, PLOT_MM, BARS_MM = 120, 150, 150
+"""Printed widths of the schematic, the Bode plot and the bars, mm."""
+
+
+def _meta(source: DesignSource | None) -> str:
+    made = f"Design report, {date.today().isoformat()}, by {version_line()}."
+    if source is None:
+        return f'<p class="small">{_e(made)} No design file: the design was given as a document.</p>'
+    return (f'<p class="small">{_e(made)}<br>Design file <b>{_e(source.name)}</b>, '
+            f"SHA-256 <code>{_e(source.sha256)}</code>.</p>")
+
+
+def _section(title: str, *content: str) -> str:
+    return "\n".join((f"<h2>{_e(title)}</h2>", *content))
+
+
+def build_report(doc, *, schematic_svg: str | None = None, source: DesignSource | None = None,
+                 samples: int = SPREAD_SAMPLES, seed: int = 1, spread=None,
+                 figure_html: Callable[[ReportFigure], str] = inline_svg) -> str:
     """The design report of ``doc`` as one HTML text.
 
     Parameters
     ----------
     doc : bandsketch.engine.design.document.Document
-    pictures : Pictures, optional
-        PNGs rendered by the app; missing plots are drawn as inline SVG, a missing schematic
-        is noted.
+        The design (the report shows it as drawn, nothing else).
+    schematic_svg : str, optional
+        The sheet as SVG, drawn by the app's scene code; without it the report says that it
+        has no schematic.
+    source : DesignSource, optional
+        The design file's name and hash (:func:`design_source`).
     samples, seed : int
         Monte Carlo size and seed (ignored when ``spread`` is given).
     spread : bandsketch.engine.advise.tolerance.Spread, optional
         A spread the app already ran (with the designer's tolerances), to report as is.
+    figure_html : callable, optional
+        ``figure_html(ReportFigure) -> str``, the HTML that stands for each picture:
+        :func:`inline_svg` (the default) for a self-contained HTML file.
 
     Returns
     -------
     str
         A complete HTML document with no external references.
     """
-    pictures = pictures or Pictures()
     circuit = design_to_circuit(doc)
     analysis = analyze(circuit, bands=dict(doc.band_pins))
     targets = parse_targets(doc.targets)
@@ -349,35 +318,33 @@ def build_report(doc, *, pictures: Pictures | None = None, samples: int = SPREAD
     sens = sensitivities(circuit, analysis)
     spread = spread if spread is not None else spread_of_design(doc, samples, seed)
     title = doc.title or "Untitled design"
-    body = [f"<h1>{_e(title)}</h1>",
-            f'<p class="small">Design report, {date.today().isoformat()}.</p>',
+    schematic = (figure_html(ReportFigure("schematic", "Schematic", schematic_svg, SCHEMATIC_MM))
+                 if schematic_svg else '<p class="small">No schematic: the report was built without the '
+                                       "sheet's drawing.</p>")
+    body = [f"<h1>{_e(title)}</h1>", _meta(source),
             f"<p>{_e(doc.description)}</p>" if doc.description else "",
             f'<p class="caution"><b>Caution.</b> {_e(CAUTION)}</p>',
-            "<h2>Schematic</h2>",
-            _png(pictures.schematic, "schematic") if pictures.schematic else
-            '<p class="small">No schematic picture: export the report from the app to include the sheet.</p>',
-            "<h2>Verdict</h2>",
-            "<ul>" + "".join(f"<li>{_e(t)}</li>" for t in (verdict.gain_text, verdict.high_text, verdict.low_text,
-                                                             verdict.dominant_text)) + "</ul>",
-            "<h2>Targets</h2>", _targets_section(targets, analysis, doc),
-            "<h2>Bode plot</h2>",
-            f"<figure>{_png(pictures.bode, 'Bode plot') if pictures.bode else _bode_svg(bode_data(analysis))}</figure>",
-            "<h2>Time constants</h2>",
-            f"<figure>{_png(pictures.bars, 'time-constant bars') if pictures.bars else _bars_svg(bar_data(analysis))}</figure>",
-            "<h2>Corners</h2>", _corners_table(analysis),
-            "<h2>Step response</h2>", step_section(analysis),
-            "<h2>Bands, resistances and time constants</h2>", _bands_table(analysis),
-            "<h2>Elements</h2>", _elements_table(circuit),
-            *(("<h2>Bias (DC operating point)</h2>",
-               _table(BIAS_HEADINGS, bias_rows(analysis.operating_point), numeric=range(2, 7)))
-              if analysis.operating_point is not None else ()),
-            "<h2>Sensitivities</h2>", _sensitivity_table(sens),
-            "<h2>Tolerance spread and yield</h2>", _spread_section(spread, analysis.gain_unit),
-            "<h2>Warnings</h2>",
-            ("<ul>" + "".join(f"<li>{_e(w)}</li>" for w in verdict.warnings) + "</ul>") if verdict.warnings
-            else "<p>None.</p>",
-            "<h2>Method</h2>", f"<p>{METHOD}</p>",
-            "<h3>References</h3>", "<ol>" + "".join(f"<li>{r}</li>" for r in REFERENCES) + "</ol>",
+            _section("Schematic", schematic),
+            _section("Bode plot", figure_html(ReportFigure("bode", "Bode plot", bode_svg(bode_data(analysis)),
+                                                           PLOT_MM))),
+            _section("Verdict", "<ul>" + "".join(f"<li>{_e(t)}</li>" for t in (
+                verdict.gain_text, verdict.high_text, verdict.low_text, verdict.dominant_text)) + "</ul>"),
+            _section("Targets", _targets_section(targets, analysis, doc)),
+            _section("Corners", _corners_table(analysis)),
+            _section("Bands and time constants",
+                     figure_html(ReportFigure("bars", "Time-constant bars", bars_svg(bar_data(analysis)), BARS_MM)),
+                     _bands_table(analysis)),
+            _section("Bias (DC operating point)",
+                     _table(BIAS_HEADINGS, bias_rows(analysis.operating_point), numeric=range(2, 7))
+                     if analysis.operating_point is not None else "<p>The design has no bias network: "
+                     "its small-signal values are given on the sheet.</p>"),
+            _section("Sensitivities", _sensitivity_table(sens)),
+            _section("Step response", step_section(analysis, figure_html)),
+            _section("Tolerance spread and yield", _spread_section(spread, analysis.gain_unit)),
+            _section("Warnings", ("<ul>" + "".join(f"<li>{_e(w)}</li>" for w in verdict.warnings) + "</ul>")
+                     if verdict.warnings else "<p>None.</p>"),
+            _section("Method", f'<p class="small">{METHOD}</p>', "<h3>References</h3>",
+                     '<ol class="small">' + "".join(f"<li>{r}</li>" for r in REFERENCES) + "</ol>"),
             f'<p class="caution">{_e(CAUTION)}</p>']
     return ("<!DOCTYPE html>\n<html lang=\"en\"><head><meta charset=\"utf-8\">"
             f"<title>{_e(title)} — design report</title><style>{_STYLE}</style></head><body>\n"
@@ -385,7 +352,7 @@ def build_report(doc, *, pictures: Pictures | None = None, samples: int = SPREAD
 
 
 def write_report(doc, path, **kw) -> None:
-    """Write :func:`build_report` of ``doc`` to ``path`` (UTF-8); keywords as for it.
+    """Write :func:`build_report` of ``doc`` to ``path`` as HTML (UTF-8); keywords as for it.
 
     Parameters
     ----------

@@ -165,9 +165,8 @@ def test_report_html_and_pdf(panel, tmp_path):
     assert panel.export_report(str(html_path)).startswith("Report written")
     html = html_path.read_text(encoding="utf-8")
     assert "design estimates" in html
-    # The sheet, the Bode plot and the bars, as the window draws them.
-    for alt in ("schematic", "Bode plot", "time-constant bars"):
-        assert f'<img alt="{alt}" src="data:image/png;base64,' in html
+    # The sheet, the Bode plot, the bars and the step response, drawn as vectors.
+    assert html.count("<svg") == 4 and "data:image/png" not in html
     assert panel.export_report(str(pdf_path)).startswith("Report written")
     assert pdf_path.read_bytes().startswith(b"%PDF")
 

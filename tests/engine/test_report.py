@@ -16,7 +16,7 @@ from bandsketch.engine import analyze
 from bandsketch.engine.design.designfile import load_design
 from bandsketch.engine.design.netlist import design_to_circuit
 from bandsketch.engine.present.plotdata import bar_data, bode_data, verdict_data
-from bandsketch.engine.present.report import CAUTION, REFERENCES, Pictures, build_report, write_report
+from bandsketch.engine.present.report import CAUTION, REFERENCES, build_report, design_source, write_report
 from bandsketch.engine.advise.sensitivity import sensitivities
 from bandsketch.engine.advise.targets import check_targets, parse_targets
 from bandsketch.engine.advise.tolerance import spread_of_design
@@ -68,14 +68,23 @@ def test_self_contained_with_method_and_caution(design):
     assert report.count("<svg") == 3  # Bode plot, bars and step response drawn inline without Qt
 
 
-def test_app_pictures_are_embedded(tmp_path):
+def test_the_schematic_given_is_inline_and_the_file_is_named_with_its_hash(tmp_path):
     doc = load_design(SAMPLES / "ce_hydrophone_preamp.json")
     for key in list(doc.targets):
         doc.set_target(key, None)
-    png = b"\x89PNG\r\n\x1a\nfake"
+    sheet = '<svg xmlns="http://www.w3.org/2000/svg" width="10" height="10" viewBox="0 0 10 10"><title>sheet</title></svg>'
+    content = (SAMPLES / "ce_hydrophone_preamp.json").read_bytes()
     path = tmp_path / "r.html"
-    write_report(doc, path, pictures=Pictures(schematic=png, bode=png), samples=200)
+    write_report(doc, path, schematic_svg=sheet, source=design_source("ce.json", content), samples=200)
     text = path.read_text(encoding="utf-8")
-    assert text.count("data:image/png;base64,") == 2
-    assert text.count("<svg") == 2  # the bars, which no picture was given for, and the step response
+    assert sheet in text and text.count("<svg") == 4  # the sheet, the Bode plot, the bars, the step response
     assert "The design sets no targets." in text
+    # The hash a reader can check with sha256sum (hashlib is the reference).
+    import hashlib
+    assert "ce.json" in text and hashlib.sha256(content).hexdigest() in text
+    assert "bandsketch 0.1.0" in text  # the tool's version
+
+
+def test_without_a_schematic_the_report_says_so(design):
+    _, _, report = design
+    assert "No schematic" in report
