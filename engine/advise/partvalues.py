@@ -225,7 +225,7 @@ def parametric_system(circuit, names, states=None) -> ParametricSystem:
     ParametricSystem
     """
     base = build_system(circuit, states)
-    G0, C0 = base.G.toarray(), base.C.toarray()
+    G0, C0 = base.dense_G, base.dense_C
     k, n = len(names), base.size
     Gp, Cp = np.zeros((k, n, n)), np.zeros((k, n, n))
     coefs = np.zeros(k)
@@ -235,8 +235,8 @@ def parametric_system(circuit, names, states=None) -> ParametricSystem:
         # Doubling is exact in binary, so the difference is the pattern to rounding of the sums.
         p1 = 2.0 * p0 if p0 != 0 else 1.0
         other = build_system(circuit.with_elements({name: with_value(el, _value_for_coefficient(el, p1))}), states)
-        Gp[i] = (other.G.toarray() - G0) / (p1 - p0)
-        Cp[i] = (other.C.toarray() - C0) / (p1 - p0)
+        Gp[i] = (other.dense_G - G0) / (p1 - p0)
+        Cp[i] = (other.dense_C - C0) / (p1 - p0)
         coefs[i] = p0
     G_rest = G0 - np.einsum("k,kij->ij", coefs, Gp)
     C_rest = C0 - np.einsum("k,kij->ij", coefs, Cp)

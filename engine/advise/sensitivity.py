@@ -119,8 +119,8 @@ def _pattern_terms(patterns: np.ndarray, M: np.ndarray) -> np.ndarray:
 
 def _port_solves(system, elements):
     """Port columns E, weights D, and the direct and adjoint solves G⁻¹E, G⁻ᵀE."""
-    E, D = port_columns(system, elements).toarray(), port_weights(elements)
-    G = system.G.toarray()
+    E, D = port_columns(system, elements, dense=True), port_weights(elements)
+    G = system.dense_G
     return E, D, np.linalg.solve(G, E), np.linalg.solve(G.T, E)
 
 
@@ -183,7 +183,7 @@ def _low_estimate(circuit, states, low, names, coef, sign):
     for k, n in enumerate(names):
         if n in at:
             d_ln_p[k, at[n]] -= 1.0
-    G, b, c = system.G.toarray(), system.b.astype(float), system.c.astype(float)
+    G, b, c = system.dense_G, system.b.astype(float), system.c.astype(float)
     everyone = list(range(len(low)))
     h0, d_ln_h0 = _bordered_gain(G, b, c, U, patterns, scale)
     ratios = np.zeros(len(low))
@@ -205,7 +205,7 @@ def _low_estimate(circuit, states, low, names, coef, sign):
 
 
 def _midband_gain_terms(mid_sys, mid_ps, coef, sign):
-    G = mid_sys.G.toarray()
+    G = mid_sys.dense_G
     x = np.linalg.solve(G, mid_sys.b)
     y = np.linalg.solve(G.T, mid_sys.c)
     am = float(mid_sys.c @ x)
@@ -218,13 +218,13 @@ def _corner_exact(full_sys, full_ps, f_hz, d_gain, coef, sign):
     if f_hz is None:
         return None
     w = 2 * math.pi * f_hz
-    A = full_sys.G.toarray() + 1j * w * full_sys.C.toarray()
+    A = full_sys.dense_G + 1j * w * full_sys.dense_C
     x = np.linalg.solve(A, full_sys.b.astype(complex))
     y = np.linalg.solve(A.T, full_sys.c.astype(complex))
     H = full_sys.c @ x
     dA = full_ps.G_patterns + 1j * w * full_ps.C_patterns
     d_lnH = (-np.einsum("kab,a,b->k", dA, y, x) / H).real * coef * sign
-    d_lnH_dlnw = (-1j * w * (y @ full_sys.C.toarray() @ x) / H).real
+    d_lnH_dlnw = (-1j * w * (y @ full_sys.dense_C @ x) / H).real
     return -(d_lnH - d_gain) / d_lnH_dlnw
 
 

@@ -4,8 +4,7 @@ from __future__ import annotations
 
 from collections import Counter, defaultdict
 
-import networkx as nx
-
+from ..core.graphs import Pieces, path
 from .elements import CCCS, CCVS, VCCS, VCVS, VOLTAGE_DEFINING, ISource, Rail, VSource
 from ..core.errors import CircuitError
 
@@ -93,15 +92,14 @@ def problems(circuit) -> list[CircuitError]:
                 f"Node {node} has only one connection ({owner[el.name]}): wire it to the rest of the "
                 f"circuit or remove {owner[el.name]}.", parts=(owner[el.name],), nodes=(node,)))
 
-    graph = nx.Graph()
-    graph.add_nodes_from(nodes)
+    joined = Pieces(nodes)
     touching = defaultdict(set)
     for el in els:
         for a, b in _electrical_pairs(el):
-            graph.add_edge(a, b)
+            joined.join(a, b)
         for node in el.nodes:
             touching[node].add(owner[el.name])
-    for piece in nx.connected_components(graph):
+    for piece in joined.pieces():
         if "0" not in piece and "0" in nodes:
             parts = set().union(*(touching[x] for x in piece))
             found.append(CircuitError(
@@ -110,7 +108,7 @@ def problems(circuit) -> list[CircuitError]:
 
     # Floating nodes are judged on the d.c. equations themselves (solve.floating), where
     # controlled sources count; a graph picture would refuse a solvable follower.
-    forest = nx.Graph()
+    forest, held = {}, Pieces()
     for el in els:
         if not isinstance(el, VOLTAGE_DEFINING):
             continue
@@ -118,14 +116,15 @@ def problems(circuit) -> list[CircuitError]:
         if a == b:
             found.append(CircuitError(f"{owner[el.name]} is shorted: both its ends are on node {a}.",
                                       parts=(owner[el.name],), nodes=(a,)))
-        elif forest.has_node(a) and forest.has_node(b) and nx.has_path(forest, a, b):
-            path = nx.shortest_path(forest, a, b)
-            loop = {forest.edges[u, v]["name"] for u, v in zip(path, path[1:])} | {owner[el.name]}
+        elif held.joined(a, b):
+            loop_nodes = path(forest, a, b)
+            loop = {forest[frozenset(pair)] for pair in zip(loop_nodes, loop_nodes[1:])} | {owner[el.name]}
             found.append(CircuitError(
                 f"{_shown(loop)} form a loop of voltage sources and inductors, which fixes no current: "
-                "put a resistance in the loop or remove one of them.", parts=loop, nodes=path))
+                "put a resistance in the loop or remove one of them.", parts=loop, nodes=loop_nodes))
         else:
-            forest.add_edge(a, b, name=owner[el.name])
+            held.join(a, b)
+            forest[frozenset((a, b))] = owner[el.name]
     return found
 
 

@@ -30,8 +30,8 @@ from .lowcorner import LowSections, low_sections
 from .mna import OPEN, SHORT, build_system
 from .response import frequency_response, poles, zeros
 from . import step
-from .timeconstants import (FULL_MATRIX_LIMIT, factorize, open_circuit, port_columns, port_diagonal, port_weights,
-                            short_circuit)
+from .timeconstants import (FULL_MATRIX_LIMIT, conductance, factorize, open_circuit, port_columns, port_diagonal,
+                            port_weights, short_circuit)
 from ..network.validate import validate
 from ..core.values import db_unit, format_value
 
@@ -565,7 +565,7 @@ def _low_band(c, low, states):
     for group in [*parallel_groups(low).values(), *([el] for el in low if isinstance(el, Inductor))]:
         port_of.update({el.name: len(ports) for el in group})
         ports.append(group)
-    sc = short_circuit(factorize(system.G, "with the low-band elements at zero value", sorted(low_names)),
+    sc = short_circuit(factorize(conductance(system), "with the low-band elements at zero value", sorted(low_names)),
                        port_columns(system, [g[0] for g in ports]),
                        np.array([sum(port_weights(g)) for g in ports]), ["+".join(el.name for el in g) for g in ports],
                        io=(system.b, system.c))
@@ -611,6 +611,8 @@ class Stage:
     sweep_response: np.ndarray = field(repr=False)
     gain_unit: str
     operating_point: OperatingPoint | None = field(default=None, repr=False)
+    _networks: dict = field(default_factory=dict, repr=False, compare=False)
+    """States -> the resistive network at them and its factors: the band rounds revisit the same states."""
 
 
 @dataclass(frozen=True)
@@ -634,8 +636,8 @@ class Classification:
         Resistive mid-band gain A_m, signed (gain unit).
     mid : bandsketch.engine.solve.mna.MnaSystem
         The resistive mid-band network (every element at its state).
-    mid_lu : scipy.sparse.linalg.SuperLU
-        Its conductance matrix, factorised.
+    mid_lu : object
+        Its conductance matrix, factorised (:func:`bandsketch.engine.solve.timeconstants.factorize`).
     settled : bool
         False when the bands still changed after :data:`MAX_ROUNDS` rounds.
     groups : tuple of GroupTest
@@ -743,9 +745,12 @@ def prepare(c, bands=None, per_decade: int | None = None) -> Stage:
 def _mid_network(stage, bands, neutral_states):
     """The resistive mid-band network: its states, equations and factorised conductance matrix."""
     states = midband_states(stage.reactive, bands, neutral_states)
-    mid = build_system(stage.circuit, states)
-    shorted = [name for name, state in states.items() if state == SHORT]
-    return states, mid, factorize(mid.G, "with the elements at their mid-band states", shorted)
+    key = tuple(states.items())
+    if key not in stage._networks:
+        mid = build_system(stage.circuit, states)
+        shorted = [name for name, state in states.items() if state == SHORT]
+        stage._networks[key] = mid, factorize(conductance(mid), "with the elements at their mid-band states", shorted)
+    return (states, *stage._networks[key])
 
 
 def _place_neutral(stage, bands, f_m):

@@ -13,14 +13,14 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-import networkx as nx
 import numpy as np
 
 from ..core.band import Band
+from ..core.graphs import Pieces, bridges
 from ..network.elements import CCCS, CCVS, VCCS, VCVS, Capacitor, Inductor, ISource, VSource
 from ..core.errors import CircuitError
 from .mna import OPEN, SHORT, build_system
-from .response import frequency_response
+from .response import frequency_response, is_dense
 from .timeconstants import factorize, port_columns, port_diagonal
 
 NEUTRAL_DB = 0.01
@@ -82,20 +82,20 @@ def fixed_elements(circuit) -> dict[str, str]:
     circuit : bandsketch.engine.network.circuit.Circuit
     """
     els = list(circuit.elements.values())
-    held = nx.Graph()
-    held.add_edges_from((el.nodes[0], el.nodes[1]) for el in els if isinstance(el, (VSource, VCVS, CCVS)))
-    joined = {node: i for i, part in enumerate(nx.connected_components(held)) for node in part}
-    bridges = set()
+    held = Pieces()
+    for el in els:
+        if isinstance(el, (VSource, VCVS, CCVS)):
+            held.join(el.nodes[0], el.nodes[1])
+    joined = {node: held.root(node) for piece in held.pieces() for node in piece}
+    cut = set()
     if any(isinstance(el, Inductor) for el in els):
-        carries = nx.MultiGraph()
-        carries.add_nodes_from(circuit.nodes())
-        carries.add_edges_from((el.nodes[0], el.nodes[1]) for el in els if not isinstance(el, (ISource, VCCS, CCCS)))
-        bridges = {frozenset(e) for e in nx.bridges(nx.Graph(carries)) if carries.number_of_edges(*e) == 1}
+        cut = bridges(circuit.nodes(), [(el.nodes[0], el.nodes[1]) for el in els
+                                        if not isinstance(el, (ISource, VCCS, CCCS))])
     out = {}
     for el in els:
         if isinstance(el, Capacitor) and el.a in joined and joined.get(el.b) == joined[el.a]:
             out[el.name] = "it sits across an ideal voltage source, which fixes its voltage"
-        elif isinstance(el, Inductor) and frozenset(el.nodes) in bridges:
+        elif isinstance(el, Inductor) and frozenset(el.nodes) in cut:
             out[el.name] = "it is in series with an ideal current source, which fixes its current"
     return out
 
@@ -175,15 +175,21 @@ def band_tests(system, reactive, f_test: float, fixed) -> dict[str, BandTest]:
         Name -> :class:`BandTest`.
     """
     w = 2 * math.pi * f_test
-    A = (system.G + 1j * w * system.C).tocsc()
+    A = system.dense_G + 1j * w * system.dense_C if is_dense(system) else (system.G + 1j * w * system.C).tocsc()
     lu = factorize(A, f"at the test frequency {f_test:g} Hz")
-    x = lu.solve(system.b.astype(complex))
-    y = lu.solve(system.c.astype(complex), trans="T")
-    H = complex(system.c @ x)
     U = port_columns(system, reactive)
+    # One factorisation: the input and every port in one solve, the output in the transposed one.
+    if isinstance(U, np.ndarray):
+        X = lu.solve(np.column_stack((system.b, U)))
+        x = X[:, 0]
+        z = np.einsum("ij,ij->j", U, X[:, 1:])
+    else:
+        x = lu.solve(system.b)
+        z = port_diagonal(lu, U)
+    y = lu.solve(system.c, trans="T")
+    H = complex(system.c @ x)
     p = U.T @ x
     q = U.T @ y
-    z = port_diagonal(lu, U)
     # Capacitors in parallel share one port vector; each is tested with its partners, or
     # each alone would look neutral while together they are a coupling or bypass.
     together = parallel_capacitance(reactive)
@@ -212,7 +218,8 @@ def band_tests(system, reactive, f_test: float, fixed) -> dict[str, BandTest]:
 
 def _removed_directly(system, A, u, t) -> float:
     """|H| with the element of admittance ``t`` and port column ``u`` taken out of ``A``."""
-    x = factorize((A - t * (u @ u.T)).tocsc(), "with one element removed").solve(system.b.astype(complex))
+    reduced = A - t * np.outer(u, u) if isinstance(A, np.ndarray) else (A - t * (u @ u.T)).tocsc()
+    x = factorize(reduced, "with one element removed").solve(system.b)
     return abs(complex(system.c @ x))
 
 
@@ -243,17 +250,15 @@ class GroupTest:
 
 def _neutral_groups(capacitors) -> list[list]:
     """Capacitors joined by nodes other than ground, in groups of two or more, in circuit order."""
-    graph = nx.MultiGraph()
+    joined = Pieces()
     for el in capacitors:
-        graph.add_edge(el.a, el.b, name=el.name)
-    graph.remove_nodes_from(["0"])
-    groups = []
-    for part in nx.connected_components(graph):
-        names = {d["name"] for _, _, d in graph.subgraph(part).edges(data=True)}
-        members = [el for el in capacitors if el.name in names]
-        if len(members) >= 2:
-            groups.append(members)
-    return groups
+        if "0" not in el.nodes:
+            joined.join(el.a, el.b)
+    groups: dict = {}
+    for el in capacitors:
+        if "0" not in el.nodes:
+            groups.setdefault(joined.root(el.a), []).append(el)
+    return [members for members in groups.values() if len(members) >= 2]
 
 
 def group_tests(circuit, system, capacitors, f_test: float) -> list[GroupTest]:
@@ -277,18 +282,8 @@ def group_tests(circuit, system, capacitors, f_test: float) -> list[GroupTest]:
     as_is = abs(frequency_response(system, [f_test])[0])
     out = []
     for members in _neutral_groups(capacitors):
-        parent: dict[str, str] = {}
-
-        def root(node):
-            while parent.setdefault(node, node) != node:
-                node = parent[node]
-            return node
-
-        shorts = {}
-        for el in members:
-            ra, rb = root(el.a), root(el.b)
-            shorts[el.name] = OPEN if ra == rb else SHORT
-            parent[ra] = rb
+        loop = Pieces()
+        shorts = {el.name: SHORT if loop.join(el.a, el.b) else OPEN for el in members}
         try:
             shorted, opened = (abs(frequency_response(build_system(circuit, states), [f_test])[0])
                                for states in (shorts, {el.name: OPEN for el in members}))

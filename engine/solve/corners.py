@@ -5,10 +5,10 @@ from __future__ import annotations
 import math
 
 import numpy as np
-from scipy.optimize import brentq, minimize_scalar
 
+from ..core.roots import brent_root
 from ..network.elements import Capacitor, Inductor, Resistor
-from .response import DENSE_LIMIT, frequency_response
+from .response import frequency_response, is_dense
 
 SETTLED = 1e-3
 """A sweep end is settled when |H| changes by less than this fraction of its peak over a decade."""
@@ -27,7 +27,7 @@ def points_per_decade(system) -> int:
     ----------
     system : bandsketch.engine.solve.mna.MnaSystem
     """
-    return 20 if system.size <= DENSE_LIMIT else 8
+    return 20 if is_dense(system) else 8
 
 
 def first_span(circuit) -> tuple[float, float]:
@@ -129,6 +129,9 @@ def refine_peak(system, f: np.ndarray, H: np.ndarray, near: float) -> float:
     lo, hi = math.log10(f[max(i - 1, 0)]), math.log10(f[min(i + 1, len(f) - 1)])
     if hi <= lo:
         return float(f[i])
+    # Only a band narrower than the sweep's spacing comes here; scipy.optimize is imported then.
+    from scipy.optimize import minimize_scalar
+
     best = minimize_scalar(lambda x: -_magnitude(system, 10.0 ** x), bounds=(lo, hi), method="bounded",
                            options={"xatol": 1e-12})
     return float(10.0 ** best.x) if -best.fun > mag[i] else float(f[i])
@@ -203,7 +206,7 @@ def brackets(f: np.ndarray, H: np.ndarray, f_mid: float, level: float):
 
 
 def corner(system, bracket, level: float) -> float | None:
-    """Frequency (Hz) in ``bracket`` where the exact |H| equals ``level``: brentq on log f.
+    """Frequency (Hz) in ``bracket`` where the exact |H| equals ``level``: Brent's method on log f.
 
     Parameters
     ----------
@@ -219,7 +222,7 @@ def corner(system, bracket, level: float) -> float | None:
     def g(logf):
         return abs(frequency_response(system, [10.0 ** logf])[0]) - level
 
-    return 10.0 ** brentq(g, math.log10(bracket[0]), math.log10(bracket[1]), xtol=1e-13, rtol=1e-13)
+    return 10.0 ** brent_root(g, math.log10(bracket[0]), math.log10(bracket[1]), xtol=1e-13, rtol=1e-13)
 
 
 def _outward(system, f: np.ndarray, mag: np.ndarray, start: float, level: float, step: int):
@@ -243,7 +246,7 @@ def corners_around(system, f: np.ndarray, H: np.ndarray, f_mid: float, level: fl
 
     From ``f_mid`` (or, where |H| is already below ``level`` there, from the exact peak near
     it; failing that, from the nearest sweep point above the level) the search steps outward, first by :data:`FIRST_STEP` decades and doubling, then on
-    the sweep's own samples, to the first point below ``level``; brentq refines the corner
+    the sweep's own samples, to the first point below ``level``; Brent's method refines the corner
     between that point and the one before. None on a side where the gain never falls that far.
 
     Parameters

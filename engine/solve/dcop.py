@@ -179,6 +179,24 @@ class _Devices:
         self.lam = np.array([q.lam for q in m])
         self.gamma = np.array([q.gamma for q in m])
         self.phi = np.array([q.phi for q in m])
+        self._scatter(ground + 1)
+
+    def _scatter(self, size):
+        """One-hot matrices that add the devices' currents and Jacobian entries into place.
+
+        A matrix product with them is what ``np.add.at`` would do, for one sample or many, at
+        a fraction of its cost on a stage's handful of devices.
+        """
+        rows = [*self.bc, *self.bb, *self.be, *self.md, *self.ms]
+        self._to_nodes = np.zeros((len(rows), size))
+        self._to_nodes[np.arange(len(rows)), rows] = 1.0
+        pairs = []
+        for c, b, e in zip(self.bc, self.bb, self.be):
+            pairs += [(row, col) for row in (c, b, e) for col in (b, e, c)]
+        for d, g, s_, bk in zip(self.md, self.mg, self.ms, self.mb):
+            pairs += [(row, col) for row in (d, s_) for col in (g, d, bk, s_)]
+        self._to_matrix = np.zeros((len(pairs), size * size))
+        self._to_matrix[np.arange(len(pairs)), [r * size + c for r, c in pairs]] = 1.0
 
     def start(self):
         """Device voltages of the first iteration: junctions at their critical voltage, MOS on."""
@@ -210,40 +228,39 @@ class _Devices:
         A leading axis of samples in ``volts`` gives one of each per sample."""
         vbe, vbc, vgs, vds, vbs = volts
         batch = np.shape(vbe)[:-1]
-        f, i_eq = np.zeros(batch + (size,)), np.zeros(batch + (size,))
-        J = np.zeros(batch + (size, size))
-        E = Ellipsis
+        currents, constants, entries = [], [], []
         if self.bjt_names:
             ic, ib, c_be, c_bc, b_be, b_bc = bjt_currents(vbe, vbc, self.isat, self.beta, self.beta_r, self.va, self.vt)
             s = self.bs
             # Terminal currents into the device: s·I_C at the collector, s·I_B at the base.
-            np.add.at(f, (E, self.bc), s * ic)
-            np.add.at(f, (E, self.bb), s * ib)
-            np.add.at(f, (E, self.be), -s * (ic + ib))
+            currents += [s * ic, s * ib, -s * (ic + ib)]
             eq_c = s * (ic - c_be * vbe - c_bc * vbc)
             eq_b = s * (ib - b_be * vbe - b_bc * vbc)
-            np.add.at(i_eq, (E, self.bc), eq_c)
-            np.add.at(i_eq, (E, self.bb), eq_b)
-            np.add.at(i_eq, (E, self.be), -(eq_c + eq_b))
+            constants += [eq_c, eq_b, -(eq_c + eq_b)]
             # d(s·I)/dv_node with v_be = s(v_b − v_e), v_bc = s(v_b − v_c): the signs cancel.
-            for row, d_be, d_bc in ((self.bc, c_be, c_bc), (self.bb, b_be, b_bc), (self.be, -(c_be + b_be), -(c_bc + b_bc))):
-                np.add.at(J, (E, row, self.bb), d_be + d_bc)
-                np.add.at(J, (E, row, self.be), -d_be)
-                np.add.at(J, (E, row, self.bc), -d_bc)
+            # Per device: rows collector, base, emitter; columns base, emitter, collector.
+            per_row = [(c_be, c_bc), (b_be, b_bc), (-(c_be + b_be), -(c_bc + b_bc))]
+            entries.append(np.stack([d for d_be, d_bc in per_row for d in (d_be + d_bc, -d_be, -d_bc)], axis=-1))
         if self.mos_names:
             i_d, gm, gds, gmb, _ = mos_current(vgs, vds, vbs, self.vth, self.kp, self.lam, self.gamma, self.phi)
             m = self.msign
-            np.add.at(f, (E, self.md), m * i_d)
-            np.add.at(f, (E, self.ms), -m * i_d)
+            currents += [m * i_d, -m * i_d]
             eq_d = m * (i_d - gm * vgs - gds * vds - gmb * vbs)
-            np.add.at(i_eq, (E, self.md), eq_d)
-            np.add.at(i_eq, (E, self.ms), -eq_d)
-            for row, k in ((self.md, 1.0), (self.ms, -1.0)):
-                np.add.at(J, (E, row, self.mg), k * gm)
-                np.add.at(J, (E, row, self.md), k * gds)
-                np.add.at(J, (E, row, self.mb), k * gmb)
-                np.add.at(J, (E, row, self.ms), -k * (gm + gds + gmb))
-        return f, J, i_eq
+            constants += [eq_d, -eq_d]
+            # Per device: rows drain, source; columns gate, drain, bulk, source.
+            entries.append(np.stack([k * v for k in (1.0, -1.0) for v in (gm, gds, gmb, -(gm + gds + gmb))], axis=-1))
+        if not currents:
+            return np.zeros(batch + (size,)), np.zeros(batch + (size, size)), np.zeros(batch + (size,))
+        f = np.concatenate(currents, axis=-1) @ self._to_nodes
+        i_eq = np.concatenate(constants, axis=-1) @ self._to_nodes
+        # Entries come device by device, each device's in the order _scatter lists its pairs.
+        J = _device_major(entries, batch) @ self._to_matrix
+        return f, J.reshape(batch + (size, size)), i_eq
+
+
+def _device_major(entries, batch):
+    """The Jacobian entries of :meth:`_Devices.stamp` as one row per sample, device by device."""
+    return np.concatenate([e.reshape(batch + (-1,)) for e in entries], axis=-1)
 
 
 def _dc_excitation(view, system) -> np.ndarray:
@@ -266,7 +283,8 @@ class DcEquations:
         self.system = build_system(view)
         self.n = self.system.size
         self.nodes = len(self.system.node_index)
-        self.G = self.system.G.toarray()
+        self.G = np.array(self.system.dense_G)
+        self._abs_G = np.abs(self.G)
         self.b = _dc_excitation(view, self.system)
         self.devices = _Devices(circuit, self.system.node_index, self.n)
         self.names = {i: node for node, i in self.system.node_index.items()}
@@ -278,7 +296,7 @@ class DcEquations:
         lin = self.G @ x
         r = lin + f[:-1] - scale_b * self.b
         r[:self.nodes] += gmin * x[:self.nodes]
-        size = np.abs(self.G) @ np.abs(x) + np.abs(f[:-1]) + abs(scale_b) * np.abs(self.b)
+        size = self._abs_G @ np.abs(x) + np.abs(f[:-1]) + abs(scale_b) * np.abs(self.b)
         return r, size
 
     def accepted(self, x, scale_b=1.0, gmin=0.0) -> bool:
@@ -532,7 +550,8 @@ def _point(circuit, problem, x, iterations, method) -> OperatingPoint:
     xe = np.append(x, 0.0)
     vbe, vbc, vgs, vds, vbs = dev.raw(xe)
     devices, warnings = {}, []
-    ic, ib, *_ = bjt_currents(vbe, vbc, dev.isat, dev.beta, dev.beta_r, dev.va, dev.vt)
+    if dev.bjt_names:
+        ic, ib, *_ = bjt_currents(vbe, vbc, dev.isat, dev.beta, dev.beta_r, dev.va, dev.vt)
     for k, name in enumerate(dev.bjt_names):
         volts = {"vbe": float(vbe[k]), "vbc": float(vbc[k])}
         ss = circuit.large_blocks[name].model.small_signal(name, volts)
@@ -540,7 +559,8 @@ def _point(circuit, problem, x, iterations, method) -> OperatingPoint:
                     bjt_region(vbe[k], vbc[k]), MappingProxyType(ss))
         devices[name] = d
         warnings.append(_bjt_warning(name, d))
-    i_d, _, _, _, vth = mos_current(vgs, vds, vbs, dev.vth, dev.kp, dev.lam, dev.gamma, dev.phi)
+    if dev.mos_names:
+        i_d, _, _, _, vth = mos_current(vgs, vds, vbs, dev.vth, dev.kp, dev.lam, dev.gamma, dev.phi)
     for k, name in enumerate(dev.mos_names):
         volts = {"vgs": float(vgs[k]), "vds": float(vds[k]), "vbs": float(vbs[k])}
         ss = circuit.large_blocks[name].model.small_signal(name, volts)

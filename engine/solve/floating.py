@@ -10,9 +10,9 @@ from __future__ import annotations
 
 import numpy as np
 import scipy.linalg as la
-import scipy.sparse.linalg as spla
 
 from ..core.errors import CircuitError
+from .timeconstants import conductance, try_factor
 
 SINGULAR = 1e-13
 """A singular value below this fraction of the largest is zero: the matrix is singular."""
@@ -32,10 +32,10 @@ def _null_space(G) -> np.ndarray:
     Rows and columns are first scaled to a largest entry of 1, so a network whose
     conductances span many decades is not taken for a singular one.
     """
-    A = np.abs(G.toarray())
-    rows = A.max(axis=1)
+    G = np.asarray(G)
+    rows = np.abs(G).max(axis=1)
     rows[rows == 0] = 1.0
-    M = G.toarray() / rows[:, None]
+    M = G / rows[:, None]
     cols = np.abs(M).max(axis=0)
     cols[cols == 0] = 1.0
     u, s, vt = la.svd(M / cols[None, :])
@@ -43,14 +43,6 @@ def _null_space(G) -> np.ndarray:
         return np.eye(G.shape[0])
     # Null vectors of the scaled matrix, taken back to the unknowns (column scaling).
     return (vt[s <= SINGULAR * s[0]] / cols[None, :]).T
-
-
-def _is_regular(G) -> bool:
-    try:
-        spla.splu(G.tocsc())
-    except RuntimeError:
-        return False
-    return True
 
 
 def check_dc_solvable(circuit, system) -> None:
@@ -67,10 +59,10 @@ def check_dc_solvable(circuit, system) -> None:
     CircuitError
         With ``nodes`` (the floating ones, from the null space) and ``parts`` (what touches them).
     """
-    # SuperLU refuses an exactly singular matrix; a regular one, however badly scaled, passes.
-    if _is_regular(system.G):
+    # LU refuses an exactly singular matrix; a regular one, however badly scaled, passes.
+    if try_factor(conductance(system)) is not None:
         return
-    null = _null_space(system.G)
+    null = _null_space(system.dense_G)
     if null.shape[1] == 0:
         return
     weight = np.abs(null).max(axis=1)

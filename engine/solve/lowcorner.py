@@ -25,7 +25,8 @@ import math
 from dataclasses import dataclass
 
 import numpy as np
-from scipy.optimize import brentq
+
+from ..core.roots import brent_root
 
 PAIR_RATIO = 1 / math.sqrt(2)
 """A section whose open/short gain ratio stays above this never falls 3 dB: a pole–zero pair."""
@@ -101,7 +102,7 @@ def section_corner(poles, zeros) -> float | None:
         lo = hi - _SCAN_STEP
         f_lo = excess(lo)
         if f_lo >= 0 > f_hi:
-            return math.exp(brentq(excess, lo, hi, xtol=1e-14, rtol=1e-14) / 2)
+            return math.exp(brent_root(excess, lo, hi, xtol=1e-14, rtol=1e-14) / 2)
         hi, f_hi = lo, f_lo
     return None
 

@@ -1,4 +1,4 @@
-"""Modified nodal analysis: every element's stamp, in one place, into sparse G and C.
+"""Modified nodal analysis: every element's stamp, in one place, into G and C.
 
 The equations are (G + sC) x = b u with x the node voltages (ground left out) followed by
 the branch currents of voltage-defining elements (voltage sources, controlled voltage
@@ -6,11 +6,16 @@ sources, inductors, and capacitors or inductors that an analysis shorts). Rows o
 unknowns are KCL: the sum of currents leaving the node through its elements equals the
 current injected into it. A short is a 0-V branch and an open is the element left out, so
 both are exact (no huge or tiny stand-in values).
+
+The stamps are kept as triplets; G and C are assembled from them when first asked for,
+sparse (:attr:`MnaSystem.G`) or dense (:attr:`MnaSystem.dense_G`), each once per system, so a
+small network never pays for a sparse matrix it does not use.
 """
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, field
+from functools import cached_property
 from types import MappingProxyType
 from typing import Mapping
 
@@ -22,16 +27,24 @@ from ..network.elements import CCCS, CCVS, VCCS, VCVS, Capacitor, Inductor, ISou
 SHORT, OPEN = "short", "open"
 
 
+def _sparse(triplets, size):
+    rows, cols, vals = triplets
+    return sp.csc_matrix((vals, (rows, cols)), shape=(size, size))
+
+
+def _dense(triplets, size):
+    rows, cols, vals = triplets
+    out = np.bincount(rows * size + cols, weights=vals, minlength=size * size).reshape(size, size)
+    out.flags.writeable = False
+    return out
+
+
 @dataclass(frozen=True)
 class MnaSystem:
     """Assembled nodal equations of one circuit state.
 
     Attributes
     ----------
-    G : scipy.sparse.csc_matrix
-        Conductance and incidence part (S for node rows, dimensionless for branch rows).
-    C : scipy.sparse.csc_matrix
-        Capacitance (F) and, on inductor branch rows, −L (H).
     b : numpy.ndarray
         Excitation of the input source (1 V or 1 A).
     c : numpy.ndarray
@@ -42,17 +55,37 @@ class MnaSystem:
         Element name -> index of its branch-current unknown.
     """
 
-    G: sp.csc_matrix
-    C: sp.csc_matrix
     b: np.ndarray
     c: np.ndarray
     node_index: Mapping[str, int]
     branch_index: Mapping[str, int]
+    _g: tuple = field(repr=False, compare=False, default=())
+    _c: tuple = field(repr=False, compare=False, default=())
 
     @property
     def size(self) -> int:
         """Number of unknowns."""
-        return self.G.shape[0]
+        return self.b.size
+
+    @cached_property
+    def G(self) -> sp.csc_matrix:
+        """Conductance and incidence part, sparse (S for node rows, dimensionless for branch rows)."""
+        return _sparse(self._g, self.size)
+
+    @cached_property
+    def C(self) -> sp.csc_matrix:
+        """Capacitance (F) and, on inductor branch rows, −L (H), sparse."""
+        return _sparse(self._c, self.size)
+
+    @cached_property
+    def dense_G(self) -> np.ndarray:
+        """:attr:`G` as a read-only dense array (for networks small enough to solve densely)."""
+        return _dense(self._g, self.size)
+
+    @cached_property
+    def dense_C(self) -> np.ndarray:
+        """:attr:`C` as a read-only dense array."""
+        return _dense(self._c, self.size)
 
     def incidence(self, a: str, b: str) -> np.ndarray:
         """Vector with +1 at node ``a`` and −1 at node ``b`` (ground rows omitted)."""
@@ -129,7 +162,7 @@ def build_system(circuit, states: Mapping[str, str] | None = None) -> MnaSystem:
     Returns
     -------
     MnaSystem
-        G and C in CSC form, the input excitation ``b`` and the output selector ``c``.
+        The stamps (G and C assembled on demand), the input excitation ``b`` and the output selector ``c``.
 
     Notes
     -----
@@ -185,8 +218,8 @@ def build_system(circuit, states: Mapping[str, str] | None = None) -> MnaSystem:
             k = st.branch(el.name, el.p, el.n)
             st.g(k, ks, -el.r)
     size = st.n + len(st.branches)
-    G = sp.csc_matrix((st.g_vals, (st.g_rows, st.g_cols)), shape=(size, size))
-    C = sp.csc_matrix((st.c_vals, (st.c_rows, st.c_cols)), shape=(size, size))
+    triplets = [(np.array(r, dtype=np.intp), np.array(k, dtype=np.intp), np.array(v, dtype=float))
+                for r, k, v in ((st.g_rows, st.g_cols, st.g_vals), (st.c_rows, st.c_cols, st.c_vals))]
     b = np.zeros(size)
     for k, v in excite:
         b[k] += v
@@ -196,4 +229,4 @@ def build_system(circuit, states: Mapping[str, str] | None = None) -> MnaSystem:
         c[node_index[p]] += 1.0
     if n in node_index:
         c[node_index[n]] -= 1.0
-    return MnaSystem(G, C, b, c, MappingProxyType(node_index), MappingProxyType(dict(st.branches)))
+    return MnaSystem(b, c, MappingProxyType(node_index), MappingProxyType(dict(st.branches)), *triplets)

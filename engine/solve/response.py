@@ -16,6 +16,17 @@ _FINITE_RATIO = 1e-9
 """An eigenvalue whose |β| is below this fraction of |α| (after frequency scaling) is infinite."""
 
 
+def is_dense(system) -> bool:
+    """Whether ``system`` is small enough to be solved densely (LAPACK) rather than sparsely (SuperLU).
+
+    Parameters
+    ----------
+    system : bandsketch.engine.solve.mna.MnaSystem
+        Its size is compared with :data:`DENSE_LIMIT`, read when called.
+    """
+    return system.size <= DENSE_LIMIT
+
+
 def frequency_response(system, freqs_hz) -> np.ndarray:
     """Exact transfer function at the given frequencies.
 
@@ -35,13 +46,15 @@ def frequency_response(system, freqs_hz) -> np.ndarray:
     w = 2 * np.pi * f
     n = system.size
     out = np.empty(f.shape, dtype=complex)
-    if n <= DENSE_LIMIT:
-        G, C = system.G.toarray(), system.C.toarray()
+    if is_dense(system):
+        G, C = system.dense_G, system.dense_C
         step = max(1, _CHUNK_BYTES // (16 * n * n))
         rhs = system.b.astype(complex)
         for i in range(0, w.size, step):
             ws = w[i:i + step]
-            A = G[None, :, :] + 1j * ws[:, None, None] * C[None, :, :]
+            A = np.empty((ws.size, n, n), dtype=complex)
+            A.real[...] = G
+            np.multiply(ws[:, None, None], C, out=A.imag)
             try:
                 x = np.linalg.solve(A, np.broadcast_to(rhs, (ws.size, n))[..., None])[..., 0]
             except np.linalg.LinAlgError:
@@ -87,7 +100,7 @@ def poles(system) -> np.ndarray:
     ----------
     system : bandsketch.engine.solve.mna.MnaSystem
     """
-    return _finite_eigenvalues(-system.G.toarray(), system.C.toarray())
+    return _finite_eigenvalues(-system.dense_G, system.dense_C)
 
 
 def zeros(system) -> np.ndarray:
@@ -103,8 +116,8 @@ def zeros(system) -> np.ndarray:
     n = system.size
     A = np.zeros((n + 1, n + 1))
     B = np.zeros((n + 1, n + 1))
-    A[:n, :n] = -system.G.toarray()
+    A[:n, :n] = -system.dense_G
     A[:n, n] = system.b
     A[n, :n] = -system.c
-    B[:n, :n] = system.C.toarray()
+    B[:n, :n] = system.dense_C
     return _finite_eigenvalues(A, B)

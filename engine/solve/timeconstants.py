@@ -15,11 +15,13 @@ from dataclasses import dataclass
 
 import numpy as np
 import scipy.linalg as la
+from scipy.linalg import lapack
 import scipy.sparse as sp
 import scipy.sparse.linalg as spla
 
 from ..network.elements import Capacitor, Inductor
 from ..core.errors import CircuitError
+from .response import is_dense
 
 FULL_MATRIX_LIMIT = 1000
 """Up to this many ports the whole port matrix is formed (b2, exact time constants);
@@ -31,7 +33,7 @@ _SINGULAR = 1e-12
 """A port matrix whose smallest singular value is below this fraction of its largest is singular."""
 
 
-def port_columns(system, elements) -> sp.csc_matrix:
+def port_columns(system, elements, dense: bool | None = None):
     """Port vectors of ``elements`` in the unknowns of ``system``, one column each.
 
     Parameters
@@ -40,10 +42,13 @@ def port_columns(system, elements) -> sp.csc_matrix:
         Equations in which each element named is either a branch (an inductor, or a
         shorted capacitor) or left out (a capacitor, or an opened inductor).
     elements : sequence of Capacitor or Inductor
+    dense : bool, optional
+        A dense array (True) or a sparse matrix (False); by default dense for a network
+        solved densely (:func:`bandsketch.engine.solve.response.is_dense`).
 
     Returns
     -------
-    scipy.sparse.csc_matrix
+    numpy.ndarray or scipy.sparse.csc_matrix
         An element with a branch: 1 at its branch unknown (its entry is then minus the
         conductance it sees); one left out: +1 at node a, −1 at node b (a resistance).
     """
@@ -59,6 +64,10 @@ def port_columns(system, elements) -> sp.csc_matrix:
                 rows.append(system.node_index[node])
                 cols.append(j)
                 vals.append(sign)
+    if is_dense(system) if dense is None else dense:
+        U = np.zeros((system.size, len(elements)))
+        np.add.at(U, (np.array(rows, dtype=np.intp), np.array(cols, dtype=np.intp)), vals)
+        return U
     return sp.csc_matrix((vals, (rows, cols)), shape=(system.size, len(elements)))
 
 
@@ -73,25 +82,86 @@ def port_weights(elements) -> np.ndarray:
     return np.array([el.value if isinstance(el, Capacitor) else -el.value for el in elements], dtype=float)
 
 
-def factorize(G, what: str, parts=()):
-    """Sparse LU of ``G``; a singular ``G`` is a :class:`CircuitError` saying ``what`` it was.
+class _DenseLU:
+    """LAPACK's LU (getrf) of a small dense matrix, with SuperLU's ``solve`` interface.
+
+    A single right-hand side is solved on the factors (getrs). Several at once go to
+    numpy's solver instead: scipy's bundled OpenBLAS threads the many-column triangular
+    solve even at 10 × 10 and stalls for milliseconds when the cores are busy, while
+    refactoring a matrix this small costs microseconds.
+    """
+
+    def __init__(self, A):
+        A = np.asarray(A)
+        self.dtype = np.result_type(A.dtype, float)
+        self._a = A.astype(self.dtype, copy=False)
+        getrf, self._getrs = lapack.get_lapack_funcs(("getrf", "getrs"), (self._a,))
+        self._lu, self._piv, info = getrf(self._a)
+        if info != 0 or not np.all(np.isfinite(self._lu)):
+            raise RuntimeError("Factor is exactly singular")
+
+    def solve(self, rhs, trans="N"):
+        rhs = np.asarray(rhs, dtype=self.dtype)
+        if rhs.ndim == 1:
+            return self._getrs(self._lu, self._piv, rhs, trans=0 if trans == "N" else 1)[0]
+        return np.linalg.solve(self._a if trans == "N" else self._a.T, rhs)
+
+
+class _SparseLU:
+    """SuperLU's factors, with the element type they solve in."""
+
+    def __init__(self, A):
+        self._lu = spla.splu(sp.csc_matrix(A))
+        self.dtype = np.result_type(A.dtype, float)
+
+    def solve(self, rhs, trans="N"):
+        return self._lu.solve(np.asarray(rhs, dtype=self.dtype), trans=trans)
+
+
+def try_factor(A):
+    """The LU factors of ``A``, or None when ``A`` is exactly singular.
 
     Parameters
     ----------
-    G : scipy.sparse matrix
-        A conductance matrix, S (square).
+    A : numpy.ndarray or scipy.sparse matrix
+        Square; conductances (S) or an admittance matrix. A dense array is factorised by
+        LAPACK, a sparse one by SuperLU; either gives ``solve(rhs, trans="N" | "T")``.
+    """
+    try:
+        return _DenseLU(A) if isinstance(A, np.ndarray) else _SparseLU(A)
+    except RuntimeError:
+        return None
+
+
+def factorize(G, what: str, parts=()):
+    """LU of ``G``; a singular ``G`` is a :class:`CircuitError` saying ``what`` it was.
+
+    Parameters
+    ----------
+    G : numpy.ndarray or scipy.sparse matrix
+        A conductance matrix, S (square); dense up to the dense/sparse crossover.
     what : str
         What network it is, for the message.
     parts : sequence of str
         Parts the message points at.
     """
-    try:
-        return spla.splu(sp.csc_matrix(G))
-    except RuntimeError:
+    lu = try_factor(G)
+    if lu is None:
         raise CircuitError(f"The network {what} has no unique solution: a loop of shorts or ideal "
                            "sources fixes no current, or a node is held only by capacitors and "
                            "current sources. Pin one of the parts to another band or add a resistance.",
-                           parts=parts) from None
+                           parts=parts)
+    return lu
+
+
+def conductance(system):
+    """The conductance matrix of ``system`` in the form it is solved in: dense or sparse.
+
+    Parameters
+    ----------
+    system : bandsketch.engine.solve.mna.MnaSystem
+    """
+    return system.dense_G if is_dense(system) else system.G
 
 
 def _column_chunks(n_rows: int, n_cols: int, itemsize: int):
@@ -100,24 +170,26 @@ def _column_chunks(n_rows: int, n_cols: int, itemsize: int):
         yield slice(start, min(n_cols, start + step))
 
 
-def port_matrix(lu, U: sp.csc_matrix) -> np.ndarray:
+def port_matrix(lu, U) -> np.ndarray:
     """Z = Uᵀ A⁻¹ U for a factorised A, solved in column blocks (N × N).
 
     Parameters
     ----------
-    lu : scipy.sparse.linalg.SuperLU
+    lu : factors from :func:`factorize`
         The factorised A (conductances, S).
-    U : scipy.sparse.csc_matrix
-        One port column per element (dimensionless incidence).
+    U : numpy.ndarray or scipy.sparse.csc_matrix
+        One port column per element (dimensionless incidence, :func:`port_columns`).
     """
-    Z = np.empty((U.shape[1], U.shape[1]), dtype=np.result_type(lu.L.dtype, float))
+    if isinstance(U, np.ndarray):
+        return U.T @ lu.solve(U)
+    Z = np.empty((U.shape[1], U.shape[1]), dtype=lu.dtype)
     Ut = U.T.tocsr()
     for cols in _column_chunks(U.shape[0], U.shape[1], Z.itemsize):
-        Z[:, cols] = Ut @ lu.solve(U[:, cols].toarray().astype(Z.dtype))
+        Z[:, cols] = Ut @ lu.solve(U[:, cols].toarray())
     return Z
 
 
-def port_diagonal(lu, U: sp.csc_matrix) -> np.ndarray:
+def port_diagonal(lu, U) -> np.ndarray:
     """diag(Uᵀ A⁻¹ U) without forming the whole matrix.
 
     Parameters
@@ -125,11 +197,12 @@ def port_diagonal(lu, U: sp.csc_matrix) -> np.ndarray:
     lu, U
         As for :func:`port_matrix`.
     """
-    dtype = np.result_type(lu.L.dtype, float)
-    out = np.empty(U.shape[1], dtype=dtype)
-    for cols in _column_chunks(U.shape[0], U.shape[1], np.dtype(dtype).itemsize):
+    if isinstance(U, np.ndarray):
+        return np.einsum("ij,ij->j", U, lu.solve(U))
+    out = np.empty(U.shape[1], dtype=lu.dtype)
+    for cols in _column_chunks(U.shape[0], U.shape[1], np.dtype(lu.dtype).itemsize):
         block = U[:, cols]
-        X = lu.solve(block.toarray().astype(dtype))
+        X = lu.solve(block.toarray())
         out[cols] = np.asarray(block.multiply(X).sum(axis=0)).ravel()
     return out
 
@@ -184,8 +257,8 @@ def open_circuit(lu, U: sp.csc_matrix, D: np.ndarray, *, full: bool | None = Non
 
     Parameters
     ----------
-    lu : scipy.sparse.linalg.SuperLU
-        Factorisation (:func:`factorize`) of the conductance matrix with the ports at zero
+    lu : factors from :func:`factorize`
+        Factorisation of the conductance matrix with the ports at zero
         value (capacitors out, inductors 0-V branches).
     U : scipy.sparse.csc_matrix
         Port columns (:func:`port_columns`).
