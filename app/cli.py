@@ -5,6 +5,7 @@ the window; ``bandsketch samples`` lists the shipped samples;
 ``bandsketch analyze DESIGN [--json] [--csv FILE]`` prints the analysis and the step figures;
 ``bandsketch step DESIGN [--csv FILE] [--t-stop S] [--points N] [--json]`` the step response;
 ``bandsketch report DESIGN -o FILE.html|FILE.pdf`` writes the design report;
+``bandsketch figure DESIGN --what bode|bars|sheet -o FILE.svg|FILE.png [--dpi N | --width PX]`` one picture;
 ``bandsketch spread DESIGN --samples N --seed S [--json]`` runs the tolerance spread;
 ``bandsketch advise DESIGN [--knobs R1,RC] [--json]`` prints the advisor's suggestions. Every DESIGN
 may be ``--sample NAME`` instead. Qt is imported only for the window and for pictures (a report's
@@ -22,11 +23,20 @@ import json
 import os
 import sys
 
-SUBCOMMANDS = ("samples", "analyze", "step", "report", "spread", "advise")
+SUBCOMMANDS = ("samples", "analyze", "step", "report", "figure", "spread", "advise")
 EXIT_OK, EXIT_FAILED, EXIT_BAD_INPUT = 0, 1, 2
 EXIT_CODES = {EXIT_OK: "done", EXIT_FAILED: "the work failed (an output could not be written)",
               EXIT_BAD_INPUT: "bad input: arguments, or a design that cannot be read or analysed"}
 _EPILOG = "exit status: " + "; ".join(f"{k} {v}" for k, v in EXIT_CODES.items())
+
+
+JSON_VERSION = 1
+"""The ``version`` of the step, spread and advice JSON (the analysis JSON carries its own)."""
+
+
+def _versioned(format_name: str, data: dict) -> dict:
+    """``data`` led by its ``format`` and ``version``, as every ``--json`` output is."""
+    return {"format": format_name, "version": JSON_VERSION, **data}
 
 
 def _size(text: str) -> tuple[int, int]:
@@ -100,14 +110,16 @@ def _analyze_parser() -> argparse.ArgumentParser:
                                 description="Print the time-constant analysis of a design.")
     _design_argument(p)
     p.add_argument("--json", action="store_true", help="print JSON instead of a table")
-    p.add_argument("--csv", metavar="FILE", help="also write the exact sweep to FILE")
+    p.add_argument("--csv", metavar="FILE", help="also write the response (frequency, magnitude in dB and "
+                                                 "linear, phase, the estimates) to FILE, as the window exports it")
     return p
 
 
 def _analyze(args) -> int:
     from bandsketch.engine import analyze
     from bandsketch.engine.design.netlist import design_to_circuit, shorted_parts
-    from bandsketch.engine.present.summary import analysis_to_dict, format_table, write_sweep_csv
+    from bandsketch.engine.present.plotdata import bode_data, write_response_csv
+    from bandsketch.engine.present.summary import analysis_to_dict, format_table
     from bandsketch.engine.core.errors import CircuitError
     from bandsketch.engine.present.stepdata import time_responses
     from bandsketch.engine.present.timesummary import format_time_table, time_domain_dict
@@ -133,7 +145,7 @@ def _analyze(args) -> int:
         print(format_table(analysis, title=doc.title))
         print(format_time_table(step, pulse) if step else f"Step response: none ({no_step})")
     if args.csv:
-        write_sweep_csv(analysis, args.csv)
+        write_response_csv(bode_data(analysis), args.csv)
     return EXIT_OK
 
 
@@ -185,7 +197,7 @@ def _step(args) -> int:
     doc = _load(args)
     step = analyze(design_to_circuit(doc), bands=dict(doc.band_pins)).step_response(args.t_stop, args.points)
     if args.json:
-        print(json.dumps(time_domain_dict(step), indent=1, ensure_ascii=False))
+        print(json.dumps(_versioned("bandsketch-step", time_domain_dict(step)), indent=1, ensure_ascii=False))
     else:
         print(format_time_table(step), end="")
     if args.csv:
@@ -203,6 +215,41 @@ def _report_parser() -> argparse.ArgumentParser:
     p.add_argument("--samples", type=_samples, default=10_000, help="Monte Carlo samples (default 10000)")
     p.add_argument("--seed", type=int, default=1, help="Monte Carlo seed (default 1)")
     return p
+
+
+def _figure_parser() -> argparse.ArgumentParser:
+    p = argparse.ArgumentParser(prog="bandsketch figure", epilog=_EPILOG,
+                                description="Save one picture of a design: the Bode plot, the time-constant bars or "
+                                            "the sheet, as SVG (browsers and librsvg draw it) or PNG.")
+    _design_argument(p)
+    p.add_argument("--what", required=True, choices=("bode", "bars", "sheet"), help="which picture")
+    p.add_argument("-o", "--output", required=True, type=_figure_path, metavar="FILE.svg|FILE.png",
+                   help="where to write it; .svg writes SVG, .png a PNG")
+    size = p.add_mutually_exclusive_group()
+    size.add_argument("--dpi", type=_whole_number("dpi", 24, 2400), default=192,
+                      help="PNG resolution, dots per inch (default 192; the SVG's pixel is 1/96 inch)")
+    size.add_argument("--width", type=_whole_number("pixels", 16, 20000), metavar="PX",
+                      help="PNG width in pixels, the height in proportion")
+    return p
+
+
+def _figure_path(text: str) -> str:
+    if not text.lower().endswith((".svg", ".png")):
+        raise argparse.ArgumentTypeError(f"{text!r}: name the picture FILE.svg (SVG) or FILE.png (PNG)")
+    return text
+
+
+def _figure(args) -> int:
+    doc = _load(args)
+    from .gui import offscreen_application
+
+    # The sheet is drawn by the scene code, and a PNG by Qt's SVG renderer: Qt starts, offscreen.
+    offscreen_application()
+    from .figures import figure_svg, write_picture
+
+    write_picture(figure_svg(doc, args.what), args.output, dpi=args.dpi, width_px=args.width)
+    print(f"bandsketch: wrote {args.output}", file=sys.stderr)
+    return EXIT_OK
 
 
 def _spread_parser() -> argparse.ArgumentParser:
@@ -242,7 +289,7 @@ def _advise(args) -> int:
         print(f"bandsketch: {args.design}: {getattr(exc, 'message', exc)}", file=sys.stderr)
         return 2
     if args.json:
-        print(json.dumps(advice_to_dict(advice, found), indent=1, ensure_ascii=False))
+        print(json.dumps(_versioned("bandsketch-advice", advice_to_dict(advice, found)), indent=1, ensure_ascii=False))
     else:
         print(advice_table(advice, found, title=doc.title))
     return 0
@@ -290,7 +337,7 @@ def _spread(args) -> int:
     summary = spread_to_dict(spread_of_design(_load(args), args.samples, args.seed,
                                               progress=Progress("spread")))
     if args.json:
-        print(json.dumps(summary, indent=1, ensure_ascii=False))
+        print(json.dumps(_versioned("bandsketch-spread", summary), indent=1, ensure_ascii=False))
         return EXIT_OK
     from bandsketch.engine.core.values import format_value
 
@@ -322,6 +369,8 @@ def main(argv: list[str] | None = None) -> int:
             return _step(_step_parser().parse_args(argv[1:]))
         if argv and argv[0] == "report":
             return _report(_report_parser().parse_args(argv[1:]))
+        if argv and argv[0] == "figure":
+            return _figure(_figure_parser().parse_args(argv[1:]))
         if argv and argv[0] == "spread":
             return _spread(_spread_parser().parse_args(argv[1:]))
         if argv and argv[0] == "advise":

@@ -11,15 +11,15 @@ from __future__ import annotations
 
 import errno
 
-from PySide6.QtCore import QByteArray, QMarginsF, QRectF, QSizeF, Qt, QUrl
+from PySide6.QtCore import QMarginsF, QRectF, QSizeF, Qt, QUrl
 from PySide6.QtGui import (QFont, QImage, QPageLayout, QPageSize, QPainter, QPdfWriter, QTextBlockFormat,
                            QTextCursor, QTextDocument, QTextFormat, QTextTable)
-from PySide6.QtSvg import QSvgRenderer
 
 from bandsketch.engine.core.versions import version_line
 from bandsketch.engine.present.report import SPREAD_SAMPLES, DesignSource, ReportFigure, build_report
 
 from ..canvas.sheet_picture import sheet_svg
+from ..figures import svg_image
 
 REPORT_DPI = 300
 """Resolution of the PDF's pictures, dots per inch."""
@@ -63,20 +63,6 @@ def export_report(doc, path: str, *, source: DesignSource | None = None, spread=
             fh.write(text)
         return
     _write_pdf(doc, path, options)
-
-
-def svg_image(svg: str, width_px: int) -> QImage:
-    """``svg`` drawn by Qt's SVG renderer into an image ``width_px`` wide (height in proportion)."""
-    renderer = QSvgRenderer(QByteArray(svg.encode("utf-8")))
-    size = renderer.defaultSize()
-    height = max(1, round(width_px * size.height() / max(1, size.width())))
-    image = QImage(width_px, height, QImage.Format.Format_ARGB32)
-    image.fill(Qt.GlobalColor.white)
-    painter = QPainter(image)
-    painter.setRenderHint(QPainter.RenderHint.Antialiasing)
-    renderer.render(painter, QRectF(0, 0, width_px, height))
-    painter.end()
-    return image
 
 
 def report_document(doc, options: dict) -> QTextDocument:

@@ -15,9 +15,10 @@ from PySide6.QtGui import QColor
 from PySide6.QtWidgets import QVBoxLayout, QWidget
 
 from bandsketch.engine.present.plotdata import BodeData
+from bandsketch.engine.present.svgfigures import bode_svg
 from bandsketch.engine.core.values import format_value
 
-from .plotexport import export_canvas
+from ..figures import write_picture
 from .style import Restyles, ViewColours, view_colours
 
 MARKER_SLOTS = (("high", True), ("high", False), ("low", True), ("low", False))
@@ -319,11 +320,14 @@ class BodePlot(Restyles, QWidget):
 
     # -- export ---------------------------------------------------------------
     def export_image(self, path: str) -> None:
-        """Save both plots as PNG or SVG, chosen by the file's suffix.
+        """Save the response shown (magnitude over phase) as PNG or SVG, chosen by the file's
+        suffix: the report's drawing of it (:func:`bandsketch.engine.present.svgfigures.bode_svg`),
+        which browsers and librsvg draw, in the light colours for paper.
 
         Raises
         ------
         ValueError
             The suffix is neither ``.png`` nor ``.svg``.
         """
-        export_canvas(self.canvas, path, "Bandsketch response")
+        if self._data is not None:
+            write_picture(bode_svg(self._data), path)

@@ -21,10 +21,13 @@ from bandsketch.engine.core.errors import BadValueError
 from bandsketch.engine.core.values import parse_value
 from bandsketch.engine.present.stepdata import time_target_lines
 from bandsketch.engine.present.timesummary import write_step_csv
-from bandsketch.engine.present.plotdata import bode_data, part_of, sweep_range, target_marks, write_curves_csv
+from bandsketch.engine.present.svgfigures import bars_svg
+from bandsketch.engine.present.plotdata import bode_data, part_of, sweep_range, target_marks, write_response_csv
 
 from .. import edits
 from ..canvas.items import PartItem
+from ..canvas.sheet_picture import sheet_svg
+from ..figures import write_picture
 from .bars import TimeConstantBars
 from .bode import BodePlot
 from .runner import AnalysisRunner, Outcome
@@ -113,6 +116,9 @@ class AnalysisPanel(QWidget):
         menu.addAction("Plot as PNG…", lambda: self._export("PNG image (*.png)", ".png"))
         menu.addAction("Plot as SVG…", lambda: self._export("SVG drawing (*.svg)", ".svg"))
         menu.addAction("Curves as CSV…", lambda: self._export("CSV table (*.csv)", ".csv"))
+        menu.addSeparator()
+        menu.addAction("Time-constant bars as SVG or PNG…", lambda: self._export_figure("bars"))
+        menu.addAction("Schematic as SVG or PNG…", lambda: self._export_figure("sheet"))
         export.setMenu(menu)
         tools.addWidget(export)
         right_layout.addLayout(tools)
@@ -402,6 +408,20 @@ class AnalysisPanel(QWidget):
         if path:
             self.export(path)
 
+    def _export_figure(self, what: str) -> None:
+        path, _ = QFileDialog.getSaveFileName(self, "Export", f"{what}.svg",
+                                              "SVG drawing (*.svg);;PNG image (*.png)")
+        if path:
+            self.export_figure(what, path)
+
+    def export_figure(self, what: str, path: str) -> None:
+        """Save the time-constant bars shown (``"bars"``) or the design's sheet (``"sheet"``,
+        drawn on paper: no selection, no test picture) as SVG or PNG, by the file's suffix."""
+        if what == "sheet":
+            write_picture(sheet_svg(self.doc), path)
+        elif self.bars.data() is not None:
+            write_picture(bars_svg(self.bars.data()), path)
+
     def export(self, path: str) -> None:
         """Save the plot on show (``.png``, ``.svg``) or its curves (``.csv``) to ``path``: the
         Bode plot's swept curves, or the step response's waveform."""
@@ -412,7 +432,7 @@ class AnalysisPanel(QWidget):
             if self.good.step is not None:  # an unstable stage has no waveform to write
                 write_step_csv(self.good.analysis.step_response(), path)
         else:
-            write_curves_csv(self.bode.data(), path)
+            write_response_csv(self.bode.data(), path)
 
     # -- looks ----------------------------------------------------------------------------
     def changeEvent(self, event):

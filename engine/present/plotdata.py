@@ -757,29 +757,55 @@ def verdict_data(analysis) -> VerdictData:
                        dominant, tuple(analysis.warnings))
 
 
-def write_curves_csv(data: BodeData, path) -> None:
-    """Write the plotted curves as CSV: one row per swept frequency.
+def response_csv_columns(gain_unit: str) -> list[str]:
+    """The columns of the response CSV for a stage whose gain is in ``gain_unit``.
 
-    Columns: ``frequency_hz``, ``exact_db``, ``exact_phase_deg``, ``estimate_db``,
-    ``estimate_phase_deg``. The estimate is the high-band first-order response above the
-    mid band and the low-band one below it (blank where neither is drawn). The dB are of
-    the gain unit (dB for V/V, dBΩ for V/A).
+    ``frequency_hz``; ``magnitude_db`` (dB of the gain unit: dBΩ for V/A); the linear magnitude
+    ``magnitude_v_per_v`` or ``magnitude_ohm``; ``phase_deg`` (from :func:`phase_deg`'s one
+    reference: unwrapped, the mid band at 0° for a non-inverting stage and −180° for an
+    inverting one); then each estimate's dB and phase (``high_estimate_db``,
+    ``high_estimate_phase_deg``, ``low_estimate_db``, ``low_estimate_phase_deg``), blank
+    where it is not drawn.
+
+    Parameters
+    ----------
+    gain_unit : str
+        ``"V/V"``, or ``"V/A"`` for a current input.
+    """
+    linear = "magnitude_ohm" if gain_unit == "V/A" else "magnitude_v_per_v"
+    return ["frequency_hz", "magnitude_db", linear, "phase_deg", "high_estimate_db", "high_estimate_phase_deg",
+            "low_estimate_db", "low_estimate_phase_deg"]
+
+
+def write_response_csv(data: BodeData, path) -> None:
+    """Write the response as CSV, one row per swept frequency, in the columns of
+    :func:`response_csv_columns`: the one writer of the window's export and of
+    ``bandsketch analyze --csv``. Numbers are written with a plain ``-`` and ``e`` exponents.
 
     Parameters
     ----------
     data : BodeData
+        The curves, as the Bode plot draws them.
     path : str or os.PathLike
+        Where to write the CSV.
     """
-    estimate = {}
-    for curve in (data.low_estimate, data.high_estimate):
+    estimates = []
+    for curve in (data.high_estimate, data.low_estimate):
+        at = {}
         if curve is not None:
             for f, m, ph in zip(curve.freq_hz, curve.magnitude_db, curve.phase_deg):
-                estimate[float(f)] = (f"{m:.6g}", f"{ph:.6g}")
+                at[float(f)] = (f"{m:.9g}", f"{ph:.9g}")
+        estimates.append(at)
+    exact = data.exact
+    linear = 10.0 ** (exact.magnitude_db / 20.0)
     with open(path, "w", newline="", encoding="utf-8") as fh:
         out = csv.writer(fh)
-        out.writerow(["frequency_hz", "exact_db", "exact_phase_deg", "estimate_db", "estimate_phase_deg"])
-        for f, m, ph in zip(data.exact.freq_hz, data.exact.magnitude_db, data.exact.phase_deg):
-            out.writerow([f"{f:.6g}", f"{m:.6g}", f"{ph:.6g}", *estimate.get(float(f), ("", ""))])
+        out.writerow(response_csv_columns(data.gain_unit))
+        for f, db, mag, ph in zip(exact.freq_hz, exact.magnitude_db, linear, exact.phase_deg):
+            row = [f"{f:.9g}", f"{db:.9g}", f"{mag:.9g}", f"{ph:.9g}"]
+            for at in estimates:
+                row += at.get(float(f), ("", ""))
+            out.writerow(row)
 
 
 HISTOGRAM_TICKS = 5

@@ -1,8 +1,8 @@
-"""An :class:`~bandsketch.engine.solve.analysis.Analysis` as JSON-ready data, as a readable table, as a CSV sweep."""
+"""An :class:`~bandsketch.engine.solve.analysis.Analysis` as JSON-ready data and as a readable table
+(its sweep as CSV is :func:`bandsketch.engine.present.plotdata.write_response_csv`)."""
 
 from __future__ import annotations
 
-import csv
 import math
 
 import numpy as np
@@ -11,7 +11,6 @@ from ..core.band import Band
 from ..solve.mna import SHORT
 from ..core.values import db_unit, error_text, format_value
 from .biasdata import BIAS_HEADINGS, bias_rows
-from .plotdata import phase_deg
 
 _ELEMENT_UNITS = {"capacitance": "F", "inductance": "H", "resistance": "Ω", "time_constant": "s",
                   "share": "1", "gain_shorted": None, "gain_opened": None, "midband_reactance": "Ω",
@@ -40,10 +39,17 @@ def _element(r) -> dict:
     return out
 
 
+ANALYSIS_FORMAT = "bandsketch-analysis"
+"""The ``format`` of the analysis JSON (``docs/schemas/analysis.schema.json`` describes it)."""
+ANALYSIS_FORMAT_VERSION = 1
+"""Its ``version``: raised when a key changes meaning or goes away (new keys keep it)."""
+
+
 def analysis_to_dict(a) -> dict:
     """Every field of ``a`` as plain JSON-ready data.
 
-    Keys are the attribute names; ``units`` maps each key to its unit (the gain unit is
+    ``format`` and ``version`` name the layout (:data:`ANALYSIS_FORMAT`,
+    :data:`ANALYSIS_FORMAT_VERSION`); the other keys are the attribute names; ``units`` maps each key to its unit (the gain unit is
     ``V/V`` or ``V/A``). Complex values are ``[re, im]`` pairs; a value that is infinite or
     absent is ``null`` (an inductor that sees an open circuit has ``resistance: null`` and
     ``time_constant: 0``). ``midband_states`` lists the elements shorted and opened in the
@@ -59,6 +65,8 @@ def analysis_to_dict(a) -> dict:
     for r in a.elements.values():
         states["shorted" if r.state == SHORT else "opened"].append(r.name)
     return {
+        "format": ANALYSIS_FORMAT,
+        "version": ANALYSIS_FORMAT_VERSION,
         "title": a.title,
         "gain_unit": gain,
         "midband_gain": _number(a.midband_gain),
@@ -88,7 +96,7 @@ def analysis_to_dict(a) -> dict:
         "zeros": _complex_list(a.zeros),
         "operating_point": _operating_point(a.operating_point),
         "units": {
-            "midband_gain": gain, "midband_gain_db": "dB", "midband_frequency": "Hz", "b1": "s", "b2": "s²",
+            "midband_gain": gain, "midband_gain_db": db_unit(gain), "midband_frequency": "Hz", "b1": "s", "b2": "s²",
             "high_time_constants": "s", "f_high_estimate": "Hz", "f_high_estimate_2nd": "Hz",
             "f_high_exact": "Hz", "f_low_estimate": "Hz", "f_low_estimate_squares": "Hz",
             "f_low_estimate_sum": "Hz", "f_low_exact": "Hz", "omega_low_estimate": "rad/s",
@@ -212,24 +220,3 @@ def format_table(a, title: str | None = None) -> str:
     if a.warnings:
         lines += ["", "Warnings"] + [f"  • {w}" for w in a.warnings]
     return "\n".join(lines) + "\n"
-
-
-def write_sweep_csv(a, path) -> None:
-    """Write the exact sweep to ``path``: frequency (Hz), |H| (gain unit), |H| (dB), phase
-    (degrees, read from the reference the plot uses: :func:`plotdata.phase_deg`).
-
-    Parameters
-    ----------
-    a : bandsketch.engine.solve.analysis.Analysis
-    path : str or os.PathLike
-        Where to write the CSV.
-    """
-    f, H = a.sweep_frequencies, a.sweep_response
-    with open(path, "w", newline="", encoding="utf-8") as out:
-        w = csv.writer(out)
-        w.writerow(["frequency_hz", f"magnitude_{a.gain_unit.replace('/', '_per_')}", "magnitude_db", "phase_deg"])
-        mag = np.abs(H)
-        with np.errstate(divide="ignore"):
-            db = 20 * np.log10(mag)
-        for row in zip(f, mag, db, phase_deg(a, f, H)):
-            w.writerow([f"{v:.9g}" for v in row])

@@ -168,7 +168,7 @@ def test_exports_write_png_svg_and_csv(window, tmp_path):
         path = tmp_path / f"plot.{suffix}"
         panel.export(str(path))
         assert path.stat().st_size > 100
-    assert (tmp_path / "plot.csv").read_text(encoding="utf-8").startswith("frequency_hz,exact_db")
+    assert (tmp_path / "plot.csv").read_text(encoding="utf-8").startswith("frequency_hz,magnitude_db,magnitude_v_per_v,phase_deg")
 
 
 def test_hover_reads_out_frequency_gain_and_phase(window, qtbot):

@@ -29,10 +29,12 @@ def test_plot_window_csv_and_command_line_csv_read_the_same_phase(qtbot, window,
     drawn = panel.bode.curves["exact"][1]
     plotted_f, plotted_ph = np.asarray(drawn.xData), np.asarray(drawn.yData)
     panel.export(str(tmp_path / "window.csv"))
-    window_f, window_ph = _read(tmp_path / "window.csv", "frequency_hz", "exact_phase_deg")
+    window_f, window_ph = _read(tmp_path / "window.csv", "frequency_hz", "phase_deg")
     assert main(["analyze", "--sample", "ce_hydrophone_preamp", "--csv", str(tmp_path / "cli.csv")]) == 0
     capsys.readouterr()
     cli_f, cli_ph = _read(tmp_path / "cli.csv", "frequency_hz", "phase_deg")
+    # One writer, one schema: the window's file and the command line's are the same file.
+    assert (tmp_path / "window.csv").read_text(encoding="utf-8") == (tmp_path / "cli.csv").read_text(encoding="utf-8")
     f_mid = float(np.sqrt(analysis.f_low_exact * analysis.f_high_exact))
     for at_hz in (f_mid, analysis.f_low_exact, analysis.f_high_exact, 3 * analysis.f_low_exact):
         readings = [_at(f, ph, at_hz) for f, ph in ((plotted_f, plotted_ph), (window_f, window_ph), (cli_f, cli_ph))]

@@ -14,7 +14,8 @@ from hypothesis import strategies as st
 from bandstages import common_emitter
 from bandsketch.engine import Circuit, CircuitError, analyze
 from bandsketch.engine.solve.mna import OPEN, build_system
-from bandsketch.engine.present.summary import analysis_to_dict, format_table, write_sweep_csv
+from bandsketch.engine.present.plotdata import bode_data, write_response_csv
+from bandsketch.engine.present.summary import analysis_to_dict, format_table
 
 
 # The scripting API example of issue 2, as written there (common practice, no source).
@@ -159,9 +160,11 @@ def test_dict_is_json_and_table_reads(tmp_path):
     for piece in ("Cin", "Q1.cmu", "Mid-band gain", "Upper corner", "Lower corner", "error", "dB"):
         assert piece in table
     path = tmp_path / "sweep.csv"
-    write_sweep_csv(a, path)
+    data = bode_data(a)
+    write_response_csv(data, path)
     rows = path.read_text(encoding="utf-8").splitlines()
-    assert rows[0].startswith("frequency_hz") and len(rows) == len(a.sweep_frequencies) + 1
+    assert rows[0].startswith("frequency_hz") and len(rows) == len(data.exact.freq_hz) + 1
+    assert back["format"] == "bandsketch-analysis" and back["version"] == 1
 
 
 def test_table_lists_exact_roots_with_the_right_half_plane_zero_marked():

@@ -192,19 +192,25 @@ def test_magnitude_view_keeps_the_corners_in_sight():
     assert notch.magnitude_view_db[0] == pytest.approx(notch.midband_db - plotdata.VIEW_DEPTH_DB - 6.0)
 
 
-def test_curves_csv_has_every_swept_point_and_the_estimate_where_drawn(tmp_path):
+def test_response_csv_has_every_swept_point_both_magnitudes_and_the_estimates_where_drawn(tmp_path):
     import csv
 
     d = bode_data(_two_corner())
     path = tmp_path / "curves.csv"
-    plotdata.write_curves_csv(d, path)
+    plotdata.write_response_csv(d, path)
     with path.open(encoding="utf-8") as fh:
         rows = list(csv.DictReader(fh))
+    assert list(rows[0]) == plotdata.response_csv_columns("V/V")
     assert len(rows) == len(d.exact.freq_hz)
-    assert float(rows[0]["frequency_hz"]) == pytest.approx(d.exact.freq_hz[0], rel=1e-5)
-    assert float(rows[-1]["exact_db"]) == pytest.approx(d.exact.magnitude_db[-1], abs=1e-4)
-    assert float(rows[-1]["estimate_db"]) == pytest.approx(d.high_estimate.magnitude_db[-1], abs=1e-4)
-    assert float(rows[0]["estimate_db"]) == pytest.approx(d.low_estimate.magnitude_db[0], abs=1e-4)
+    assert float(rows[0]["frequency_hz"]) == pytest.approx(d.exact.freq_hz[0], rel=1e-8)
+    last = rows[-1]
+    assert float(last["magnitude_db"]) == pytest.approx(d.exact.magnitude_db[-1], abs=1e-6)
+    # Linear and dB agree: 20·log10 of the linear magnitude is the dB column (the definition).
+    assert 20 * np.log10(float(last["magnitude_v_per_v"])) == pytest.approx(float(last["magnitude_db"]), abs=1e-6)
+    assert float(last["high_estimate_db"]) == pytest.approx(d.high_estimate.magnitude_db[-1], abs=1e-6)
+    assert last["low_estimate_db"] == "" and rows[0]["high_estimate_db"] == ""
+    assert float(rows[0]["low_estimate_db"]) == pytest.approx(d.low_estimate.magnitude_db[0], abs=1e-6)
+    assert "−" not in path.read_text(encoding="utf-8")  # machine output: the ASCII minus only
 
 
 def test_histogram_axis_labels_ticks_with_prefixes_and_spans_the_targets():

@@ -1,0 +1,77 @@
+"""Figures as files: the Bode plot, the time-constant bars and the design's sheet as SVG (plain
+SVG 1.1 with pixel width, height and viewBox, which browsers and librsvg draw) or as PNG at a
+chosen resolution, from the window's Export menu and ``bandsketch figure`` alike.
+
+The Bode plot and the bars are the engine's drawings (:mod:`bandsketch.engine.present.svgfigures`,
+the report's own); the sheet is drawn by the scene code (:mod:`bandsketch.app.canvas.sheet_picture`).
+A PNG is the SVG drawn by Qt's SVG renderer, so both files show the same picture.
+"""
+
+from __future__ import annotations
+
+from PySide6.QtCore import QByteArray, QRectF, Qt
+from PySide6.QtGui import QImage, QPainter
+from PySide6.QtSvg import QSvgRenderer
+
+FIGURES = ("bode", "bars", "sheet")
+"""What ``bandsketch figure --what`` draws."""
+DEFAULT_DPI = 192
+"""A PNG's resolution unless one is chosen: twice a screen's 96 dpi."""
+CSS_DPI = 96
+
+
+def svg_image(svg: str, width_px: int) -> QImage:
+    """``svg`` drawn by Qt's SVG renderer into an image ``width_px`` wide (height in proportion),
+    on white."""
+    renderer = QSvgRenderer(QByteArray(svg.encode("utf-8")))
+    size = renderer.defaultSize()
+    height = max(1, round(width_px * size.height() / max(1, size.width())))
+    image = QImage(width_px, height, QImage.Format.Format_ARGB32)
+    image.fill(Qt.GlobalColor.white)
+    painter = QPainter(image)
+    painter.setRenderHint(QPainter.RenderHint.Antialiasing)
+    renderer.render(painter, QRectF(0, 0, width_px, height))
+    painter.end()
+    return image
+
+
+def write_picture(svg: str, path: str, dpi: float = DEFAULT_DPI, width_px: int | None = None) -> None:
+    """Write ``svg`` to ``path``: as is for ``.svg``, drawn for ``.png`` at ``dpi`` (a CSS pixel
+    of the SVG is 1/96 inch) or ``width_px`` pixels wide.
+
+    Raises
+    ------
+    ValueError
+        ``path`` ends in neither ``.svg`` nor ``.png``.
+    OSError
+        The file cannot be written.
+    """
+    lower = path.lower()
+    if lower.endswith(".svg"):
+        with open(path, "w", encoding="utf-8") as fh:
+            fh.write('<?xml version="1.0" encoding="UTF-8"?>\n' + svg)
+        return
+    if not lower.endswith(".png"):
+        raise ValueError(f"{path}: save the picture as FILE.svg or FILE.png")
+    if width_px is None:
+        width_px = max(1, round(QSvgRenderer(QByteArray(svg.encode("utf-8"))).defaultSize().width() * dpi / CSS_DPI))
+    image = svg_image(svg, width_px)
+    image.setDotsPerMeterX(round(dpi / 0.0254))
+    image.setDotsPerMeterY(round(dpi / 0.0254))
+    if not image.save(path, "PNG"):
+        raise OSError(0, "could not be written", path)
+
+
+def figure_svg(doc, what: str) -> str:
+    """The figure ``what`` (one of :data:`FIGURES`) of the design ``doc`` as SVG text."""
+    if what == "sheet":
+        from .canvas.sheet_picture import sheet_svg
+
+        return sheet_svg(doc)
+    from bandsketch.engine import analyze
+    from bandsketch.engine.design.netlist import design_to_circuit
+    from bandsketch.engine.present.plotdata import bar_data, bode_data
+    from bandsketch.engine.present.svgfigures import bars_svg, bode_svg
+
+    analysis = analyze(design_to_circuit(doc), bands=dict(doc.band_pins))
+    return bode_svg(bode_data(analysis)) if what == "bode" else bars_svg(bar_data(analysis))

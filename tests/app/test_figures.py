@@ -1,0 +1,73 @@
+"""Pictures as files: the Bode plot, the bars and the sheet as SVG a browser and librsvg draw
+(checked with Python's XML parser for what a renderer needs: the SVG namespace, version 1.1,
+pixel width and height with a matching viewBox, SVG 1.1 elements only, no empty path data) and
+as PNG at a chosen resolution or width; from ``bandsketch figure`` and from the window alike."""
+
+from __future__ import annotations
+
+import xml.etree.ElementTree as ET
+from pathlib import Path
+
+import pytest
+from PySide6.QtGui import QImage
+
+from bandsketch.app.cli import main
+from bandsketch.app.canvas.sheet_picture import sheet_svg
+from bandsketch.engine.design.designfile import load_design
+
+SAMPLES = Path(__file__).resolve().parents[2] / "sample_designs"
+SVG = "{http://www.w3.org/2000/svg}"
+SVG11_ELEMENTS = {"svg", "g", "defs", "title", "desc", "path", "rect", "circle", "ellipse", "line", "polyline",
+                  "polygon", "text", "tspan", "image", "clipPath", "use"}
+
+
+def check_svg(path: Path) -> tuple[float, float]:
+    """The SVG at ``path`` is one a browser and librsvg draw; returns its (width, height), px."""
+    root = ET.parse(path).getroot()
+    assert root.tag == f"{SVG}svg" and root.get("version") == "1.1" and root.get("baseProfile") is None
+    width, height = root.get("width"), root.get("height")
+    assert float(width) > 0 and float(height) > 0, "pixel sizes, no units a renderer must guess"
+    assert root.get("viewBox") == f"0 0 {width} {height}"
+    used = {el.tag.replace(SVG, "") for el in root.iter()}
+    assert used <= SVG11_ELEMENTS, used - SVG11_ELEMENTS
+    assert all(el.get("d") for el in root.iter(f"{SVG}path"))
+    return float(width), float(height)
+
+
+@pytest.mark.parametrize("what", ["bode", "bars", "sheet"])
+def test_the_command_writes_each_figure_as_svg_and_png_at_the_chosen_dpi(what, tmp_path, capsys, qapp):
+    svg, png, wide = tmp_path / f"{what}.svg", tmp_path / f"{what}.png", tmp_path / f"{what}-wide.png"
+    assert main(["figure", "--sample", "ce_hydrophone_preamp", "--what", what, "-o", str(svg)]) == 0
+    width, height = check_svg(svg)
+    assert main(["figure", "--sample", "ce_hydrophone_preamp", "--what", what, "-o", str(png), "--dpi", "300"]) == 0
+    image = QImage(str(png))
+    assert image.width() == round(width * 300 / 96)  # a CSS pixel is 1/96 inch (CSS Values 3)
+    assert abs(image.height() - height * 300 / 96) <= 1
+    assert round(image.dotsPerMeterX() * 0.0254) == 300
+    assert main(["figure", "--sample", "ce_hydrophone_preamp", "--what", what, "-o", str(wide), "--width", "1000"]) == 0
+    assert QImage(str(wide)).width() == 1000
+
+
+def test_a_figure_must_be_svg_or_png(tmp_path, capsys):
+    with pytest.raises(SystemExit) as refused:
+        main(["figure", "--sample", "ce_hydrophone_preamp", "--what", "bode", "-o", str(tmp_path / "x.jpg")])
+    assert refused.value.code == 2
+    assert "FILE.svg" in capsys.readouterr().err and not (tmp_path / "x.jpg").exists()
+
+
+def test_the_window_exports_the_same_drawings(window, tmp_path):
+    path = SAMPLES / "ce_hydrophone_preamp.json"
+    window.set_document(load_design(path), str(path))
+    panel = window.analysis_panel
+    panel.runner.wait()
+    panel.export(str(tmp_path / "bode.svg"))
+    check_svg(tmp_path / "bode.svg")
+    panel.export_figure("bars", str(tmp_path / "bars.svg"))
+    check_svg(tmp_path / "bars.svg")
+    # The sheet as drawn, whatever the window has selected or shows on it.
+    assert not panel.select_element("Cin")
+    panel.export_figure("sheet", str(tmp_path / "sheet.svg"))
+    check_svg(tmp_path / "sheet.svg")
+    assert (tmp_path / "sheet.svg").read_text(encoding="utf-8").endswith(sheet_svg(window.doc))
+    panel.export(str(tmp_path / "bode.png"))
+    assert QImage(str(tmp_path / "bode.png")).width() > 1000
