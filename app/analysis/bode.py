@@ -101,7 +101,7 @@ class BodePlot(Restyles, QWidget):
         self.gain_window = pg.LinearRegionItem(orientation="horizontal", movable=False)
         self.gain_window.setZValue(-2)
         self.magnitude.addItem(self.gain_window, ignoreBounds=True)
-        self.gain_label = pg.TextItem(anchor=(0, 0))
+        self.gain_label = pg.TextItem(anchor=(0.5, 0.5))
         self.magnitude.addItem(self.gain_label, ignoreBounds=True)
         self._targets = None
         self.cursor = tuple(pg.InfiniteLine(angle=90, movable=False) for _ in range(2))
@@ -166,12 +166,13 @@ class BodePlot(Restyles, QWidget):
         self._restyle()
 
     def _place_gain_label(self, *_) -> None:
-        # Under the left end of the window, inside the plot whatever the zoom: below f_L,
-        # where the curve has fallen away and the corner labels (which point into the mid
-        # band) are not.
+        # In the middle of the view, halfway down from the window to the plot's floor, inside
+        # the plot whatever the zoom: there the curve runs flat inside the window, so below it
+        # is empty, and the corner labels, which hug the window at the corners, are clear.
         if self._targets is not None and self._targets.gain_db is not None:
-            left = self.magnitude.getViewBox().viewRange()[0][0]
-            self.gain_label.setPos(left, self._targets.gain_db[0])
+            (left, right), (bottom, _top) = self.magnitude.getViewBox().viewRange()
+            floor = self._targets.gain_db[0]
+            self.gain_label.setPos((left + right) / 2, (floor + max(bottom, floor - 60)) / 2)
 
     def show_before(self, curve) -> None:
         """Draw ``curve`` (a :class:`bandsketch.engine.present.plotdata.Curve`) as the design
