@@ -119,7 +119,7 @@ def _analyze(args) -> int:
     from bandsketch.engine import analyze
     from bandsketch.engine.design.netlist import design_to_circuit, shorted_parts
     from bandsketch.engine.present.plotdata import bode_data, write_response_csv
-    from bandsketch.engine.present.summary import analysis_to_dict, format_table
+    from bandsketch.engine.present.summary import format_table
     from bandsketch.engine.core.errors import CircuitError
     from bandsketch.engine.present.stepdata import time_responses
     from bandsketch.engine.present.timesummary import format_time_table, time_domain_dict
@@ -138,7 +138,7 @@ def _analyze(args) -> int:
         step = pulse = None
         no_step = exc.message
     if args.json:
-        data = analysis_to_dict(analysis)
+        data = analysis.to_dict()
         data["time_domain"] = time_domain_dict(step, pulse) if step else {"problem": no_step}
         print(json.dumps(data, indent=1, ensure_ascii=False))
     else:

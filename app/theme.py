@@ -1,6 +1,6 @@
 """Canvas colours, light and dark, chosen to follow the system palette.
 
-The colours themselves are :mod:`bandsketch.engine.present.colours` (one source for the window,
+The colours themselves are :mod:`bandsketch.engine.core.colours` (one source for the window,
 the report and the exported figures); here they become Qt colours.
 """
 
@@ -10,7 +10,7 @@ from dataclasses import dataclass, fields
 
 from PySide6.QtGui import QColor, QGuiApplication, QPalette
 
-from bandsketch.engine.present import colours
+from bandsketch.engine.core import colours
 
 
 @dataclass(frozen=True)

@@ -20,7 +20,7 @@ from bandsketch.engine.design.designfile import FORMAT_NAME, FORMAT_VERSION, doc
 from bandsketch.engine.design.parts import KINDS, ROTATIONS
 from bandsketch.engine.design.samples import list_samples, load_sample
 from bandsketch.engine.design.schema import TARGET_KEYS
-from bandsketch.engine.present.summary import ANALYSIS_FORMAT, ANALYSIS_FORMAT_VERSION
+from bandsketch.engine.solve.analysisjson import ANALYSIS_FORMAT, ANALYSIS_FORMAT_VERSION
 
 ROOT = Path(__file__).resolve().parent.parent
 SCHEMAS = ROOT / "docs" / "schemas"

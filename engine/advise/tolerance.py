@@ -419,6 +419,16 @@ class Spread:
     worst_cases: tuple
     seconds: float
 
+    def __repr__(self) -> str:
+        parts = [f"{self.samples:,} samples, seed {self.seed}"]
+        for name, values in (("f_H", self.f_high), ("f_L", self.f_low)):
+            good = values[np.isfinite(values)]
+            if good.size:
+                parts.append(f"{name} median {format_value(float(np.median(good)), 'Hz')}")
+        if "all" in self.yields:
+            parts.append(f"yield {100 * self.yields['all']:.1f} %")
+        return f"<Spread {', '.join(parts)}>"
+
 
 def _histogram(figure, unit, values, nominal, lines) -> Histogram:
     good = values[np.isfinite(values)]

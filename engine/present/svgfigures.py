@@ -5,7 +5,7 @@ Plain SVG 1.1 (lines, polylines, rectangles, circles and text; no scripts, filte
 external references), so a browser, librsvg and Qt's own renderer draw it alike. Each picture
 states its ``width``, ``height`` and ``viewBox`` in CSS pixels. The data come from
 :mod:`bandsketch.engine.present.plotdata` and :mod:`bandsketch.engine.present.stepdata` and the
-colours from :mod:`bandsketch.engine.present.colours`: nothing here computes a figure.
+colours from :mod:`bandsketch.engine.core.colours`: nothing here computes a figure.
 """
 
 from __future__ import annotations
@@ -16,7 +16,7 @@ import math
 import numpy as np
 
 from ..core.values import format_value
-from .colours import LIGHT, Palette
+from ..core.colours import LIGHT, Palette
 
 SVG_NS = "http://www.w3.org/2000/svg"
 FONT = "DejaVu Sans, Helvetica, Arial, sans-serif"
@@ -108,7 +108,7 @@ def bode_svg(data, palette: Palette = LIGHT) -> str:
     """
     c = palette
     height = _T + _MAG_H + _GAP + _PHASE_H + _B
-    pic = _Picture(WIDTH, height, "Bode plot: magnitude and phase against frequency", c)
+    pic = _Picture(WIDTH, height, "Bode plot", c)
     lo, hi = data.freq_range
     lx0, lx1 = math.log10(lo), math.log10(hi)
     x0, x1 = _L, WIDTH - _R
@@ -189,7 +189,7 @@ def bars_svg(data, palette: Palette = LIGHT) -> str:
     c = palette
     rows = sum(len(g.rows) for g in data.groups)
     height = 8 + rows * _ROW_H + len(data.groups) * 28
-    pic = _Picture(WIDTH, height, "Time-constant bars: each element's share of its band", c)
+    pic = _Picture(WIDTH, height, "Time-constant bars", c)
     yy = 4.0
     for g in data.groups:
         colour = c.band(g.band)
@@ -227,7 +227,7 @@ def step_svg(data, palette: Palette = LIGHT) -> str:
     """
     c = palette
     height = _T + _STEP_H + _B
-    pic = _Picture(WIDTH, height, "Step response: output over final value against time", c)
+    pic = _Picture(WIDTH, height, "Step response", c)
     t = data.time
     curves = [v for v in (data.exact, data.first_order, data.second_order) if v is not None]
     top = max(1.1, max(float(v.max()) for v in curves) + 0.05)

@@ -5,17 +5,17 @@ from __future__ import annotations
 import csv
 
 from ..core.values import error_text, format_value
-from .summary import _number
+from ..solve.analysisjson import json_number
 
 ESTIMATE_KEYS = {"first order": "first_order", "second order": "second_order", "from f_H": "from_bandwidth"}
 
 
 def _figure_dict(f) -> dict:
-    out = {"name": f.name, "unit": f.unit, "exact": _number(f.exact)}
+    out = {"name": f.name, "unit": f.unit, "exact": json_number(f.exact)}
     for label, estimate in f.estimates.items():
         key = ESTIMATE_KEYS[label]
-        out[key] = _number(estimate)
-        out[f"{key}_error"] = _number(f.error(estimate))
+        out[key] = json_number(estimate)
+        out[f"{key}_error"] = json_number(f.error(estimate))
     return out
 
 
@@ -30,18 +30,18 @@ def time_domain_dict(step, pulse=None) -> dict:
     pulse : bandsketch.engine.solve.step.PulseResponse, optional
     """
     out = {
-        "method": step.method, "final_value": _number(step.final_value), "gain_unit": step.gain_unit,
-        "window_s": _number(step.t[-1]), "points": int(step.t.size),
-        "rise_time_s": _number(step.rise_time), "overshoot": _number(step.overshoot),
-        "undershoot": _number(step.undershoot), "settling_time_s": _number(step.settling_time),
-        "settling_time_fine_s": _number(step.settling_time_fine), "delay_s": _number(step.delay),
-        "rise_time_estimate_s": _number(step.rise_time_estimate),
-        "rise_time_estimate_2nd_s": _number(step.rise_time_estimate_2nd), "damping": _number(step.damping),
+        "method": step.method, "final_value": json_number(step.final_value), "gain_unit": step.gain_unit,
+        "window_s": json_number(step.t[-1]), "points": int(step.t.size),
+        "rise_time_s": json_number(step.rise_time), "overshoot": json_number(step.overshoot),
+        "undershoot": json_number(step.undershoot), "settling_time_s": json_number(step.settling_time),
+        "settling_time_fine_s": json_number(step.settling_time_fine), "delay_s": json_number(step.delay),
+        "rise_time_estimate_s": json_number(step.rise_time_estimate),
+        "rise_time_estimate_2nd_s": json_number(step.rise_time_estimate_2nd), "damping": json_number(step.damping),
         "figures": [_figure_dict(f) for f in step.figures], "warnings": list(step.warnings),
     }
     if pulse is not None:
-        out["pulse"] = {"width_s": _number(pulse.width), "sag": _number(pulse.sag),
-                        "sag_estimate": _number(pulse.sag_estimate)}
+        out["pulse"] = {"width_s": json_number(pulse.width), "sag": json_number(pulse.sag),
+                        "sag_estimate": json_number(pulse.sag_estimate)}
     return out
 
 

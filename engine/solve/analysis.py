@@ -29,7 +29,8 @@ from .floating import check_dc_solvable
 from .lowcorner import LowSections, low_sections
 from .mna import OPEN, SHORT, build_system
 from .response import frequency_response, poles, zeros
-from . import step
+from . import notebook, step
+from .analysisjson import analysis_to_dict
 from .timeconstants import (FULL_MATRIX_LIMIT, conductance, factorize, open_circuit, port_columns, port_diagonal,
                             port_weights, short_circuit)
 from ..network.validate import validate
@@ -154,15 +155,18 @@ class ElementResult:
     pole_zero_pair: bool
     f_zero: float | None
 
+    def __repr__(self) -> str:
+        return notebook.element_repr(self)
 
-@dataclass(frozen=True)
+
+@dataclass(frozen=True, repr=False)
 class CapacitorResult(ElementResult):
     """:class:`ElementResult` of a capacitor; ``capacitance`` in F."""
 
     capacitance: float
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, repr=False)
 class InductorResult(ElementResult):
     """:class:`ElementResult` of an inductor; ``inductance`` in H."""
 
@@ -262,6 +266,37 @@ class Analysis:
     operating_point: OperatingPoint | None = field(default=None, repr=False, compare=False)
     """The DC operating point the transistors biased from the circuit were solved at (their
     regions and the bias warnings), or None when no block is biased from the circuit."""
+
+    def __repr__(self) -> str:
+        return notebook.analysis_repr(self)
+
+    def _repr_html_(self) -> str:
+        return notebook.analysis_html(self)
+
+    def to_dict(self) -> dict:
+        """Every field as plain JSON-ready data, as ``bandsketch analyze --json`` prints it
+        (:func:`bandsketch.engine.solve.analysisjson.analysis_to_dict`)."""
+        return analysis_to_dict(self)
+
+    def to_rows(self) -> list[dict]:
+        """One dict per capacitor and inductor (element, band, mid-band state, R in Ω, τ in s,
+        share, reason): :func:`bandsketch.engine.solve.notebook.analysis_rows`."""
+        return notebook.analysis_rows(self)
+
+    def to_frame(self):
+        """:meth:`to_rows` as a pandas DataFrame indexed by element name.
+
+        Raises
+        ------
+        ImportError
+            pandas is not installed (it is not a dependency of Bandsketch).
+        """
+        try:
+            import pandas
+        except ImportError:
+            raise ImportError("Analysis.to_frame needs pandas, which Bandsketch does not install: "
+                              "pip install pandas (or use Analysis.to_rows)") from None
+        return pandas.DataFrame(self.to_rows()).set_index("element")
 
     @property
     def warnings(self) -> list[str]:

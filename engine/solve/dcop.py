@@ -132,6 +132,16 @@ class OperatingPoint:
     residual: float = field(default=0.0)
     """Largest node current sum at the accepted point, A."""
 
+    def __repr__(self) -> str:
+        devices = []
+        for name, b in self.devices.items():
+            current, voltage = (("I_C", b.ic), ("V_CE", b.vce)) if b.kind == "bjt" else (("I_D", b.id), ("V_DS", b.vds))
+            devices.append(f"{name} {b.region} ({current[0]} {format_value(current[1], 'A')}, "
+                           f"{voltage[0]} {format_value(voltage[1], 'V')})")
+        warned = f", {len(self.warnings)} warning{'s' if len(self.warnings) != 1 else ''}" if self.warnings else ""
+        return (f"<OperatingPoint {self.method}, {len(self.node_voltages)} nodes: "
+                f"{'; '.join(devices) or 'no transistors'}{warned}>")
+
 
 class _DcView:
     """The circuit as the DC equations see it: its linear elements, every node it has."""

@@ -150,6 +150,15 @@ class StepResponse:
     figures: tuple[TimeFigure, ...]
     warnings: tuple[str, ...]
 
+    def __repr__(self) -> str:
+        def t(x):
+            return "none" if x is None else format_value(x, "s")
+
+        est = f" (est. {t(self.rise_time_estimate)})" if self.rise_time_estimate is not None else ""
+        return (f"<StepResponse {self.method}: final {format_value(self.final_value, self.gain_unit)}, "
+                f"t_r {t(self.rise_time)}{est}, overshoot {100 * self.overshoot:.1f} %, "
+                f"settling {t(self.settling_time)}, {self.t.size} samples>")
+
     @property
     def overshoot_estimate(self) -> float | None:
         """Fraction: the pair's overshoot exp(−πζ/√(1 − ζ²)), 0 for ζ ≥ 1; None without b2."""
@@ -190,6 +199,10 @@ class PulseResponse:
     sag_estimate: float
     edge: StepResponse = field(repr=False)
     figures: tuple[TimeFigure, ...]
+
+    def __repr__(self) -> str:
+        return (f"<PulseResponse T {format_value(self.width, 's')}: sag {100 * self.sag:.2f} % "
+                f"(est. {100 * self.sag_estimate:.2f} %)>")
 
 
 def pair_step(b1: float, b2: float, t) -> np.ndarray:

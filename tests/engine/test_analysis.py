@@ -15,7 +15,8 @@ from bandstages import common_emitter
 from bandsketch.engine import Circuit, CircuitError, analyze
 from bandsketch.engine.solve.mna import OPEN, build_system
 from bandsketch.engine.present.plotdata import bode_data, write_response_csv
-from bandsketch.engine.present.summary import analysis_to_dict, format_table
+from bandsketch.engine.present.summary import format_table
+from bandsketch.engine.solve.analysisjson import analysis_to_dict
 
 
 # The scripting API example of issue 2, as written there (common practice, no source).
