@@ -13,7 +13,7 @@ from PySide6.QtWidgets import (QCheckBox, QComboBox, QFormLayout, QGroupBox, QLa
 
 from bandsketch.engine.core.band import Band
 from bandsketch.engine.design.schema import sourcing_problem, text_problem
-from bandsketch.engine.design.document import Change, ChangeKind, Document
+from bandsketch.engine.design.document import WIRE_CHANGES, Change, ChangeKind, Document
 from bandsketch.engine.design.parts import KINDS, Field
 from bandsketch.engine.design.sourcing import DEFAULT_SERIES, SERIES_NAMES, tolerance_fraction
 from bandsketch.engine.advise.knobs import has_device_fields, is_design_choice
@@ -223,6 +223,9 @@ class PropertiesPanel(QWidget):
         if change.what is ChangeKind.RESET:
             self.show_selection((), ())
             return
+        if change.what in WIRE_CHANGES or (change.what is ChangeKind.PART_CHANGED and change.key != self.part_name
+                                           and change.new_key in (None, change.key)):
+            return  # a wire, or another part kept its name: neither the rows nor their texts move
         if self.part_name is not None and change.what is ChangeKind.PART_CHANGED and change.key == self.part_name:
             self.part_name = change.new_key
         if self.part_name is not None and self.part_name not in self.doc.parts:

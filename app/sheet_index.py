@@ -17,8 +17,13 @@ from bandsketch.engine.design.document import PART_CHANGES, WIRE_CHANGES, Change
 Point = tuple[int, int]
 
 
+TILE = 400
+"""Scene units of one stretch of a row or column in :class:`Lines` (20 grid steps): a point
+is looked up among the segments over its own stretch, not along the whole sheet."""
+
+
 class Lines:
-    """Wire segments bucketed by the row or column they run along.
+    """Wire segments bucketed by the row or column they run along, and by stretch of it.
 
     Parameters
     ----------
@@ -27,35 +32,41 @@ class Lines:
     """
 
     def __init__(self, wires=()):
-        self._rows: dict = defaultdict(dict)  # y -> wire id -> [(x1, x2)]
-        self._cols: dict = defaultdict(dict)  # x -> wire id -> [(y1, y2)]
+        self._rows: dict = defaultdict(dict)  # (y, x stretch) -> wire id -> [(x1, x2)]
+        self._cols: dict = defaultdict(dict)  # (x, y stretch) -> wire id -> [(y1, y2)]
         for wid, points in wires:
             self.add(wid, points)
 
-    def add(self, wid, points) -> None:
-        """Index one wire's segments."""
+    def _cells(self, points):
         for (ax, ay), (bx, by) in zip(points, points[1:]):
             if ay == by and ax != bx:
-                self._rows[ay].setdefault(wid, []).append((min(ax, bx), max(ax, bx)))
+                line, at, lo, hi = self._rows, ay, min(ax, bx), max(ax, bx)
             elif ax == bx and ay != by:
-                self._cols[ax].setdefault(wid, []).append((min(ay, by), max(ay, by)))
+                line, at, lo, hi = self._cols, ax, min(ay, by), max(ay, by)
+            else:
+                continue
+            for stretch in range(lo // TILE, hi // TILE + 1):
+                yield line, (at, stretch), (lo, hi)
+
+    def add(self, wid, points) -> None:
+        """Index one wire's segments."""
+        for line, key, span in self._cells(points):
+            line[key].setdefault(wid, []).append(span)
 
     def remove(self, wid, points) -> None:
         """Drop one wire's segments (given the points it was indexed with)."""
-        for line, key in ((self._rows, lambda a, b: a[1] if a[1] == b[1] else None),
-                          (self._cols, lambda a, b: a[0] if a[0] == b[0] else None)):
-            for a, b in zip(points, points[1:]):
-                at = key(a, b)
-                if at is not None and wid in line.get(at, {}):
-                    del line[at][wid]
-                    if not line[at]:
-                        del line[at]
+        for line, key, _span in self._cells(points):
+            if wid in line.get(key, {}):
+                del line[key][wid]
+                if not line[key]:
+                    del line[key]
 
     def through(self, pt: Point) -> set:
         """Ids of the wires with a segment whose inside (not its ends) holds ``pt``."""
         x, y = pt
-        out = {wid for wid, spans in self._rows.get(y, {}).items() if any(a < x < b for a, b in spans)}
-        out.update(wid for wid, spans in self._cols.get(x, {}).items() if any(a < y < b for a, b in spans))
+        out = {wid for wid, spans in self._rows.get((y, x // TILE), {}).items() if any(a < x < b for a, b in spans)}
+        out.update(wid for wid, spans in self._cols.get((x, y // TILE), {}).items()
+                   if any(a < y < b for a, b in spans))
         return out
 
 

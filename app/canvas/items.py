@@ -8,7 +8,7 @@ so painting only draws what is already laid out.
 from __future__ import annotations
 
 import re
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 from PySide6.QtCore import QPointF, QRectF, Qt
 from PySide6.QtGui import (QBrush, QColor, QFont, QFontMetricsF, QPainterPath, QPainterPathStroker,
@@ -153,6 +153,13 @@ class PartItem(_Lit, QGraphicsItem):
 
     def show(self, part: Part, *, is_input: bool | None = None) -> None:
         """Lay the item out for ``part`` (and whether it is the design's signal input)."""
+        laid_out = hasattr(self, "_symbol")
+        if (laid_out and (is_input is None or is_input == self._is_input)
+                and replace(part, x=self.part.x, y=self.part.y) == self.part):
+            # Only moved: the layout is the part's own, relative to its origin (a drag step).
+            self.part = part
+            self.setPos(part.x, part.y)
+            return
         self.prepareGeometryChange()
         self.part = part
         if is_input is not None:
