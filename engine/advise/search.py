@@ -127,6 +127,24 @@ def _margins(targets: Targets, analysis, fh, fl, gain, nominal_times=None) -> np
     return np.min(np.vstack(cols), axis=0) if cols else np.zeros(np.size(gain))
 
 
+YIELD_CANDIDATES = 6
+"""Combinations meeting every target (those with the most margin) spread for their yield;
+the search returns the one with the highest."""
+
+
+def _highest_yield(meeting, doc, targets: Targets, samples: int):
+    """Of the combinations that meet every target at nominal, the one with the highest yield
+    under the parts' tolerances (ties to the larger margin); None if none can be spread."""
+    spread = []
+    for row in sorted(meeting, key=lambda r: -r.effect.worst_margin)[:YIELD_CANDIDATES]:
+        try:
+            y = yield_of(apply_changes(doc, row.changes), targets, samples)
+        except CircuitError:
+            continue
+        spread.append(Suggestion(row.changes, "all", None, row.effect, y))
+    return max(spread, key=lambda r: (r.spread.fraction if r.spread else -1.0, r.effect.worst_margin), default=None)
+
+
 def _nominal_times(targets: Targets, analysis) -> dict:
     if not targets.has_time() or not analysis.f_high_exact:
         return {}
@@ -177,7 +195,9 @@ def search(doc, targets: Targets, chosen=None, *, span: float = SPAN_DECADES, li
     """Standard-value combinations of two or three knobs that meet every target at once.
 
     Every combination of the knobs' series values within ``span`` decades is screened in one
-    batch; the best ``verify`` of them are analysed again in full.
+    batch; the best ``verify`` of them are analysed again in full. Of those that meet every
+    target, the :data:`YIELD_CANDIDATES` with the most margin are spread under the parts'
+    tolerances (``with_yield``) and the one with the highest yield is returned.
 
     Parameters
     ----------
@@ -253,11 +273,7 @@ def search(doc, targets: Targets, chosen=None, *, span: float = SPAN_DECADES, li
     best = max(analysed, key=lambda r: (r.meets_all, r.effect.worst_margin))
     if best.meets_all:
         if with_yield:
-            try:
-                best = Suggestion(best.changes, "all", None, best.effect,
-                                  yield_of(apply_changes(doc, best.changes), targets, samples))
-            except CircuitError:
-                pass
+            best = _highest_yield([r for r in analysed if r.meets_all], doc, targets, samples) or best
         y = (f", yield {100 * best.spread.fraction:.0f} % under the parts' tolerances{best.spread.note}"
              if best.spread else "")
         text = f"{best.label} meets every target{y} (searched {len(combos)} combinations: {reach})."
