@@ -166,13 +166,18 @@ class BodePlot(Restyles, QWidget):
         self._restyle()
 
     def _place_gain_label(self, *_) -> None:
-        # In the middle of the view, halfway down from the window to the plot's floor, inside
-        # the plot whatever the zoom: there the curve runs flat inside the window, so below it
-        # is empty, and the corner labels, which hug the window at the corners, are clear.
+        # Midway (on the log axis) between the corners as far as they are in view, halfway down
+        # from the window to the plot's floor: there the curve runs flat inside the window, so
+        # below it is empty, and the corner labels, which hug the window at the corners and
+        # point into the mid band, are furthest away.
         if self._targets is not None and self._targets.gain_db is not None:
             (left, right), (bottom, _top) = self.magnitude.getViewBox().viewRange()
+            ends = {m.corner: math.log10(m.freq_hz) for m in (self._data.markers if self._data else ())
+                    if not m.estimated}
+            lo, hi = max(left, ends.get("low", left)), min(right, ends.get("high", right))
             floor = self._targets.gain_db[0]
-            self.gain_label.setPos((left + right) / 2, (floor + max(bottom, floor - 60)) / 2)
+            self.gain_label.setPos((lo + hi) / 2 if lo < hi else (left + right) / 2,
+                                   (floor + max(bottom, floor - 60)) / 2)
 
     def show_before(self, curve) -> None:
         """Draw ``curve`` (a :class:`bandsketch.engine.present.plotdata.Curve`) as the design
