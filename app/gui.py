@@ -93,8 +93,17 @@ def run_gui(design_path: str | None = None, screenshot: str | None = None,
     int
         Exit status: 0 on success, 2 if the design (for a screenshot) cannot be read or
         ``select`` names no capacitor or inductor of it (no picture is written), 1 if the
-        picture cannot be written.
+        picture cannot be written or the system lacks a library Qt's X11 platform needs
+        (:mod:`bandsketch.app.syslibs`; the message names the packages to install).
     """
+    if not screenshot:
+        from .syslibs import install_hint, missing_xcb_libraries
+
+        missing = missing_xcb_libraries()
+        if missing:
+            # Qt would abort the process (exit 134) with a line about its "xcb" plugin.
+            print(f"bandsketch: {install_hint(missing)}", file=sys.stderr)
+            return 1
     app = offscreen_application() if screenshot else _application()
 
     from PySide6.QtCore import QEventLoop, QTimer

@@ -245,7 +245,8 @@ def format_value(x: float, unit: str = "", digits: int = 3) -> str:
         The value in the unit's SI base unit (ohms, farads, hertz, ...).
     unit : str, optional
         The unit symbol to append (``"Ω"``, ``"F"``); none if empty. A per-volt value keeps
-        its prefix apart from the unit (``"20m /V"``), which would otherwise read as millivolts.
+        its prefix apart from the unit (``"20m /V"``), which would otherwise read as millivolts;
+        ``"V/A"`` (a transimpedance) is written ``"Ω"``.
     digits : int, optional
         Significant figures to keep; trailing zeros are dropped.
 
@@ -253,7 +254,8 @@ def format_value(x: float, unit: str = "", digits: int = 3) -> str:
     -------
     str
         E.g. ``"4.7 kΩ"`` for 4700 ohms, ``"2.2 nF"``, ``"4.7k"`` with no
-        unit.  Values outside femto to tera, and values in a squared or cubed
+        unit; a negative value starts with the minus sign U+2212 (``"−42 V"``; machine outputs,
+        CSV and JSON, write numbers, with ``-``).  Values outside femto to tera, and values in a squared or cubed
         unit, use exponent form (``"1e-18 F"``, ``"4.77e-14 s²"``; ``"19.6 mA/V²"`` keeps its prefix); infinity is ``"∞ Ω"`` and NaN is ``"nan"``.
 
     Raises
@@ -265,11 +267,13 @@ def format_value(x: float, unit: str = "", digits: int = 3) -> str:
         raise ValueError(f"digits must be at least 1, not {digits}")
     if unit == "1/V":
         return f"{format_value(x, '', digits)} /V"
+    if unit == "V/A":
+        unit = "Ω"  # a transimpedance: V/A is the ohm, and reads as one everywhere
     x = float(x)
     if math.isnan(x):
         return "nan"
     space = " " if unit else ""
-    sign = "-" if x < 0 else ""
+    sign = MINUS if x < 0 else ""
     if math.isinf(x):
         return f"{sign}∞{space}{unit}"
     if x == 0:
@@ -292,6 +296,28 @@ def format_value(x: float, unit: str = "", digits: int = 3) -> str:
     significant = significant.ljust(point, "0")
     number = _strip_zeros(f"{significant[:point]}.{significant[point:]}")
     return f"{sign}{number}{space}{prefix}{unit}"
+
+
+MINUS = "\u2212"
+"""The minus sign of every value written for people (the window, the report, the tables)."""
+
+
+def format_gain(gain: float, gain_unit: str, digits: int = 3) -> str:
+    """Write a gain in its unit: a voltage gain as a plain ratio (``"−42.3 V/V"``, ``"0.895 V/V"``,
+    not ``"895 mV/V"``), a transimpedance in ohms (``"−100 kΩ"``: V/A is Ω).
+
+    Parameters
+    ----------
+    gain : float
+        The gain, signed, in the gain unit (V/V or V/A).
+    gain_unit : str
+        ``"V/V"``, or ``"V/A"`` for a current input.
+    digits : int, optional
+        Significant figures (a count, dimensionless).
+    """
+    if gain_unit == "V/V" and 1e-3 <= abs(gain) < 1e6:
+        return f"{gain:.{digits}g} V/V".replace("-", MINUS)
+    return format_value(gain, gain_unit, digits)
 
 
 def _strip_zeros(number):

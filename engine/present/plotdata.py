@@ -20,7 +20,7 @@ from typing import Mapping
 import numpy as np
 
 from ..core.band import Band
-from ..core.values import db_unit, error_text, format_value
+from ..core.values import MINUS, db_unit, error_text, format_gain, format_value
 from ..solve.mna import SHORT
 
 HALF_POWER_DB = 20 * math.log10(math.sqrt(2))
@@ -725,12 +725,8 @@ def _corner_text(sym: str, est, exact) -> str:
 
 
 def _gain_text(gain: float, unit: str) -> str:
-    if unit == "V/A":
-        value = format_value(gain, "Ω")
-    else:
-        # A voltage gain reads as a plain ratio (0.895 V/V, not 895 mV/V).
-        value = f"{gain:.3g} V/V" if 1e-3 <= abs(gain) < 1e6 else format_value(gain, "V/V")
-    return f"A_m = {value} ({float(_db(gain)):.1f} {db_unit(unit)})"
+    level = f"{float(_db(gain)):.1f}".replace("-", MINUS)
+    return f"A_m = {format_gain(gain, unit)} ({level} {db_unit(unit)})"
 
 
 def verdict_data(analysis) -> VerdictData:

@@ -8,7 +8,7 @@ import math
 
 from ..core.band import Band
 from ..solve.mna import SHORT
-from ..core.values import db_unit, error_text, format_value
+from ..core.values import MINUS, db_unit, error_text, format_gain, format_value
 from .biasdata import BIAS_HEADINGS, bias_rows
 
 def _aligned(rows) -> list[str]:
@@ -70,9 +70,9 @@ def format_table(a, title: str | None = None) -> str:
     """
     unit, db = a.gain_unit, db_unit(a.gain_unit)
     lines = [title or a.title, ""]
-    gain = f"{a.midband_gain:.4g}".replace("-", "−")
-    level = f"{20 * math.log10(abs(a.midband_gain)):.1f}".replace("-", "−")
-    lines.append(f"Mid-band gain  {gain} {unit}  ({level} {db}), band test at {format_value(a.midband_frequency, 'Hz')}")
+    level = f"{20 * math.log10(abs(a.midband_gain)):.1f}".replace("-", MINUS)
+    lines.append(f"Mid-band gain  {format_gain(a.midband_gain, unit, 4)}  ({level} {db}), "
+                 f"band test at {format_value(a.midband_frequency, 'Hz')}")
     lines.append("")
     rows = [("Element", "Band", "Mid band", "R", "τ", "Share")]
     for r in a.elements.values():

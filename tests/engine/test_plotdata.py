@@ -155,7 +155,7 @@ def test_block_internal_elements_belong_to_their_block():
 
 def test_verdict_reads_gain_corners_errors_and_the_limiting_element():
     v = verdict_data(_two_corner())
-    assert v.gain_text == "A_m = -40 V/V (32.0 dB)"
+    assert v.gain_text == "A_m = \u221240 V/V (32.0 dB)"
     assert v.high_text == "f_H ≈ 1 MHz estimated, 980 kHz exact (+2.0 %)"
     assert v.low_text == "f_L ≈ 20 Hz estimated, 20.4 Hz exact (−2.0 %)"
     assert v.dominant_text == "Cmu sets f_H (84 % of b1); Ce sets f_L (70 % of the 3 dB at f_L)"
@@ -262,4 +262,4 @@ def test_a_voltage_gain_below_one_reads_as_a_plain_ratio():
     from bandsketch.engine.present.plotdata import _gain_text
 
     assert _gain_text(0.8954, "V/V").startswith("A_m = 0.895 V/V")
-    assert _gain_text(-1e5, "V/A").startswith("A_m = -100 kΩ")
+    assert _gain_text(-1e5, "V/A").startswith("A_m = \u2212100 kΩ")  # V/A is Ω (SI brochure, BIPM 2019)

@@ -244,7 +244,7 @@ def test_unknown_field_unit_is_a_programming_error():
         ((1e6, "Hz"), "1 MHz"),
         ((0.0, "V"), "0 V"),
         ((-0.0, "V"), "0 V"),
-        ((-0.0123, "S"), "-12.3 mS"),
+        ((-0.0123, "S"), "\u221212.3 mS"),  # the minus sign U+2212 (ISO 80000-1, 7.1.3; from memory)
         ((123456, "Ω", 3), "123 kΩ"),
         ((123456, "Ω", 2), "120 kΩ"),
         ((999.96, "Ω"), "1 kΩ"),
@@ -254,7 +254,8 @@ def test_unknown_field_unit_is_a_programming_error():
         ((1e-18, "F"), "1e-18 F"),
         ((2.5e15, "Hz"), "2.5e+15 Hz"),
         ((math.inf, "Ω"), "∞ Ω"),
-        ((-math.inf, "Ω"), "-∞ Ω"),
+        ((-math.inf, "Ω"), "\u2212∞ Ω"),
+        ((-1e5, "V/A"), "\u2212100 kΩ"),  # a transimpedance reads in ohms (SI brochure, BIPM 2019)
         ((math.nan, "Ω"), "nan"),
         ((4700, ""), "4.7k"),
         ((47,), "47"),
