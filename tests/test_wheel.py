@@ -1,6 +1,7 @@
 """The wheel installs beside anything: built offline, installed into a fresh environment, and used
 from a folder that holds its own ``engine.py`` and ``app.py`` (issue 10: "the wheel installs
-beside a local engine.py"). Common practice, no source: what a wheel must hold follows from the
+beside a local engine.py"), and by a user with nothing but the wheel: samples listed and
+analysed, a report in HTML and PDF, a figure as SVG (issue 18). Common practice, no source: what a wheel must hold follows from the
 packaging (pyproject.toml), checked here by using it.
 
 Fast and offline: the wheel is built with this environment's setuptools (no build isolation,
@@ -105,3 +106,32 @@ def test_the_wheel_holds_the_samples_and_no_tests(installed, notebook_folder):
             "print(u.find_spec('bandsketch.tests') is None, u.find_spec('tests') is None)\n")
     env = {k: v for k, v in os.environ.items() if k != "PYTHONPATH"}
     assert _run([str(python), "-c", code], cwd=notebook_folder, env=env).stdout.split() == ["True", "True", "True"]
+
+
+def test_the_installed_command_lists_analyses_reports_and_draws_the_samples(installed, tmp_path):
+    # A user with the wheel and nothing else: samples listed and analysed, a review-ready report
+    # in HTML and PDF, a figure as SVG, all from a folder with no checkout in it.
+    import json
+    import xml.etree.ElementTree as ET
+
+    import pypdf
+
+    _, scripts = installed
+    command = str(scripts / "bandsketch")
+    env = {k: v for k, v in os.environ.items() if k not in ("PYTHONPATH", "QT_QPA_PLATFORM")}
+    listed = _run([command, "samples"], cwd=tmp_path, env=env).stdout
+    assert "ce_hydrophone_preamp" in listed and "two_stage_miller" in listed
+    data = json.loads(_run([command, "analyze", "--sample", "ce_hydrophone_preamp", "--json"],
+                           cwd=tmp_path, env=env).stdout)
+    assert data["format"] == "bandsketch-analysis" and data["f_high_exact"] > 0
+    for name in ("review.html", "review.pdf"):
+        _run([command, "report", "--sample", "ce_hydrophone_preamp", "-o", name, "--samples", "200"],
+             cwd=tmp_path, env=env)
+    html = (tmp_path / "review.html").read_text(encoding="utf-8")
+    assert html.count("<svg") == 4 and "ce_hydrophone_preamp.json" in html
+    pdf = pypdf.PdfReader(tmp_path / "review.pdf")
+    assert len(pdf.pages) <= 3 and "CE hydrophone preamp" in " ".join(pdf.pages[0].extract_text().split())
+    _run([command, "figure", "--sample", "ce_hydrophone_preamp", "--what", "sheet", "-o", "sheet.svg"],
+         cwd=tmp_path, env=env)
+    root = ET.parse(tmp_path / "sheet.svg").getroot()
+    assert root.tag == "{http://www.w3.org/2000/svg}svg" and root.get("viewBox")
