@@ -12,8 +12,13 @@ from itertools import count
 
 from PySide6.QtGui import QUndoCommand, QUndoStack
 
+from bandsketch.engine.advise.eseries import step_value
+from bandsketch.engine.core.errors import BadValueError
+from bandsketch.engine.core.values import format_value
 from bandsketch.engine.design.document import Document
 from bandsketch.engine.design.parts import Field
+from bandsketch.engine.design.schema import parse_field
+from bandsketch.engine.design.sourcing import series_of
 
 from . import edits
 from .edits import Patch
@@ -124,6 +129,32 @@ class Editor:
         verdict = check_field(self.doc, part, f, text)
         if verdict.ok and text.strip() != part.params.get(f.key, ""):
             self.patch(edits.edit_field(self.doc, name, f.key, text.strip()), f"Set {name} {f.label}")
+        return verdict
+
+    def step_field(self, name: str, f: Field, steps: int, run: int, *, decade: bool = False) -> FieldCheck:
+        """Move field ``f`` of part ``name`` ``steps`` places along its E series (or its equal
+        log steps, or a decade a step), as a piece of the scrub ``run`` (one undo step).
+
+        The views recompute after every piece. Returns the verdict on the new value, or why
+        the value cannot step (empty, zero, a word, out of range), pushing nothing then.
+        """
+        part = self.doc.parts[name]
+        text = part.params.get(f.key, "")
+        if not f.numeric or not text.strip():
+            return FieldCheck(False, f"{name} {f.label} has no value to step; type one first")
+        try:
+            value = parse_field(name, f, text)
+        except BadValueError as exc:
+            return FieldCheck(False, exc.message)
+        if value == 0:
+            return FieldCheck(False, f"{name} {f.label} is 0, which has no neighbour on a log scale; "
+                                     "type a value first")
+        series = series_of(part.kind, part.sourcing) if f.key == "value" else None
+        stepped = format_value(step_value(value, steps, series, decade=decade), "", digits=6)
+        verdict = check_field(self.doc, part, f, stepped)
+        if verdict.ok:
+            self.push(RunCommand(self.doc, edits.edit_field(self.doc, name, f.key, stepped),
+                                 f"Scrub {name} {f.label}", run))
         return verdict
 
     def rename(self, name: str, text: str) -> str | None:

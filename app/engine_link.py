@@ -122,3 +122,9 @@ def bias_values(bias) -> dict:
 def kind_fields(part: Part) -> tuple:
     """The fields of a part that apply now: a transistor block shows only its chosen mode's."""
     return KINDS[part.kind].active_fields(part.params)
+
+
+def main_field(part: Part):
+    """The field a double-click edits and the sheet's value scrub steps: the part's first
+    numeric field, or None."""
+    return next((f for f in kind_fields(part) if f.numeric and f.key != "mode"), None)

@@ -20,16 +20,17 @@ from . import dialogs, edits, preferences
 from .advisor.panel import AdvisorPanel
 from .analysis.panel import install_analysis_views
 from .canvas.controller import CanvasController, Mode
-from .canvas.inplace import InplaceEditor, main_field
+from .canvas.inplace import InplaceEditor
 from .canvas.scene import SchematicScene
 from .canvas.view import SchematicView
 from .guard import REPORT_HINT, unexpected
 from .commands import Editor
-from .engine_link import SheetReading
+from .engine_link import SheetReading, main_field
 from .help import HelpPanel
 from .palette import GROUPS, PartsPalette
 from .properties import PropertiesPanel
 from .recovery import SET_ASIDE_NAME, RecoveryKeeper
+from .scrub import ValueScrub
 from .theme import system_theme
 
 APP_NAME = "Bandsketch"
@@ -67,7 +68,8 @@ class MainWindow(QMainWindow):
         self.reading = SheetReading(self.doc)
         self.scene = SchematicScene(self.doc, self.theme, style, self.reading)
         self.scene.setParent(self)
-        self.controller = CanvasController(self.scene, self.editor)
+        self.scrub = ValueScrub(self.editor, self)
+        self.controller = CanvasController(self.scene, self.editor, self.scrub)
         self.view = SchematicView(self.scene, self.controller)
         # Below the sheet: the bands and response, and the design advisor, one page each.
         self.analysis_tabs = QTabWidget()
@@ -83,7 +85,7 @@ class MainWindow(QMainWindow):
 
         self.palette_panel = PartsPalette(self.theme, style)
         self.palette_panel.chosen.connect(self.controller.start_place)
-        self.properties = PropertiesPanel(self.doc, self.editor, self.theme)
+        self.properties = PropertiesPanel(self.doc, self.editor, self.theme, self.scrub)
         palette_scroll = QScrollArea()
         palette_scroll.setWidget(self.palette_panel)
         palette_scroll.setWidgetResizable(True)
@@ -168,6 +170,13 @@ class MainWindow(QMainWindow):
                             "Turn the part being placed, or the selection, a quarter clockwise")
         self.act_mirror = a("&Mirror", lambda: self.turn(False), ["Ctrl+M"], "Flip the selection left to right")
         self.act_rename = a("Re&name…", self.rename_selected, ["F2"], "Rename the selected part")
+        self.step_actions = [
+            a(text, lambda steps=steps, decade=decade: self.step_value(steps, decade), [keys],
+              f"{text} of the selected part (or the value field being edited); one undo step however many")
+            for text, keys, steps, decade in (("Step value up", "Alt+Up", 1, False),
+                                              ("Step value down", "Alt+Down", -1, False),
+                                              ("Step value a decade up", "Alt+Shift+Up", 1, True),
+                                              ("Step value a decade down", "Alt+Shift+Down", -1, True))]
         self.act_prefs = a("Pre&ferences…", self.show_preferences, [K.Preferences])
         self.act_zoom_in = a("Zoom &in", lambda: self.view.zoom_by(1.25), [K.ZoomIn])
         self.act_zoom_out = a("Zoom &out", lambda: self.view.zoom_by(0.8), [K.ZoomOut])
@@ -217,6 +226,8 @@ class MainWindow(QMainWindow):
                               self.act_select_all])
         edit_menu.addSeparator()
         edit_menu.addActions([self.act_rotate, self.act_mirror, self.act_rename])
+        step_menu = edit_menu.addMenu("S&tep value")
+        step_menu.addActions(self.step_actions)
         edit_menu.addSeparator()
         edit_menu.addAction(self.act_prefs)
         place_menu = bar.addMenu("&Place")
@@ -261,7 +272,7 @@ class MainWindow(QMainWindow):
             ("Place (single keys on the sheet)", [self.act_wire_mode, *self.place_actions]),
             ("Edit", [self.act_undo, self.act_redo, self.act_cut, self.act_copy, self.act_paste,
                       self.act_duplicate, self.act_delete, self.act_select_all, self.act_rotate,
-                      self.act_mirror, self.act_rename]),
+                      self.act_mirror, self.act_rename, *self.step_actions]),
             ("File", [self.act_new, self.act_open, self.act_save, self.act_save_as, self.act_quit]),
             ("View", [self.act_zoom_in, self.act_zoom_out, self.act_zoom_fit, self.act_zoom_selection,
                       self.act_bias, self.act_help]),
@@ -403,6 +414,13 @@ class MainWindow(QMainWindow):
         self.scene.select([name])
         self.inplace = InplaceEditor(self.view, self.editor, name, rename=True)
 
+    def step_value(self, steps: int, decade: bool = False) -> None:
+        """Step a value through its E series (a decade with ``decade``): the Properties field
+        being edited, else the one selected part's main value; steps in a row are one undo step."""
+        if self.properties.step_focused(steps, decade) or self.controller.step_selected(steps, decade):
+            return
+        self.statusBar().showMessage("Select one part to step its value", 4000)
+
     def zoom_to_selection(self) -> None:
         if not self.view.zoom_to_selection():
             self.statusBar().showMessage("Nothing is selected: select parts or wires to zoom to them", 4000)
@@ -440,6 +458,8 @@ class MainWindow(QMainWindow):
             self.doc.replace_all(previous)
             raise
         self.stack.clear()
+        self.scrub.end()
+        self.analysis_panel.drop_ghost()
         self.analysis_panel.compare_with_before(None)  # a curve of another design is no "before"
         self.analysis_panel.set_sweep(None)  # a sweep chosen for another design would mislead
         self.stack.setClean()

@@ -6,9 +6,9 @@ marked, with the reason under it, and the document keeps its previous value.
 
 from __future__ import annotations
 
-from PySide6.QtCore import Qt
+from PySide6.QtCore import QEvent, Qt
 from PySide6.QtGui import QKeySequence, QTextCursor
-from PySide6.QtWidgets import (QCheckBox, QComboBox, QFormLayout, QGroupBox, QLabel, QLineEdit,
+from PySide6.QtWidgets import (QCheckBox, QComboBox, QFormLayout, QGroupBox, QHBoxLayout, QLabel, QLineEdit,
                                QPlainTextEdit, QVBoxLayout, QWidget)
 
 from bandsketch.engine.core.band import Band
@@ -23,6 +23,7 @@ from bandsketch.engine.core.values import format_value
 from . import edits
 from .commands import Editor, RunCommand, new_run
 from .engine_link import check_field, derived_values, kind_fields
+from .scrub import ValueScrub, wheel_steps
 from .theme import Theme
 
 MODE_NAMES = {"small_signal": "Small-signal values", "operating_point": "Operating point typed",
@@ -36,6 +37,10 @@ DERIVED_LABELS = {"vt": "V_T", "fp": "f_p", "region": "Region", "ic": "I_C", "vb
                   "id": "I_D", "vgs": "V_GS", "vds": "V_DS", "vth": "V_th"}
 NOTES_LINES = 6
 """How many lines of the design's notes show without scrolling."""
+GRIP_STEP_PX = 10
+"""Pixels of drag on a value's grip per step of its value."""
+GRIP_TIP = ("Drag up or down to step the value through its E series (Shift: a decade a step); "
+            "Alt+Up/Down and Ctrl+wheel in the field do the same")
 
 
 def caption(label: str) -> str:
@@ -46,13 +51,52 @@ def caption(label: str) -> str:
     return f'{head}<sub>{sub}</sub><span style="font-size:large"> </span>' if sub else label
 
 
-class _Entry(QWidget):
-    """A line edit with the verdict under it: the value as read, or why it cannot be."""
+class _Grip(QLabel):
+    """The handle beside a value: dragging it up or down steps the value (one scrub)."""
 
-    def __init__(self, text: str, on_commit, theme: Theme):
+    def __init__(self, on_step, on_release):
+        super().__init__("⇕")
+        self._on_step, self._on_release = on_step, on_release
+        self._from: float | None = None
+        self.setObjectName("scrub_grip")
+        self.setCursor(Qt.CursorShape.SizeVerCursor)
+        self.setToolTip(GRIP_TIP)
+
+    def mousePressEvent(self, event):
+        if event.button() == Qt.MouseButton.LeftButton:
+            self._from = event.position().y()
+        event.accept()
+
+    def mouseMoveEvent(self, event):
+        if self._from is None:
+            return
+        steps = int((self._from - event.position().y()) / GRIP_STEP_PX)
+        if steps:
+            self._from -= steps * GRIP_STEP_PX
+            self._on_step(steps, bool(event.modifiers() & Qt.KeyboardModifier.ShiftModifier))
+        event.accept()
+
+    def mouseReleaseEvent(self, event):
+        if self._from is not None:
+            self._from = None
+            self._on_release()
+        event.accept()
+
+
+class _Entry(QWidget):
+    """A line edit with the verdict under it: the value as read, or why it cannot be.
+
+    ``on_step(entry, steps, decade, hold)``, when given, scrubs the value: a grip beside the
+    field, Ctrl+wheel in it (and the window's Step value keys, through :meth:`PropertiesPanel.step_focused`);
+    ``on_release`` ends a grip's drag.
+    """
+
+    def __init__(self, text: str, on_commit, theme: Theme, on_step=None, on_release=None):
         super().__init__()
         self._theme = theme
         self._on_commit = on_commit
+        self._on_step = on_step
+        self._wheel_carry = [0]
         self.edit = QLineEdit(text)
         self.note = QLabel()
         self.note.setWordWrap(True)
@@ -60,10 +104,32 @@ class _Entry(QWidget):
         box = QVBoxLayout(self)
         box.setContentsMargins(0, 0, 0, 0)
         box.setSpacing(1)
-        box.addWidget(self.edit)
+        self.grip = None
+        if on_step is None:
+            box.addWidget(self.edit)
+        else:
+            row = QHBoxLayout()
+            row.setSpacing(2)
+            row.addWidget(self.edit, 1)
+            self.grip = _Grip(lambda steps, decade: on_step(self, steps, decade, True), on_release)
+            row.addWidget(self.grip)
+            box.addLayout(row)
+            self.edit.installEventFilter(self)
         box.addWidget(self.note)
         self.invalid = False
         self.edit.editingFinished.connect(self._commit)
+
+    def eventFilter(self, watched, event):
+        asked = wheel_steps(event, self._wheel_carry) if event.type() == QEvent.Type.Wheel else None
+        if asked is None:
+            return False
+        if asked[0]:
+            self.step(*asked)
+        return True
+
+    def step(self, steps: int, decade: bool = False) -> None:
+        """Scrub the value ``steps`` places (a decade each with ``decade``)."""
+        self._on_step(self, steps, decade, False)
 
     def _commit(self):
         self._on_commit(self, self.edit.text())
@@ -160,12 +226,15 @@ class PropertiesPanel(QWidget):
         Where accepted edits go.
     theme : Theme
         Colours for verdicts.
+    scrub : ValueScrub
+        Steps a numeric field's value (its grip, Alt+Up/Down, Ctrl+wheel).
     """
 
-    def __init__(self, doc: Document, editor: Editor, theme: Theme):
+    def __init__(self, doc: Document, editor: Editor, theme: Theme, scrub: ValueScrub):
         super().__init__()
         self.doc = doc
         self.editor = editor
+        self.scrub = scrub
         self.theme = theme
         self.part_name: str | None = None
         self._selection: tuple = ((), ())
@@ -280,7 +349,9 @@ class PropertiesPanel(QWidget):
             if f.unit == "name":
                 form.addRow(f.label, self._sensed(part, f))
                 continue
-            entry = _Entry(part.params.get(f.key, ""), lambda e, t, f=f: self._set_field(e, f, t), self.theme)
+            entry = _Entry(part.params.get(f.key, ""), lambda e, t, f=f: self._set_field(e, f, t), self.theme,
+                           lambda e, steps, decade, hold, f=f: self._step_field(e, f, steps, decade, hold),
+                           self.scrub.end)
             entry.edit.setPlaceholderText("not used" if f.optional else "")
             self._entries[f.key] = entry
             verdict = check_field(self.doc, part, f, entry.edit.text())
@@ -392,6 +463,16 @@ class PropertiesPanel(QWidget):
         if entry is not None:
             entry.show_verdict(verdict.ok, verdict.shown)
 
+    def _step_field(self, entry: _Entry, f: Field, steps: int, decade: bool, hold: bool) -> None:
+        verdict = self.scrub.step(self.part_name, f.key, steps, decade=decade, hold=hold)
+        # The entry shows the document's value even while it has the keyboard: the scrub
+        # works from the value the design holds, not from text typed and not yet accepted.
+        entry.invalid = False
+        entry.edit.setText(self.doc.parts[self.part_name].params.get(f.key, ""))
+        check = verdict if verdict.ok else check_field(self.doc, self.doc.parts[self.part_name], f,
+                                                       entry.edit.text())
+        entry.show_verdict(check.ok, check.shown if verdict.ok else f"{check.shown} — {verdict.shown}")
+
     def _rename(self, entry: _Entry, text: str) -> None:
         problem = self.editor.rename(self.part_name, text)
         entry.show_verdict(problem is None, problem or "")
@@ -447,6 +528,14 @@ class PropertiesPanel(QWidget):
             shown.setObjectName(f"derived_{key}")
             shown.setTextInteractionFlags(Qt.TextInteractionFlag.TextSelectableByMouse)
             self._derived.addRow(caption(labels.get(key, key)), shown)
+
+    def step_focused(self, steps: int, decade: bool = False) -> bool:
+        """Step the value whose field has the keyboard (Alt+Up/Down); False when none has."""
+        for entry in self._entries.values():
+            if entry.grip is not None and entry.edit.hasFocus():
+                entry.step(steps, decade)
+                return True
+        return False
 
     def focus_field(self, key: str) -> None:
         """Put the cursor in one field's entry (when a part is shown)."""

@@ -75,9 +75,16 @@ class BodePlot(Restyles, QWidget):
         # Phase reads in quarter turns, a designer's steps (an inversion, a pole's full lag).
         self.phase.getAxis("left").setTickSpacing(PHASE_MAJOR_DEG, PHASE_MAJOR_DEG / 2)
         self.curves = {key: (self.magnitude.plot(), self.phase.plot()) for key in ("exact", "high", "low")}
-        # The exact curve of the design before an applied suggestion, kept until dismissed.
+        # The exact curve of the design before a change (an applied suggestion, kept until
+        # dismissed; a value scrub, kept while it lasts), and how the corners moved since.
         self.before = (self.magnitude.plot(), self.phase.plot())
         self._before_shown = False
+        self._before_what = "before the change"
+        self.before_note = pg.TextItem(anchor=(0.5, 0))
+        self._before_shift = None
+        self.before_note.setZValue(2)
+        self.magnitude.addItem(self.before_note, ignoreBounds=True)
+        self.before_note.hide()
         self.half_power = pg.InfiniteLine(angle=0, movable=False)
         self.magnitude.addItem(self.half_power, ignoreBounds=True)
         self.markers = {}
@@ -110,6 +117,7 @@ class BodePlot(Restyles, QWidget):
         self.canvas.scene().sigMouseMoved.connect(self._on_mouse_moved)
         self.magnitude.getViewBox().sigRangeChanged.connect(self._lay_out_labels)
         self.magnitude.getViewBox().sigRangeChanged.connect(self._place_gain_label)
+        self.magnitude.getViewBox().sigRangeChanged.connect(self._place_before_note)
         self.magnitude.getViewBox().sigResized.connect(self._lay_out_labels)
         self._restyle()
         self.show_response(None)
@@ -179,12 +187,41 @@ class BodePlot(Restyles, QWidget):
             self.gain_label.setPos((lo + hi) / 2 if lo < hi else (left + right) / 2,
                                    (floor + max(bottom, floor - 60)) / 2)
 
-    def show_before(self, curve) -> None:
+    def show_before(self, curve, *, what: str = "before the change") -> None:
         """Draw ``curve`` (a :class:`bandsketch.engine.present.plotdata.Curve`) as the design
-        before a change, under the present one; None dismisses it."""
+        before a change, under the present one (``what`` names it in the legend), with no
+        note yet; None dismisses it."""
         self._before_shown = curve is not None
+        self._before_what = what
         for item, values in zip(self.before, ("magnitude_db", "phase_deg")):
             item.setData(curve.freq_hz if curve else [], getattr(curve, values) if curve else [])
+        self.show_before_note(None)
+
+    def show_before_note(self, shift) -> None:
+        """Write how the corners moved since the "before" curve (a
+        :class:`bandsketch.engine.present.plotdata.CornerShift`): on the exact corners'
+        labels, and what they cannot carry at the top of the plot; None takes it away."""
+        self._before_shift = shift
+        own = {mk.corner: mk.text for mk in self._data.markers if not mk.estimated} if self._data else {}
+        for corner, text in own.items():
+            moved = None if shift is None else shift.labels.get(corner)
+            self.markers[(corner, False)][2].setText(f" {moved or text} ")
+        self.before_note.setVisible(bool(shift and shift.note))
+        if shift is not None and shift.note:
+            self.before_note.setText(f" {shift.note} ")
+            self._place_before_note()
+        self._lay_out_labels()
+
+    def _place_before_note(self, *_) -> None:
+        # Top centre: above the mid band, where neither the curve nor a corner label is.
+        if self.before_note.isVisible():
+            (left, right), (_, top) = self.magnitude.getViewBox().viewRange()
+            self.before_note.setPos((left + right) / 2, top)
+
+    def before_note_text(self) -> str:
+        """How the corners moved as the plot writes it ("" when it writes nothing)."""
+        shift = self._before_shift
+        return "" if shift is None or not self._before_shown else shift.text
 
     def has_before(self) -> bool:
         """Whether a "before" curve is shown."""
@@ -252,7 +289,8 @@ class BodePlot(Restyles, QWidget):
         """The key to the curves, in their colours, for a label beside the plot (a legend
         inside the plot would cover the corners it is there to show)."""
         c = self._colours
-        before = f" &nbsp; <span style='color:{c.muted.name()}'>┄ before the change</span>" if self._before_shown else ""
+        before = (f" &nbsp; <span style='color:{c.muted.name()}'>┄ {self._before_what}</span>"
+                  if self._before_shown else "")
         return (f"<span style='color:{c.ink.name()}'>━ exact</span> &nbsp; "
                 f"<span style='color:{c.high.name()}'>╍ A_m/(1 + jω b1)</span> &nbsp; "
                 f"<span style='color:{c.low.name()}'>╍ A_m·s/(s + ω_L)</span>{before}")
@@ -274,6 +312,10 @@ class BodePlot(Restyles, QWidget):
             p.setPen(pens[key])
         for item in self.before:
             item.setPen(pg.mkPen(c.muted, width=2, style=Qt.PenStyle.DotLine))
+        self.before_note.setColor(c.muted)
+        note_fill = QColor(c.paper)
+        note_fill.setAlphaF(0.85)
+        self.before_note.fill = pg.mkBrush(note_fill)
         self.half_power.setPen(pg.mkPen(c.muted, width=1, style=Qt.PenStyle.DotLine))
         for (corner, estimated), (lines, dot, label) in self.markers.items():
             colour = c.stale if grey else (c.band(corner) if estimated else c.ink)

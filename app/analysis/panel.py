@@ -9,7 +9,7 @@ drawn on the sheet. A band pin, from the bars or the canvas, is an undoable edit
 from __future__ import annotations
 
 import shiboken6
-from PySide6.QtCore import QEvent, QObject, QRectF, Qt
+from PySide6.QtCore import QEvent, QObject, QRectF, Qt, QTimer
 from PySide6.QtWidgets import (QFileDialog, QFormLayout, QHBoxLayout, QLabel, QLineEdit, QMenu, QScrollArea,
                                QSplitter, QTabWidget, QWidgetAction,
                                QToolButton, QVBoxLayout, QWidget)
@@ -22,7 +22,8 @@ from bandsketch.engine.core.values import parse_value
 from bandsketch.engine.present.stepdata import time_target_lines
 from bandsketch.engine.present.timesummary import write_step_csv
 from bandsketch.engine.present.svgfigures import bars_svg
-from bandsketch.engine.present.plotdata import bode_data, part_of, sweep_range, target_marks, write_response_csv
+from bandsketch.engine.present.plotdata import (bode_data, corner_shift, part_of, sweep_range, target_marks,
+                                                write_response_csv)
 
 from .. import edits
 from ..canvas.items import PartItem
@@ -39,6 +40,8 @@ from .verdict import ProblemBanner, VerdictStrip
 
 WIDEST_READOUT = "f = 888.8 MHz · −188.8 dBΩ · ∠ −188.8°"
 """The widest text the hover readout shows (the step view's is shorter), for its fixed width."""
+GHOST_AFTER_MS = 2000
+"""How long the curve from before a value scrub stays after the scrub ends, ms."""
 
 
 class AnalysisPanel(QWidget):
@@ -61,6 +64,13 @@ class AnalysisPanel(QWidget):
         self.focus: str | None = None
         self._chosen: str | None = None
         self._selecting = False
+        self._compared = None  # the "before" curve of an applied suggestion, kept until dismissed
+        self.ghost = None
+        """The Bode plot's data when the value scrub under way (or just over) began, or None."""
+        self._ghost_timer = QTimer(self)
+        self._ghost_timer.setSingleShot(True)
+        self._ghost_timer.setInterval(GHOST_AFTER_MS)
+        self._ghost_timer.timeout.connect(self.drop_ghost)
 
         self.runner = AnalysisRunner(self)
         self.bias_notes = BiasNotes(self.scene, window.theme)
@@ -158,6 +168,8 @@ class AnalysisPanel(QWidget):
         self.bode.hovered.connect(self.hover_readout.setText)
         self.time.hovered.connect(self.hover_readout.setText)
         self.banner.show_requested.connect(self.show_problem)
+        window.scrub.started.connect(self._scrub_started)
+        window.scrub.ended.connect(self._ghost_timer.start)
         self._context = _CanvasMenus(self)
         window.view.viewport().installEventFilter(self._context)
         self.refresh()
@@ -165,10 +177,31 @@ class AnalysisPanel(QWidget):
     # -- analysis -------------------------------------------------------------------------
     def compare_with_before(self, curve) -> None:
         """Keep ``curve`` (the exact response before a change) on the Bode plot until dismissed
-        (None dismisses it)."""
-        self.bode.show_before(curve)
-        self.dismiss_before.setVisible(curve is not None)
+        (None dismisses it). A value scrub's ghost, while it is shown, comes first."""
+        self._compared = curve
+        if self.ghost is None:
+            self.bode.show_before(curve)
+            self.dismiss_before.setVisible(curve is not None)
+            self.legend.setText(self.bode.legend_html())
+
+    def _scrub_started(self, *_) -> None:
+        """Keep the response as it is now as a ghost while the scrub lasts."""
+        self._ghost_timer.stop()
+        data = self.bode.data()
+        if self.good is None or not self.outcome.ok or data is None:
+            self.drop_ghost()
+            return
+        self.ghost = data
+        self.bode.show_before(data.exact, what="before the scrub")
+        self.dismiss_before.hide()
         self.legend.setText(self.bode.legend_html())
+
+    def drop_ghost(self) -> None:
+        """Take the scrub's ghost away (the applied suggestion's "before" curve comes back)."""
+        self._ghost_timer.stop()
+        if self.ghost is not None:
+            self.ghost = None
+            self.compare_with_before(self._compared)
 
     def refresh(self) -> None:
         """Analyse the design as it is now (the runner decides on which thread)."""
@@ -207,6 +240,8 @@ class AnalysisPanel(QWidget):
         outcome = self.good
         spans = self._span(outcome.analysis)
         self.bode.show_response(outcome.bode if spans is None else bode_data(outcome.analysis, spans))
+        if self.ghost is not None:
+            self.bode.show_before_note(corner_shift(self.ghost, self.bode.data()))
         try:
             targets = parse_targets(self.doc.targets)
         except BadValueError:

@@ -6,8 +6,8 @@ while runs stay quick (no thread hand-over to wait for), and on a worker thread 
 has taken longer than :data:`THREAD_AFTER_S`. Each request gets a generation number; only
 the newest request's outcome is delivered, and while one run is under way only the newest
 of the requests that arrive meanwhile is kept, so a burst of edits costs at most two runs.
-The exact sensitivities written beside the bars follow each delivered outcome, always on the
-worker thread (they cost as much again as the analysis).
+The exact sensitivities written beside the bars follow the delivered outcomes, always on the
+worker thread (they cost as much again as the analysis), one run at a time, the newest next.
 """
 
 from __future__ import annotations
@@ -188,6 +188,7 @@ class AnalysisRunner(QObject):
         self._relay.done.connect(self._on_done)
         self._relay.sensed.connect(self._on_sensed)
         self._sensing = 0
+        self._sense_next: Outcome | None = None
         self._generation = 0
         self._running = False
         self._pending: tuple | None = None
@@ -234,18 +235,28 @@ class AnalysisRunner(QObject):
             self._start(job)
 
     def _sense(self, outcome: Outcome) -> None:
-        self._sensing += 1
+        # One sensitivity run at a time; of the outcomes delivered meanwhile (a value scrub
+        # delivers one per step) only the newest is sensed next, so no queue builds up on the
+        # worker ahead of the next analysis.
+        if self._sensing:
+            self._sense_next = outcome
+            return
+        self._sensing = 1
         relay, generation = self._relay, outcome.generation
         self.pool.start(lambda: relay.sensed.emit(generation, sense_outcome(outcome)))
 
     def _on_sensed(self, generation: int, result) -> None:
-        self._sensing = max(0, self._sensing - 1)
+        self._sensing = 0
         if generation == self._generation:
             self.sensed.emit(result)
+        if self._sense_next is not None:
+            outcome, self._sense_next = self._sense_next, None
+            if outcome.generation == self._generation:
+                self._sense(outcome)
 
     def shutdown(self) -> None:
         """Drop what is queued and wait for the worker to finish (before the window goes)."""
-        self._pending = None
+        self._pending = self._sense_next = None
         self.pool.clear()
         self.pool.waitForDone()
         # What the worker finished is still queued for this thread; none of it is awaited now.

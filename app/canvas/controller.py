@@ -19,6 +19,8 @@ from bandsketch.engine.design.parts import GRID, KINDS
 
 from .. import edits
 from ..commands import Editor, RunCommand, new_run
+from ..engine_link import main_field
+from ..scrub import ValueScrub, wheel_steps
 from .items import Z_PREVIEW, PartItem, WireItem
 from .scene import PIN_REACH, SchematicScene
 
@@ -69,6 +71,8 @@ class CanvasController(QObject):
         The drawing.
     editor : Editor
         Where edits go.
+    scrub : ValueScrub
+        Steps the selected part's value (Ctrl+wheel over it, the Step value actions).
     """
 
     mode_changed = Signal(object)
@@ -80,10 +84,12 @@ class CanvasController(QObject):
     name_edit_requested = Signal(str)
     """The user asked to rename a part in place (its name)."""
 
-    def __init__(self, scene: SchematicScene, editor: Editor):
+    def __init__(self, scene: SchematicScene, editor: Editor, scrub: ValueScrub):
         super().__init__()
         self.scene = scene
         self.editor = editor
+        self.scrub = scrub
+        self._wheel_carry = [0]
         self.mode = Mode.SELECT
         self._before_pan = Mode.SELECT
         self._template: Template | None = None
@@ -266,6 +272,41 @@ class CanvasController(QObject):
                     self.value_edit_requested.emit(item.name)
                 return True
         return False
+
+    def wheel(self, event, pos: QPointF) -> bool:
+        """A wheel turn at scene ``pos``; True if it stepped the value of the selected part
+        under the cursor (Ctrl held, Shift for decades), False to leave it to zooming."""
+        if self.mode is not Mode.SELECT:
+            return False
+        # Anywhere in the part's box counts, its value text too: a capacitor's middle is the
+        # gap between its plates.
+        item = next((i for i in self.scene.selectedItems() if isinstance(i, PartItem)
+                     and i.sceneBoundingRect().contains(pos) and main_field(i.part) is not None), None)
+        if item is None:
+            return False
+        asked = wheel_steps(event, self._wheel_carry)
+        if asked is None:
+            return False
+        if asked[0]:
+            self._scrub(item.name, *asked)
+        return True
+
+    def step_selected(self, steps: int, decade: bool = False) -> bool:
+        """Step the value of the one selected part (Alt+Up/Down); False when not one part is
+        selected."""
+        names = self.scene.selected_names()
+        if self.mode is not Mode.SELECT or len(names) != 1:
+            return False
+        if main_field(self.doc.parts[names[0]]) is None:
+            self.message.emit(f"{names[0]} has no value to step")
+            return True
+        self._scrub(names[0], steps, decade)
+        return True
+
+    def _scrub(self, name: str, steps: int, decade: bool) -> None:
+        field = main_field(self.doc.parts[name])
+        verdict = self.scrub.step(name, field.key, steps, decade=decade)
+        self.message.emit(f"{name} {field.label} {verdict.shown}" if verdict.ok else verdict.shown)
 
     def escape(self) -> None:
         """Esc: give up the gesture under way, then go back to Select."""

@@ -9,13 +9,8 @@ from PySide6.QtWidgets import QLabel, QLineEdit
 from bandsketch.engine.design.parts import KINDS
 
 from ..commands import Editor
-from ..engine_link import kind_fields
+from ..engine_link import main_field
 from .view import SchematicView
-
-
-def main_field(part):
-    """The field a double-click edits: the part's first numeric field, or None."""
-    return next((f for f in kind_fields(part) if f.numeric and f.key != "mode"), None)
 
 
 class InplaceEditor(QLineEdit):

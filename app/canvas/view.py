@@ -99,6 +99,9 @@ class SchematicView(QGraphicsView):
 
     # -- events ------------------------------------------------------------------------
     def wheelEvent(self, event):
+        if self.controller.wheel(event, self.mapToScene(event.position().toPoint())):
+            event.accept()
+            return
         steps = event.angleDelta().y() or event.angleDelta().x()
         if steps:
             self.zoom_by(WHEEL_STEP ** steps, event.position())

@@ -161,3 +161,55 @@ def nearest_meeting(value: float, series: str, meets: Callable[[float], bool], d
         if meets(float(candidate)):
             return float(candidate)
     return None
+
+
+LOG_STEPS_PER_DECADE = 24
+"""Steps a decade for a value bought from no series (β, V_A, a rail): 10^(i/24) to three
+significant figures, about 10 % apart (common practice, no source)."""
+
+
+def _grid(series: str | None) -> tuple:
+    return rule_values(LOG_STEPS_PER_DECADE) if series is None else tuple(_mantissas(series))
+
+
+def _grid_value(mantissas: tuple, n: int) -> float:
+    decade, i = divmod(n, len(mantissas))
+    return float(f"{mantissas[i] * 10.0 ** decade:.3e}")
+
+
+def step_value(value: float, steps: int, series: str | None = None, *, decade: bool = False) -> float:
+    """The value ``steps`` places from ``value`` along its series, or a whole decade per step.
+
+    A value between two series values goes first to its neighbour on the side of the step,
+    so a step up and a step down come back to a series value.
+
+    Parameters
+    ----------
+    value : float
+        The value now, in its SI unit (Ω, F, H, V ...); non-zero. A negative value steps by
+        its size and keeps its sign.
+    steps : int
+        Places to move: positive up, negative down.
+    series : str, optional
+        One of :data:`SERIES`; None steps on :data:`LOG_STEPS_PER_DECADE` equal ratios a decade.
+    decade : bool
+        Step by a factor of ten per step instead (the mantissa as written is kept).
+
+    Returns
+    -------
+    float
+        The new value, same unit and sign.
+    """
+    size = abs(value)
+    _check_value(size)
+    sign = math.copysign(1.0, value)
+    if decade:
+        return sign * float(f"{size * 10.0 ** steps:.12g}")
+    mantissas = _grid(series)
+    per = len(mantissas)
+    first = (math.floor(math.log10(size)) - 1) * per
+    # The nearest series places at or below and at or above the value (equal when on it).
+    index = range(first, first + 3 * per)
+    below = max(n for n in index if _grid_value(mantissas, n) <= size * (1 + 1e-9))
+    above = min(n for n in index if _grid_value(mantissas, n) >= size * (1 - 1e-9))
+    return sign * _grid_value(mantissas, (below if steps > 0 else above) + steps)

@@ -510,6 +510,77 @@ def bode_data(analysis, span_hz: tuple | None = None) -> BodeData:
     return BodeData(exact, high, low, mid_db, peak, tuple(markers), analysis.gain_unit)
 
 
+@dataclass(frozen=True)
+class CornerShift:
+    """How the corners moved from one response to the next (a value scrub's note).
+
+    Attributes
+    ----------
+    text : str
+        The whole move in a line, e.g. ``"f_H 757 → 812 kHz"``: each corner that moved,
+        ``"·"`` between them; the mid-band gain's move when neither did (``"A_m 32.1 → 33.0 dB"``).
+    labels : Mapping
+        Corner (``"high"``, ``"low"``) -> the text its exact marker carries meanwhile
+        (``"f_H 757 → 812 kHz"``), for each corner that moved and is still there.
+    note : str
+        What no marker can carry, written apart: a corner that came or went, or the gain's
+        move when no corner moved; empty when the labels say it all.
+    """
+
+    text: str
+    labels: Mapping
+    note: str
+
+
+def moved_text(before: float, after: float, unit: str) -> str:
+    """``"757 → 812 kHz"``: two values with one prefix and unit when they share them.
+
+    Parameters
+    ----------
+    before, after : float
+        The values in their SI unit (Hz, Ω, F ...), the one ``unit`` names.
+    unit : str
+        That unit's symbol (``"Hz"``).
+    """
+    a, b = format_value(before, unit), format_value(after, unit)
+    head_a, _, tail_a = a.partition(" ")
+    head_b, _, tail_b = b.partition(" ")
+    return f"{head_a} → {b}" if tail_a == tail_b else f"{a} → {b}"
+
+
+def _exact_corners(data: BodeData) -> dict:
+    return {mk.corner: mk.freq_hz for mk in data.markers if not mk.estimated}
+
+
+def corner_shift(before: BodeData, after: BodeData) -> CornerShift:
+    """How the exact corners of ``after`` moved from those of ``before`` (a value scrub's note).
+
+    Parameters
+    ----------
+    before, after : BodeData
+        The responses before and after a change.
+
+    Returns
+    -------
+    CornerShift
+    """
+    old, new = _exact_corners(before), _exact_corners(after)
+    labels, apart = {}, []
+    for corner, sym in (("high", "f_H"), ("low", "f_L")):
+        if corner in old and corner in new:
+            # A move too small to change the three figures written is no move to the reader.
+            if format_value(new[corner], "Hz") != format_value(old[corner], "Hz"):
+                labels[corner] = f"{sym} {moved_text(old[corner], new[corner], 'Hz')}"
+        elif corner in old:
+            apart.append(f"{sym} {format_value(old[corner], 'Hz')} → none")
+        elif corner in new:
+            apart.append(f"{sym} none → {format_value(new[corner], 'Hz')}")
+    if not labels and not apart:
+        apart = [f"A_m {before.midband_db:.1f} → {after.midband_db:.1f} {db_unit(after.gain_unit)}"]
+    note = " · ".join(apart)
+    return CornerShift(" · ".join([*labels.values(), *apart]), MappingProxyType(labels), note)
+
+
 SENSITIVITY_HEADS = MappingProxyType({Band.HIGH: "∂ln f_H/∂ln C", Band.LOW: "∂ln f_L/∂ln C"})
 """The heading over each band's column of exact sensitivities (C stands for L on an inductor)."""
 

@@ -88,3 +88,43 @@ def test_bad_input_is_named():
         eseries.nearest(1.0, "E7")
     with pytest.raises(ValueError, match="positive"):
         eseries.nearest(-1.0, "E12")
+
+
+# -- stepping a value along its series (the value scrub) ---------------------------------
+
+def test_steps_walk_the_e24_table_across_decades():
+    # IEC 60063:2015 E24, written out: 8.2k, 9.1k, 10k, 11k, 12k.
+    assert eseries.step_value(8200, 1, "E24") == 9100
+    assert eseries.step_value(9100, 1, "E24") == 10000
+    assert eseries.step_value(8200, 4, "E24") == 12000
+    assert eseries.step_value(12000, -4, "E24") == 8200
+
+
+def test_a_value_between_series_values_goes_to_its_neighbour_first():
+    # E6 (IEC 60063:2015): 1.5, 2.2, 3.3. A typed 2.7 µF is between 2.2 and 3.3 µF.
+    assert eseries.step_value(2.7e-6, 1, "E6") == pytest.approx(3.3e-6, rel=1e-12)
+    assert eseries.step_value(2.7e-6, -1, "E6") == pytest.approx(2.2e-6, rel=1e-12)
+    assert eseries.step_value(2.7e-6, -2, "E6") == pytest.approx(1.5e-6, rel=1e-12)
+
+
+def test_without_a_series_steps_are_equal_ratios():
+    # 24 steps a decade: each is 10^(1/24) (closed form), to three significant figures.
+    up = eseries.step_value(100.0, 1)
+    assert up == 110.0  # 100 · 10^(1/24) = 110.07 → 110
+    assert eseries.step_value(100.0, 24) == 1000.0
+    assert eseries.step_value(up, -1) == 100.0
+
+
+def test_decade_steps_keep_the_mantissa_and_the_sign():
+    assert eseries.step_value(4753.0, 1, "E24", decade=True) == 47530.0
+    assert eseries.step_value(4753.0, -2, decade=True) == 47.53
+    assert eseries.step_value(-5.0, 1) == -5.11  # a negative rail grows in size: 5 · 10^(1/24)
+
+
+@given(st.floats(1e-12, 1e9), st.sampled_from(list(eseries.SERIES)))
+def test_a_step_up_then_down_lands_on_the_series(value, series):
+    up = eseries.step_value(value, 1, series)
+    assert up > value
+    back = eseries.step_value(up, -1, series)
+    assert back < up and eseries.nearest(back, series) == pytest.approx(back, rel=1e-12)
+    assert eseries.step_value(back, 1, series) == pytest.approx(up, rel=1e-12)

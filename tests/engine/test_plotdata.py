@@ -263,3 +263,27 @@ def test_a_voltage_gain_below_one_reads_as_a_plain_ratio():
 
     assert _gain_text(0.8954, "V/V").startswith("A_m = 0.895 V/V")
     assert _gain_text(-1e5, "V/A").startswith("A_m = \u2212100 kΩ")  # V/A is Ω (SI brochure, BIPM 2019)
+
+
+# -- how the corners moved (the value scrub's note beside its ghost) ---------------------
+
+def test_corner_shift_names_the_corner_that_moved():
+    # Stand-in analyses whose exact corners are 0.98 f_H and 1.02 f_L by construction.
+    before = bode_data(_two_corner(f_h=772.4e3 / 0.98))
+    after = bode_data(_two_corner(f_h=828.6e3 / 0.98))
+    shift = plotdata.corner_shift(before, after)
+    assert shift.text == "f_H 772 → 829 kHz"
+    assert dict(shift.labels) == {"high": "f_H 772 → 829 kHz"} and shift.note == ""
+
+
+def test_corner_shift_writes_both_corners_and_prefixes_apart():
+    before = bode_data(_two_corner(f_l=20.0, f_h=998e3 / 0.98))
+    after = bode_data(_two_corner(f_l=10.0, f_h=1.02e6 / 0.98))
+    assert plotdata.corner_shift(before, after).text == "f_H 998 kHz → 1.02 MHz · f_L 20.4 → 10.2 Hz"
+
+
+def test_corner_shift_without_a_move_says_the_gain():
+    # 20·log10(40) = 32.04 dB, 20·log10(44) = 32.87 dB (closed form).
+    before, after = bode_data(_two_corner(am=-40.0)), bode_data(_two_corner(am=-44.0))
+    shift = plotdata.corner_shift(before, after)
+    assert shift.text == shift.note == "A_m 32.0 → 32.9 dB" and not shift.labels
