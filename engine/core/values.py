@@ -43,6 +43,9 @@ _UNIT_NAMES = {
     "s": "seconds",
     "A/V2": "amperes per volt squared",  # A/V², as NFKC folds it
     "√V": "square-root volts",
+    "m": "metres",
+    "F/m2": "farads per square metre",  # F/m², as NFKC folds it
+    "F/m": "farads per metre",
 }
 UNITS = frozenset(_UNIT_NAMES)
 """The units the value parser knows (a unit written in a text is checked against them); the one

@@ -20,7 +20,7 @@ BLOCK_KEYWORDS = MappingProxyType({
                              "": ("rb", "cmu", "ccs", "polarity", "mode")}),
     "mosfet": MappingProxyType({"small_signal": ("gm", "ro"),
                                 "operating_point": ("id", "vov", "lam", "va"),
-                                "bias": ("vth", "kp", "lam", "gamma", "phi"),
+                                "bias": ("vth", "kp", "kprime", "w", "l", "cox", "cov", "lam", "gamma", "phi"),
                                 "": ("gmb", "cgs", "cgd", "cdb", "csb", "polarity", "mode")}),
 })
 """Block kind -> model mode -> the value keywords :meth:`Circuit.bjt` and :meth:`Circuit.mosfet`
@@ -375,8 +375,11 @@ class Circuit:
 
         Give ``gm`` (and optional ``ro``) or an operating point ``id`` and ``vov`` (with
         ``lam`` or ``va``), or, to bias it from the circuit, the square-law model: ``vth``
-        (V), ``kp`` (A/V²), optional ``lam`` (1/V), ``gamma`` (√V), ``phi`` (2φ_F, V),
-        ``polarity`` ("n" or "p"); optional ``gmb``, ``cgs``, ``cgd``, ``cdb``, ``csb``.
+        (V), ``kp`` (A/V²) or ``kprime`` (k′ = μC_ox, A/V²) with ``w`` and ``l`` (m),
+        optional ``lam`` (1/V), ``gamma`` (√V), ``phi`` (2φ_F, V), ``polarity`` ("n" or "p"),
+        and ``cox`` (F/m²) with ``w`` and ``l`` for C_gs and C_gd from the gate by region
+        (Meyer), with an optional overlap ``cov`` (F/m); optional ``gmb``, ``cgs``, ``cgd``,
+        ``cdb``, ``csb``.
 
         Parameters
         ----------

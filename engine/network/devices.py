@@ -16,9 +16,9 @@ from typing import Callable
 import numpy as np
 
 from .elements import VCCS, VCVS, Capacitor, Resistor
-from .largesignal import BjtParams, MosParams, bjt_currents, bjt_forward_active, mos_current
+from .largesignal import BjtParams, MosParams, bjt_currents, bjt_forward_active, mos_current, mos_saturated
 from ..core.errors import BadValueError
-from ..core.values import parse_value
+from ..core.values import format_value, parse_value
 
 BOLTZMANN = 1.380649e-23
 """Boltzmann constant k, J/K (exact in the SI since 2019; CODATA 2018)."""
@@ -286,10 +286,13 @@ def _bjt_large(name: str, given: dict) -> LargeBjt:
 
 @dataclass(frozen=True)
 class LargeMos:
-    """A MOS transistor biased from its circuit: its square-law model and fixed capacitances (F)."""
+    """A MOS transistor biased from its circuit: its square-law model and its capacitances (F):
+    fixed, or C_gs and C_gd from the gate area by region (``gate``, see :func:`meyer_gate_caps`)."""
 
     params: MosParams
     caps: MappingProxyType
+    gate: tuple | None = None
+    """(W·L·C_ox, W·C_ov) in F when the gate's size and oxide are given; None for typed C_gs, C_gd."""
 
     def nominal(self) -> dict:
         """Terminal voltages of a saturated guess (V_ov = 0.2 V, V_DS = 1 V), device polarity."""
@@ -299,23 +302,78 @@ class LargeMos:
         """g_m, g_mb (S), r_o = 1/(∂I_D/∂V_DS) (Ω) at ``volts`` (``vgs``, ``vds``, ``vbs`` in V)
         and the capacitances (F); arrays of voltages give arrays of values (one per sample)."""
         p = self.params
-        _, gm, gds, gmb, _ = mos_current(volts["vgs"], volts["vds"], volts["vbs"], p.vth, p.kp, p.lam, p.gamma, p.phi)
+        _, gm, gds, gmb, vth = mos_current(volts["vgs"], volts["vds"], volts["vbs"], p.vth, p.kp, p.lam, p.gamma,
+                                           p.phi)
         with np.errstate(divide="ignore"):
             ro = np.where(gds > 0, 1.0 / np.where(gds > 0, gds, 1.0), math.inf)
         out = {"gm": gm, "gmb": gmb, "ro": ro, **{k: np.full(gm.shape, c) for k, c in self.caps.items()}}
+        if self.gate is not None:
+            out["cgs"], out["cgd"] = meyer_gate_caps(volts["vgs"], volts["vds"], vth, *self.gate)
         return out if gm.ndim else {key: float(v) for key, v in out.items()}
 
 
+def meyer_gate_caps(vgs, vds, vth, channel: float, overlap: float):
+    """C_gs and C_gd (F) of the Meyer model by region, the bulk tied to the source.
+
+    Saturation: C_gs = ⅔·W·L·C_ox + W·C_ov, C_gd = W·C_ov; triode: each ½·W·L·C_ox + W·C_ov;
+    cut-off: the gate's charge faces the bulk, so C_gs = W·L·C_ox + W·C_ov, C_gd = W·C_ov
+    (J. E. Meyer, "MOS models and circuit simulation", RCA Review 32, 1971).
+
+    Parameters
+    ----------
+    vgs, vds : float or numpy.ndarray
+        Gate-source and drain-source voltages, V, in the device's polarity.
+    vth : float or numpy.ndarray
+        Threshold at this body bias, V.
+    channel : float
+        W·L·C_ox, F.
+    overlap : float
+        W·C_ov, F (0 when no overlap is given).
+
+    Returns
+    -------
+    (numpy.ndarray, numpy.ndarray)
+        C_gs and C_gd, F.
+    """
+    vgs, vds, vth = np.broadcast_arrays(*(np.asarray(v, dtype=float) for v in (vgs, vds, vth)))
+    on = vgs > vth
+    saturated = mos_saturated(vgs, vds, vth)
+    share_s = np.where(~on, 1.0, np.where(saturated, 2.0 / 3.0, 0.5))
+    share_d = np.where(on & ~saturated, 0.5, 0.0)
+    return share_s * channel + overlap, share_d * channel + overlap
+
+
 def _mosfet_large(name: str, given: dict) -> LargeMos:
-    """Read a MOSFET's large-signal parameters: ``vth`` (V), ``kp`` (A/V²), optional ``lam``
-    (1/V), ``gamma`` (√V) with ``phi`` (2φ_F, V, default 0.7), ``polarity`` (n or p) and the
-    fixed ``cgs``, ``cgd``, ``cdb``, ``csb`` (F)."""
+    """Read a MOSFET's large-signal parameters: ``vth`` (V), ``kp`` (A/V²) or ``kprime`` (k′ =
+    μC_ox, A/V²) with ``w`` and ``l`` (m), optional ``lam`` (1/V), ``gamma`` (√V) with ``phi``
+    (2φ_F, V, default 0.7), ``polarity`` (n or p); the capacitances ``cdb``, ``csb`` (F), and
+    ``cgs``, ``cgd`` (F) typed, or, when ``w``, ``l`` and ``cox`` (F/m²) are given, from the
+    gate by region with the optional overlap ``cov`` (F/m) (:func:`meyer_gate_caps`)."""
+    w, length = _get(name, given, "w", "m"), _get(name, given, "l", "m")
+    kprime, kp = _get(name, given, "kprime", "A/V²"), _get(name, given, "kp", "A/V²")
+    if kprime is not None:
+        if w is None or length is None:
+            raise BadValueError(f"{name}: k′ sets K_P = k′·W/L; give W and L too, or K_P instead of k′",
+                                part=name, field="w" if w is None else "l", text="")
+        if kp is not None:
+            raise BadValueError(f"{name}: K_P is given as well as k′, W and L; clear K_P (k′·W/L gives "
+                                f"{format_value(kprime * w / length, 'A/V²')})", part=name, field="kp", text="")
+        kp = kprime * w / length
+    if kp is None:
+        raise BadValueError(f"{name} kp: a value is needed (K_P, or k′ with W and L)", part=name, field="kp", text="")
     params = MosParams(_sign(name, given, "p"), _get(name, given, "vth", "V", required=True, zero=True,
                                                     negative=True),
-                       _get(name, given, "kp", "A/V²", required=True), _get(name, given, "lam", "1/V") or 0.0,
+                       kp, _get(name, given, "lam", "1/V") or 0.0,
                        _get(name, given, "gamma", "√V", zero=True) or 0.0, _get(name, given, "phi", "V") or 0.7)
     caps = {cap: _get(name, given, cap, "F", zero=True) or 0.0 for cap in ("cgs", "cgd", "cdb", "csb")}
-    return LargeMos(params, MappingProxyType(caps))
+    cox = _get(name, given, "cox", "F/m²")
+    gate = None
+    if cox is not None:
+        if w is None or length is None:
+            raise BadValueError(f"{name}: C_ox gives the gate capacitances with W and L; give W and L too",
+                                part=name, field="w" if w is None else "l", text="")
+        gate = (w * length * cox, w * (_get(name, given, "cov", "F/m", zero=True) or 0.0))
+    return LargeMos(params, MappingProxyType(caps), gate)
 
 
 def opamp_values(name: str, given: dict) -> dict:

@@ -317,3 +317,52 @@ def test_every_random_bias_network_is_solved_or_refused_by_name(r1, r2, rc, re, 
         return
     assert max(abs(x) for x in _kcl_residuals(c, point).values()) < 1e-9
     assert np.isfinite(list(point.node_voltages.values())).all()
+
+
+def _sized_cs(rd="3k3", **gate):
+    # The degenerated CS stage above, its device given by size: k′ = 200 µA/V², W/L = 20,
+    # so K_P = k′·W/L = 4 mA/V² as before (Shichman–Hodges: K_P = μC_ox·W/L).
+    c = Circuit("sized CS")
+    c.rail("VDD", "vdd", 10.0)
+    c.vsource("Vs", "in", "0")
+    c.capacitor("Cin", "in", "g", "1u")
+    c.resistor("R1", "vdd", "g", "680k")
+    c.resistor("R2", "g", "0", "320k")
+    c.resistor("RD", "vdd", "d", rd)
+    c.resistor("RS", "s", "0", "1k")
+    c.mosfet("M1", drain="d", gate="g", source="s", vth=0.7, kprime="200u", w="20u", l="1u", **gate)
+    c.output("d")
+    return c
+
+
+def test_k_prime_with_w_and_l_gives_the_square_law_k():
+    sized = operating_point(_sized_cs()).devices["M1"]
+    k, vth, rs, vg = 4e-3, 0.7, 1e3, 3.2
+    u = (-1 + math.sqrt(1 + 2 * k * rs * (vg - vth))) / (k * rs)
+    assert sized.id == pytest.approx(0.5 * k * u * u, rel=1e-9)
+
+
+@pytest.mark.parametrize("rd, region, share_s, share_d", [("3k3", "saturation", 2 / 3, 0.0),
+                                                          ("20k", "triode", 0.5, 0.5)])
+def test_gate_capacitances_follow_the_meyer_model_by_region(rd, region, share_s, share_d):
+    # Meyer (RCA Review 32, 1971): saturation C_gs = ⅔WLC_ox + WC_ov, C_gd = WC_ov; triode
+    # each ½WLC_ox + WC_ov. W = 20 µm, L = 1 µm, C_ox = 8.6 mF/m² (8.6 fF/µm², about 4 nm of
+    # SiO₂: ε_ox/t_ox = 3.45e-11/4e-9, value from memory), C_ov = 0.3 nF/m (0.3 fF/µm).
+    a = analyze(_sized_cs(rd, cox="8.6m", cov="0.3n"))
+    assert a.operating_point.devices["M1"].region == region
+    channel, overlap = 20e-6 * 1e-6 * 8.6e-3, 20e-6 * 0.3e-9
+    assert a.elements["M1.cgs"].capacitance == pytest.approx(share_s * channel + overlap, rel=1e-12)
+    assert a.elements["M1.cgd"].capacitance == pytest.approx(share_d * channel + overlap, rel=1e-12)
+
+
+def test_sizes_that_do_not_add_up_are_named():
+    for given, says in (({"kprime": "200u"}, "give W and L too"), ({"kp": "4m", "kprime": "200u", "w": "20u",
+                                                                     "l": "1u"}, "clear K_P"),
+                        ({"kp": "4m", "cox": "8.6m"}, "give W and L too"), ({}, "K_P, or k′ with W and L")):
+        c = Circuit("bad sizes")
+        c.rail("VDD", "vdd", 10.0)
+        c.vsource("Vs", "g", "0")
+        c.resistor("RD", "vdd", "d", "3k3")
+        with pytest.raises(CircuitError, match=says) as refused:
+            c.mosfet("M1", drain="d", gate="g", source="0", vth=0.7, **given)
+        assert refused.value.parts == ("M1",) or "M1" in str(refused.value)
