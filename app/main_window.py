@@ -93,7 +93,15 @@ class MainWindow(QMainWindow):
         palette_scroll.setFrameShape(QScrollArea.Shape.NoFrame)
         palette_scroll.setMinimumWidth(self.palette_panel.sizeHint().width() + 16)
         self.parts_dock = self._dock("Parts", palette_scroll, Qt.DockWidgetArea.LeftDockWidgetArea)
-        self.properties_dock = self._dock("Properties", self.properties, Qt.DockWidgetArea.RightDockWidgetArea)
+        # A transistor biased from the sheet has two dozen fields: the panel scrolls rather
+        # than make the window taller than the screen.
+        properties_scroll = QScrollArea()
+        properties_scroll.setWidget(self.properties)
+        properties_scroll.setWidgetResizable(True)
+        properties_scroll.setFrameShape(QScrollArea.Shape.NoFrame)
+        properties_scroll.setMinimumWidth(self.properties.minimumSizeHint().width()
+                                          + properties_scroll.verticalScrollBar().sizeHint().width())
+        self.properties_dock = self._dock("Properties", properties_scroll, Qt.DockWidgetArea.RightDockWidgetArea)
 
         self._make_actions()
         self.help_panel = HelpPanel(self.help_sections())

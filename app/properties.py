@@ -386,6 +386,8 @@ class PropertiesPanel(QWidget):
             return
         group = QGroupBox("Advisor and tolerance")
         form = QFormLayout(group)
+        # Each choice under its label: side by side they would widen the panel past its dock.
+        form.setRowWrapPolicy(QFormLayout.RowWrapPolicy.WrapAllRows)
         outer.addWidget(group)
         chosen = any(is_design_choice(part.kind, f.key) for f in numeric)
         options = [("", "Yes: a value I choose" if chosen else "No: the device is given")]
