@@ -99,8 +99,6 @@ class MainWindow(QMainWindow):
         properties_scroll.setWidget(self.properties)
         properties_scroll.setWidgetResizable(True)
         properties_scroll.setFrameShape(QScrollArea.Shape.NoFrame)
-        properties_scroll.setMinimumWidth(self.properties.minimumSizeHint().width()
-                                          + properties_scroll.verticalScrollBar().sizeHint().width())
         self.properties_dock = self._dock("Properties", properties_scroll, Qt.DockWidgetArea.RightDockWidgetArea)
 
         self._make_actions()
