@@ -93,8 +93,10 @@ class AnalysisPanel(QWidget):
         right_layout.setSpacing(2)
         tools = QHBoxLayout()
         self.legend = QLabel(self.bode.legend_html())
-        tools.addWidget(self.legend)
-        tools.addStretch(1)
+        # It wraps rather than widen the plot's side when a scrub adds its key: the bars
+        # beside keep their width.
+        self.legend.setWordWrap(True)
+        tools.addWidget(self.legend, 1)
         self.dismiss_before = QToolButton(text="Hide before")
         self.dismiss_before.setToolTip("Remove the dotted curve of the design before the applied suggestion")
         self.dismiss_before.clicked.connect(lambda: self.compare_with_before(None))
