@@ -148,7 +148,8 @@ def step_data(step) -> StepData:
         markers.append(TimeMarker(step.peak_time / scale, 1 + step.overshoot, f"overshoot {_pct(step.overshoot)}"))
     second = f", 2nd order {_s(step.rise_time_estimate_2nd)}" if step.rise_time_estimate_2nd is not None else ""
     summary = (f"t_r {_s(step.rise_time)} (2.2·b1 {_s(step.rise_time_estimate)}{second}) · overshoot "
-               f"{_pct(step.overshoot)} · settles to 1\u00a0% in {_s(step.settling_time)}")
+               f"{_pct(step.overshoot)} · settles to 1\u00a0% in {_s(step.settling_time)}, to 0.1\u00a0% in "
+               f"{_s(step.settling_time_fine)}")
     return StepData(time=step.t / scale, time_label=label, exact=step.y / final,
                     first_order=None if step.y_first_order is None else step.y_first_order / final,
                     second_order=None if step.y_second_order is None else step.y_second_order / final,
