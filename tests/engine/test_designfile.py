@@ -342,3 +342,21 @@ def test_band_pins_are_the_enum_and_the_file_keeps_the_words():
     assert '"Cin": "low"' in text and '"Q1.cmu": "high"' in text and "Band" not in text
     with pytest.raises(ValueError, match="must be one of low, high"):
         doc.set_band_pin("Cin", Band.NEUTRAL)
+
+
+def test_time_targets_and_sizes_round_trip(tmp_path):
+    # The step targets are held like the corner targets, and a MOSFET's sizes like its other
+    # fields: saved, opened, and saved again to the same bytes.
+    doc = _design()
+    for key, text in (("rise_time_max", "20n"), ("overshoot_max", "5 %"), ("settling_time_max", "1.5u")):
+        doc.set_target(key, text)
+    doc.add_part(_part("mosfet", "M9", 400, 0, params={"mode": "bias", "vth": "0.7", "kp": "", "kprime": "200u",
+                                                       "w": "20u", "l": "1u", "cox": "8.6m", "cov": "0.3n"}))
+    path = tmp_path / "sized.json"
+    save_design(doc, path)
+    again = load_design(path)
+    assert dict(again.targets) == dict(doc.targets)
+    assert again.parts["M9"].params["w"] == "20u" and again.parts["M9"].params["cox"] == "8.6m"
+    first = path.read_bytes()
+    save_design(again, path)
+    assert path.read_bytes() == first
