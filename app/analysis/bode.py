@@ -19,7 +19,7 @@ from bandsketch.engine.present.svgfigures import bode_svg
 from bandsketch.engine.core.values import format_value
 
 from ..figures import write_picture
-from .style import Restyles, ViewColours, view_colours
+from .style import Restyles, ViewColours, gridded, set_axis_title, view_colours
 
 MARKER_SLOTS = (("high", True), ("high", False), ("low", True), ("low", False))
 """One marker item set per corner and kind; a slot with no corner is hidden."""
@@ -52,6 +52,7 @@ class BodePlot(Restyles, QWidget):
         self._data: BodeData | None = None
         self._stale = False
         self._zoomed = False
+        self._held = False
         self._colours: ViewColours = view_colours()
         layout = QVBoxLayout(self)
         layout.setContentsMargins(0, 0, 0, 0)
@@ -64,10 +65,8 @@ class BodePlot(Restyles, QWidget):
         self.phase.setXLink(self.magnitude)
         for plot, label in ((self.magnitude, "Gain (dB)"), (self.phase, "Phase (°)")):
             plot.setLogMode(x=True, y=False)
-            plot.showGrid(x=True, y=True, alpha=0.25)
+            gridded(plot)
             plot.setLabel("left", label)
-            plot.getAxis("bottom").enableAutoSIPrefix(False)
-            plot.getAxis("left").enableAutoSIPrefix(False)
             plot.setMenuEnabled(False)
             plot.hideButtons()
             plot.getViewBox().sigRangeChangedManually.connect(self._on_manual_range)
@@ -119,7 +118,7 @@ class BodePlot(Restyles, QWidget):
         self.magnitude.getViewBox().sigRangeChanged.connect(self._place_gain_label)
         self.magnitude.getViewBox().sigRangeChanged.connect(self._place_before_note)
         self.magnitude.getViewBox().sigResized.connect(self._lay_out_labels)
-        self._restyle()
+        self._style()
         self.show_response(None)
 
     # -- what is shown --------------------------------------------------------
@@ -136,7 +135,7 @@ class BodePlot(Restyles, QWidget):
             self.half_power.hide()
             self._set_cursor(None)
             return
-        self.magnitude.setLabel("left", data.gain_axis)
+        set_axis_title(self.magnitude, "left", data.gain_axis)
         exact_m.setData(data.exact.freq_hz, data.exact.magnitude_db)
         exact_p.setData(data.exact.freq_hz, data.exact.phase_deg)
         for key, curve in (("high", data.high_estimate), ("low", data.low_estimate)):
@@ -152,7 +151,7 @@ class BodePlot(Restyles, QWidget):
         self.half_power.show()
         if not self._zoomed:
             self.fit()
-        self._restyle()
+        self._style()
 
     def show_targets(self, marks) -> None:
         """Draw the designer's targets (a :class:`bandsketch.engine.present.plotdata.TargetMarks`;
@@ -171,7 +170,7 @@ class BodePlot(Restyles, QWidget):
             self.gain_window.setRegion(window)
             self.gain_label.setText(marks.gain_text)
             self._place_gain_label()
-        self._restyle()
+        self._style()
 
     def _place_gain_label(self, *_) -> None:
         # Midway (on the log axis) between the corners as far as they are in view, halfway down
@@ -228,14 +227,28 @@ class BodePlot(Restyles, QWidget):
         return self._before_shown
 
     def fit(self) -> None:
-        """Show the whole sweep and the magnitude from the mid band down to the view depth."""
+        """Show the whole sweep and the magnitude from the mid band down to the view depth
+        (while the range is held, only ever wider)."""
         self._zoomed = False
         if self._data is None:
             return
         lo, hi = self._data.freq_range
-        self.magnitude.setXRange(math.log10(lo), math.log10(hi), padding=0)
-        self.magnitude.setYRange(*self._data.magnitude_view_db, padding=0)
-        self.phase.setYRange(*self._data.phase_view_deg, padding=0)
+        ranges = ((self.magnitude, "x", (math.log10(lo), math.log10(hi))),
+                  (self.magnitude, "y", self._data.magnitude_view_db),
+                  (self.phase, "y", self._data.phase_view_deg))
+        for plot, axis, (a, b) in ranges:
+            if self._held:
+                now = plot.getViewBox().viewRange()[0 if axis == "x" else 1]
+                a, b = min(a, now[0]), max(b, now[1])
+            (plot.setXRange if axis == "x" else plot.setYRange)(a, b, padding=0)
+
+    def hold_range(self, held: bool) -> None:
+        """While ``held`` (a value scrub), new responses widen the axes where they must and
+        never narrow them: the curves move against still axes, beside the ghost, and the
+        axes are not re-ticked on every step. Letting go fits the response again."""
+        self._held = held
+        if not held and not self._zoomed:
+            self.fit()
 
     def _on_manual_range(self, *_) -> None:
         # A zoom or pan the user made is kept while edits update the curves.

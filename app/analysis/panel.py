@@ -194,6 +194,7 @@ class AnalysisPanel(QWidget):
             self.drop_ghost()
             return
         self.ghost = data
+        self.bode.hold_range(True)
         self.bode.show_before(data.exact, what="before the scrub")
         self.dismiss_before.hide()
         self.legend.setText(self.bode.legend_html())
@@ -203,6 +204,7 @@ class AnalysisPanel(QWidget):
         self._ghost_timer.stop()
         if self.ghost is not None:
             self.ghost = None
+            self.bode.hold_range(False)
             self.compare_with_before(self._compared)
 
     def refresh(self) -> None:

@@ -12,7 +12,7 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-from PySide6.QtCore import QLineF, QPointF, QRectF, Qt
+from PySide6.QtCore import QLineF, QPointF, QRectF, QSizeF, Qt
 from PySide6.QtGui import QColor, QFont, QFontMetricsF, QPainterPath, QPen
 from PySide6.QtWidgets import QGraphicsItem
 
@@ -218,6 +218,7 @@ class PictureOverlay(QGraphicsItem):
         self._label = QRectF()
         self._leader: QLineF | None = None
         self._label_lines: list = []
+        self._placed: tuple | None = None  # (what the label was placed for, its top left)
         self.setVisible(False)
 
     def set_colours(self, colours: ViewColours) -> None:
@@ -258,7 +259,16 @@ class PictureOverlay(QGraphicsItem):
         width = max(m.horizontalAdvance(t) for m, t in zip(metrics, geometry.lines)) + 16
         height = sum(m.height() for m in metrics[:len(geometry.lines)]) + 10
         blocked = list(occupied) + [self._glyph] + _line_boxes(self._leads)
-        self._label = _place_label(g, width, height, drawing, blocked, visible)
+        # While the same element is shown over the same sheet in view (a value scrub, say),
+        # the label stays where it was as long as it still covers nothing there: no search,
+        # and no label hopping about from step to step.
+        key = (geometry.element, geometry.glyph, geometry.test_nodes, _rect_key(drawing), _rect_key(visible))
+        kept = QRectF(self._placed[1], QSizeF(width, height)) if self._placed and self._placed[0] == key else None
+        if kept is not None and _covers(kept, blocked) == 0:
+            self._label = kept
+        else:
+            self._label = _place_label(g, width, height, drawing, blocked, visible)
+        self._placed = (key, self._label.topLeft())
         self._leader = _leader(g, self._label)
         self._label_lines = []
         y = self._label.top() + 5
@@ -397,6 +407,16 @@ def _seen_spots(glyph: QPointF, width: float, height: float, visible: QRectF) ->
     return sorted(spots, key=lambda r: _distance(glyph, r))
 
 
+def _covers(rect: QRectF, blocked) -> int:
+    """How many of ``blocked`` (paths or rectangles) the label at ``rect`` would touch."""
+    grown = rect.adjusted(-LABEL_CLEARANCE, -LABEL_CLEARANCE, LABEL_CLEARANCE, LABEL_CLEARANCE)
+    return sum(b.intersects(grown) for b in blocked)
+
+
+def _rect_key(rect: QRectF | None) -> tuple | None:
+    return None if rect is None else (rect.x(), rect.y(), rect.width(), rect.height())
+
+
 def _place_label(glyph: QPointF, width: float, height: float, drawing: QRectF | None, blocked,
                  visible: QRectF | None = None) -> QRectF:
     """The first of :func:`_label_spots` that covers none of ``blocked`` (paths or
@@ -407,8 +427,7 @@ def _place_label(glyph: QPointF, width: float, height: float, drawing: QRectF | 
     spots = _label_spots(glyph, width, height, drawing)
 
     def covers(rect: QRectF) -> int:
-        grown = rect.adjusted(-LABEL_CLEARANCE, -LABEL_CLEARANCE, LABEL_CLEARANCE, LABEL_CLEARANCE)
-        return sum(b.intersects(grown) for b in blocked)
+        return _covers(rect, blocked)
 
     def crossed(rect: QRectF) -> int:
         line = _leader(glyph, rect)

@@ -10,6 +10,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 from PySide6.QtGui import QColor
+from PySide6.QtWidgets import QGraphicsItem
 
 from bandsketch.engine.core.band import Band
 from bandsketch.app.theme import Theme, system_theme
@@ -46,15 +47,40 @@ def view_colours(theme: Theme | None = None) -> ViewColours:
 class Restyles:
     """A view that greys its result when it is stale and redraws when the theme changes.
 
-    The view keeps ``_stale`` and ``_colours`` and draws them in ``_restyle``.
+    The view keeps ``_stale`` and ``_colours`` and draws them in ``_restyle``, which
+    :meth:`_style` calls only when one of them differs from what was drawn last: new pens
+    make pyqtgraph re-tick its axes and re-render its symbols, most of an update's cost.
     """
 
     def set_stale(self, stale: bool) -> None:
         """Grey the result (the circuit as drawn cannot be analysed) or show it in colour."""
         self._stale = stale
-        self._restyle()
+        self._style()
 
     def set_colours(self, colours: "ViewColours") -> None:
         """Redraw in ``colours`` (the theme changed)."""
         self._colours = colours
-        self._restyle()
+        self._style()
+
+    def _style(self) -> None:
+        drawn = (self._colours, self._stale)
+        if drawn != getattr(self, "_styled", None):
+            self._styled = drawn
+            self._restyle()
+
+
+def gridded(plot) -> None:
+    """Give a pyqtgraph plot its grid, drawn once: each axis (which draws its share of the
+    grid across the plot) is kept as a picture on screen and drawn again only when its
+    ticks, range or pens change, not whenever a curve over it moves."""
+    plot.showGrid(x=True, y=True, alpha=0.25)
+    for side in ("left", "bottom"):
+        axis = plot.getAxis(side)
+        axis.enableAutoSIPrefix(False)
+        axis.setCacheMode(QGraphicsItem.CacheMode.DeviceCoordinateCache)
+
+
+def set_axis_title(plot, side: str, text: str) -> None:
+    """Title an axis, touching it only when the title changes (a new title re-ticks it)."""
+    if plot.getAxis(side).labelText != text:
+        plot.setLabel(side, text)

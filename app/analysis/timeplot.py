@@ -19,7 +19,7 @@ from PySide6.QtWidgets import QLabel, QVBoxLayout, QWidget
 from bandsketch.engine.present.stepdata import PulseData, StepData, TimeTargetLine
 
 from .plotexport import export_canvas
-from .style import Restyles, ViewColours, view_colours
+from .style import Restyles, ViewColours, gridded, set_axis_title, view_colours
 
 MARKER_COUNT = 3
 """10 %, 90 % and the overshoot's peak."""
@@ -44,6 +44,8 @@ class TimePlot(Restyles, QWidget):
         super().__init__(parent)
         self._step: StepData | None = None
         self._pulse: PulseData | None = None
+        self._problem: str | None = None
+        self._drawn = True
         self._stale = False
         self._colours: ViewColours = view_colours()
         layout = QVBoxLayout(self)
@@ -62,10 +64,8 @@ class TimePlot(Restyles, QWidget):
         self.canvas.ci.layout.setColumnStretchFactor(0, 3)
         self.canvas.ci.layout.setColumnStretchFactor(1, 2)
         for plot in (self.step, self.pulse):
-            plot.showGrid(x=True, y=True, alpha=0.25)
+            gridded(plot)
             plot.setLabel("left", "Output ÷ final value")
-            for side in ("left", "bottom"):
-                plot.getAxis(side).enableAutoSIPrefix(False)
             plot.setMenuEnabled(False)
             plot.hideButtons()
         self.curves = {key: self.step.plot() for key in ("exact", "first", "second")}
@@ -90,14 +90,29 @@ class TimePlot(Restyles, QWidget):
         self.cursor = pg.InfiniteLine(angle=90, movable=False)
         self.step.addItem(self.cursor, ignoreBounds=True)
         self.canvas.scene().sigMouseMoved.connect(self._on_mouse_moved)
-        self._restyle()
+        self._style()
         self.show_response(None, None)
 
     def show_response(self, step: StepData | None, pulse: PulseData | None, *, stale: bool = False,
                       problem: str | None = None) -> None:
         """Draw ``step`` and ``pulse`` (None: clear, and say ``problem`` if given, why there is
-        no step response); ``stale`` greys a result no longer current."""
+        no step response); ``stale`` greys a result no longer current. While the view is
+        hidden (the Bode plot's tab is on show) it is drawn when it is next shown."""
         self._step, self._pulse, self._stale = step, pulse, stale
+        self._problem = problem
+        if self.isVisible():
+            self._draw()
+        else:
+            self._drawn = False
+
+    def showEvent(self, event):
+        if not self._drawn:
+            self._draw()
+        super().showEvent(event)
+
+    def _draw(self) -> None:
+        self._drawn = True
+        step, pulse, problem = self._step, self._pulse, self._problem
         if step is None:
             for curve in (*self.curves.values(), self.pulse_curve, self.sag_curve):
                 curve.setData([], [])
@@ -122,12 +137,12 @@ class TimePlot(Restyles, QWidget):
                 label.show()
             else:
                 label.hide()
-        self.step.setLabel("bottom", f"Time ({step.time_label}) after an input step")
+        set_axis_title(self.step, "bottom", f"Time ({step.time_label}) after an input step")
         lines = [f"{step.summary} · final value {step.final_text}"]
         if pulse is not None:
             self.pulse_curve.setData(pulse.time, pulse.exact)
             self.sag_curve.setData([0.0, pulse.width], list(pulse.sag_line))
-            self.pulse.setLabel("bottom", f"Time ({pulse.time_label}), input pulse")
+            set_axis_title(self.pulse, "bottom", f"Time ({pulse.time_label}), input pulse")
             lines.append(pulse.summary)
         else:
             self.pulse_curve.setData([], [])
@@ -136,7 +151,7 @@ class TimePlot(Restyles, QWidget):
         lines += [f"<span style='color:{warn}'>• {html.escape(w)}</span>" for w in step.warnings]
         self.summary.setText("<br>".join(lines))
         self.fit()
-        self._restyle()
+        self._style()
 
     def show_targets(self, lines: tuple[TimeTargetLine, ...]) -> None:
         """Draw the designer's time targets (see

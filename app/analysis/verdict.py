@@ -61,7 +61,7 @@ class VerdictStrip(Restyles, QFrame):
             self.dominant.setText(data.dominant_text)
             self.warnings.setText("\n".join(f"• {w}" for w in data.warnings))
             self.warnings.setVisible(bool(data.warnings))
-        self._restyle()
+        self._style()
 
     def _restyle(self) -> None:
         c = self._colours
