@@ -9,6 +9,8 @@ A PNG is the SVG drawn by Qt's SVG renderer, so both files show the same picture
 
 from __future__ import annotations
 
+import re
+
 from PySide6.QtCore import QByteArray, QRectF, Qt
 from PySide6.QtGui import QImage, QPainter
 from PySide6.QtSvg import QSvgRenderer
@@ -18,6 +20,21 @@ FIGURES = ("bode", "bars", "sheet")
 DEFAULT_DPI = 192
 """A PNG's resolution unless one is chosen: twice a screen's 96 dpi."""
 CSS_DPI = 96
+
+
+_EMPTY_PATH = re.compile(r'<path[^>]*\sd=""\s*/>')
+
+
+def plain_qt_svg(text: str, width: int, height: int) -> str:
+    """What Qt's SVG generator wrote, with a root browsers and librsvg size alike: SVG 1.1 with
+    pixel ``width`` and ``height`` and the matching viewBox (Qt writes millimetres and declares
+    SVG Tiny 1.2), and without the empty paths Qt writes for an empty stroke (path data an SVG
+    reader must treat as an error)."""
+    _head, _sep, rest = text.partition("<svg")
+    _tag, close, body = rest.partition(">")
+    root = (f' xmlns="http://www.w3.org/2000/svg" xmlns:xlink="http://www.w3.org/1999/xlink" version="1.1" '
+            f'width="{width}" height="{height}" viewBox="0 0 {width} {height}"')
+    return "<svg" + root + close + _EMPTY_PATH.sub("", body)
 
 
 def svg_image(svg: str, width_px: int) -> QImage:

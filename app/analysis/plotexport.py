@@ -4,9 +4,11 @@ from __future__ import annotations
 
 import pyqtgraph as pg
 import pyqtgraph.exporters  # noqa: F401  (registers pg.exporters)
-from PySide6.QtCore import QRectF
+from PySide6.QtCore import QBuffer, QByteArray, QIODevice, QRectF, QSize
 from PySide6.QtGui import QPainter
 from PySide6.QtSvg import QSvgGenerator
+
+from ..figures import plain_qt_svg, write_picture
 
 
 def export_canvas(canvas: pg.GraphicsLayoutWidget, path: str, title: str) -> None:
@@ -25,13 +27,20 @@ def export_canvas(canvas: pg.GraphicsLayoutWidget, path: str, title: str) -> Non
         # Qt 6.12 writes, and fails on every plot with a curve.
         scene = canvas.scene()
         rect = canvas.ci.sceneBoundingRect()
+        width, height = round(rect.width()), round(rect.height())
+        data = QByteArray()
+        buf = QBuffer(data)
+        buf.open(QIODevice.OpenModeFlag.WriteOnly)
         svg = QSvgGenerator()
-        svg.setFileName(path)
-        svg.setSize(rect.size().toSize())
-        svg.setViewBox(QRectF(0, 0, rect.width(), rect.height()))
+        svg.setOutputDevice(buf)
+        svg.setSize(QSize(width, height))
+        svg.setViewBox(QRectF(0, 0, width, height))
         svg.setTitle(title)
         painter = QPainter(svg)
-        scene.render(painter, QRectF(0, 0, rect.width(), rect.height()), rect)
+        scene.render(painter, QRectF(0, 0, width, height), rect)
         painter.end()
+        buf.close()
+        # Plain SVG 1.1, as every exported picture is, so browsers and librsvg draw it.
+        write_picture(plain_qt_svg(bytes(data).decode("utf-8"), width, height), path)
     else:
         raise ValueError(f"{path}: save the plot as .png or .svg")

@@ -7,8 +7,6 @@ the design as drawn: never the window's selection, hover, zoom or a capacitor's 
 
 from __future__ import annotations
 
-import re
-
 from PySide6.QtCore import QBuffer, QByteArray, QIODevice, QRectF, QSize, Qt
 from PySide6.QtGui import QImage, QPainter
 from PySide6.QtSvg import QSvgGenerator
@@ -17,6 +15,7 @@ from bandsketch.engine.design.document import Document
 from bandsketch.engine.design.parts import GRID
 
 from ..engine_link import SheetReading
+from ..figures import plain_qt_svg
 from ..theme import LIGHT
 from .scene import SchematicScene
 from .symbols import ResistorStyle
@@ -68,22 +67,7 @@ def sheet_svg(doc: Document, style: ResistorStyle | None = None) -> str:
     gen.setDescription("The design's sheet, drawn by Bandsketch")
     _paint(scene, rect, gen, QRectF(0, 0, size.width(), size.height()))
     buf.close()
-    return _plain_svg(bytes(data).decode("utf-8"), size)
-
-
-_EMPTY_PATH = re.compile(r'<path[^>]*\sd=""\s*/>')
-
-
-def _plain_svg(text: str, size: QSize) -> str:
-    """Qt's SVG with a root browsers and librsvg size alike: SVG 1.1, pixel width and height
-    (Qt writes millimetres and declares SVG Tiny 1.2), and without the empty paths Qt writes for
-    an empty stroke (path data an SVG reader must treat as an error)."""
-    _head, _sep, rest = text.partition("<svg")
-    _tag, close, body = rest.partition(">")
-    body = _EMPTY_PATH.sub("", body)
-    root = (f' xmlns="http://www.w3.org/2000/svg" xmlns:xlink="http://www.w3.org/1999/xlink" version="1.1" '
-            f'width="{size.width()}" height="{size.height()}" viewBox="0 0 {size.width()} {size.height()}"')
-    return "<svg" + root + close + body
+    return plain_qt_svg(bytes(data).decode("utf-8"), size.width(), size.height())
 
 
 def sheet_image(doc: Document, dpi: float = 300, style: ResistorStyle | None = None) -> QImage:

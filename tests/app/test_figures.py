@@ -71,3 +71,14 @@ def test_the_window_exports_the_same_drawings(window, tmp_path):
     assert (tmp_path / "sheet.svg").read_text(encoding="utf-8").endswith(sheet_svg(window.doc))
     panel.export(str(tmp_path / "bode.png"))
     assert QImage(str(tmp_path / "bode.png")).width() > 1000
+
+
+def test_the_step_view_exports_plain_svg_too(window, tmp_path):
+    path = SAMPLES / "ce_hydrophone_preamp.json"
+    window.set_document(load_design(path), str(path))
+    panel = window.analysis_panel
+    panel.runner.wait()
+    panel.plots.setCurrentWidget(panel.time)
+    panel.export(str(tmp_path / "step.svg"))
+    check_svg(tmp_path / "step.svg")
+    assert "nan" not in (tmp_path / "step.svg").read_text(encoding="utf-8").lower()
