@@ -9,6 +9,7 @@ symbol makes its net node ``0``. A net is named by its label, else by its first 
 
 from __future__ import annotations
 
+from bisect import bisect_left, bisect_right
 from collections import defaultdict
 from dataclasses import dataclass
 from types import MappingProxyType
@@ -90,19 +91,27 @@ def build_netlist(doc) -> Netlist:
         for other in things[1:]:
             uf.join(things[0], other)
     # T-junctions: a pin or a wire end on the inside of some wire's segment.
+    # Each column and row keeps its points sorted along it, so a segment reads only the
+    # points within its span (sheets repeat the same rows across many copies of a stage).
+    touching = [(p, k) for k, p in pin_pos.items()] + ends
     by_x, by_y = defaultdict(list), defaultdict(list)
-    for pos, key in [(p, k) for k, p in pin_pos.items()] + ends:
-        by_x[pos[0]].append((pos, key))
-        by_y[pos[1]].append((pos, key))
+    for pos, key in touching:
+        by_x[pos[0]].append((pos[1], pos, key))
+        by_y[pos[1]].append((pos[0], pos, key))
+    for line in (*by_x.values(), *by_y.values()):
+        line.sort(key=lambda entry: entry[0])
+    along = {id(line): [entry[0] for entry in line] for line in (*by_x.values(), *by_y.values())}
     for wire in doc.wires.values():
         wkey = ("wire", wire.id)
         for a, b in zip(wire.points, wire.points[1:]):
-            if a[0] == b[0]:
-                candidates = by_x[a[0]]
-            elif a[1] == b[1]:
-                candidates = by_y[a[1]]
+            if a[0] == b[0] or a[1] == b[1]:
+                vertical = a[0] == b[0]
+                line = (by_x if vertical else by_y).get(a[0] if vertical else a[1], [])
+                lo, hi = sorted((a[1], b[1]) if vertical else (a[0], b[0]))
+                keys = along.get(id(line), [])
+                candidates = [(pos, key) for _, pos, key in line[bisect_left(keys, lo):bisect_right(keys, hi)]]
             else:
-                candidates = [(p, k) for k, p in pin_pos.items()] + ends
+                candidates = touching
             for pos, key in candidates:
                 if key != wkey and _on_segment(pos, a, b):
                     uf.join(wkey, key)
