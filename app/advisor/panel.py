@@ -33,7 +33,7 @@ from bandsketch.engine.advise.suggest import suggest, verdict_line
 from bandsketch.engine.advise.targets import TARGET_LABELS, check_targets, parse_targets
 from bandsketch.engine.present.plotdata import bode_data
 from bandsketch.engine.advise.tolerance import spread_of_design
-from bandsketch.engine.core.values import format_value
+from bandsketch.engine.core.values import format_signed, format_value
 
 from .. import edits
 
@@ -341,11 +341,11 @@ class AdvisorPanel(QWidget):
             self.sens_table.setItem(i, 0, label)
             for j, figure in enumerate(FIGURES, 1):
                 v = getattr(r, figure)
-                self.sens_table.setItem(i, j, _item("—" if v is None else f"{v:+.3f}", sens.notes.get(figure, ""),
+                self.sens_table.setItem(i, j, _item("—" if v is None else format_signed(v), sens.notes.get(figure, ""),
                                                     numeric=True))
             v = rise.get(r.value.label)
             self.sens_table.setItem(i, len(FIGURES) + 1, _item(
-                "—" if v is None else f"{v:+.3f}", "The estimated rise time, ln 9·b1: minus the estimated f_H's",
+                "—" if v is None else format_signed(v), "The estimated rise time, ln 9·b1: minus the estimated f_H's",
                 numeric=True))
         self.sens_notes.setText("\n".join(sens.notes.values()))
 

@@ -305,6 +305,19 @@ MINUS = "\u2212"
 """The minus sign of every value written for people (the window, the report, the tables)."""
 
 
+def format_signed(x: float, decimals: int = 3) -> str:
+    """A signed figure with its sign always written, the minus as U+2212: ``"+0.771"``, ``"−0.929"``.
+
+    Parameters
+    ----------
+    x : float
+        The figure (dimensionless: a sensitivity, a ratio).
+    decimals : int, optional
+        Digits after the point (a count, dimensionless).
+    """
+    return f"{x:+.{decimals}f}".replace("-", MINUS)
+
+
 def format_gain(gain: float, gain_unit: str, digits: int = 3) -> str:
     """Write a gain in its unit: a voltage gain as a plain ratio (``"−42.3 V/V"``, ``"0.895 V/V"``,
     not ``"895 mV/V"``), a transimpedance in ohms (``"−100 kΩ"``: V/A is Ω).

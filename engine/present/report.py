@@ -38,7 +38,7 @@ from ..advise.sensitivity import FIGURE_TITLES, sensitivities
 from ..advise.suggest import suggest, verdict_line
 from ..advise.targets import check_targets, parse_targets
 from ..advise.tolerance import spread_of_design
-from ..core.values import db_unit, error_text, format_value
+from ..core.values import MINUS, db_unit, error_text, format_signed, format_value
 from .biasdata import BIAS_HEADINGS, bias_rows
 
 CAUTION = ("These are design estimates from a linear small-signal model. Confirm them by full "
@@ -142,7 +142,7 @@ def _fmt(value, unit="", digits=3) -> str:
 
 
 def _signed(x) -> str:
-    return "—" if x is None else f"{x:+.3f}"
+    return "—" if x is None else format_signed(x)
 
 
 # -- the sections -------------------------------------------------------------------------------
@@ -255,7 +255,7 @@ def _spread_section(spread, gain_unit) -> str:
         top = sorted(w.settings, key=lambda s: -abs(s[1]))[:6]
         wc_rows.append((w.figure.replace("f_high", "f_H").replace("f_low", "f_L").replace("gain", "|A_m|"),
                         w.extreme, _fmt(w.value, unit),
-                        ", ".join(f"{label} {100 * dev:+.0f} %" for label, dev in top)))
+                        ", ".join(f"{label} {100 * dev:+.0f} %".replace("-", MINUS) for label, dev in top)))
     out.append("<p>Worst case over the vertices of the tolerance box:</p>")
     out.append(_table(("figure", "extreme", "value", "parts at the edge of their band (largest first)"),
                       wc_rows, numeric=(2,)))

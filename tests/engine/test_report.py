@@ -53,7 +53,8 @@ def test_every_figure_the_app_shows(design):
     for check in check_targets(parse_targets(doc.targets), a):
         assert _has(report, check.text)
     for row in sensitivities(c, a).rows:
-        assert f"{html.escape(row.value.label)}</td><td class=\"n\">{row.high_exact:+.3f}" in report
+        signed = f"{row.high_exact:+.3f}".replace("-", "\u2212")  # the report's one minus sign
+        assert f"{html.escape(row.value.label)}</td><td class=\"n\">{signed}" in report
     for key, y in spread.yields.items():
         assert f"{100 * y:.1f} %" in report
 
