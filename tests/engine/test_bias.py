@@ -87,21 +87,27 @@ def test_divider_biased_ce_matches_the_textbook_iteration():
     assert max(abs(x) for x in _kcl_residuals(_ce(), operating_point(_ce())).values()) < 1e-9
 
 
-def test_source_degenerated_cs_matches_the_quadratic():
-    # I_D = ½K(V_G − I_D R_S − V_th)², solved in closed form for u = V_GS − V_th:
-    # ½K R_S u² + u − (V_G − V_th) = 0 (Shichman–Hodges square law, saturation, λ = 0).
-    # B. Razavi, Design of Analog CMOS Integrated Circuits, ch. 3, from memory.
-    k, vth, rs = 4e-3, 0.7, 1e3
+def _cs_stage(rd="3k3", **device):
+    """Invented degenerated common-source stage: 680k/320k divider from 10 V, R_S = 1 kΩ."""
     c = Circuit("degenerated CS")
     c.rail("VDD", "vdd", 10.0)
     c.vsource("Vs", "in", "0")
     c.capacitor("Cin", "in", "g", "1u")
     c.resistor("R1", "vdd", "g", "680k")
     c.resistor("R2", "g", "0", "320k")
-    c.resistor("RD", "vdd", "d", "3k3")
-    c.resistor("RS", "s", "0", rs)
-    c.mosfet("M1", drain="d", gate="g", source="s", vth=vth, kp=k, cgs=2e-12, cgd=0.5e-12)
+    c.resistor("RD", "vdd", "d", rd)
+    c.resistor("RS", "s", "0", "1k")
+    c.mosfet("M1", drain="d", gate="g", source="s", **device)
     c.output("d")
+    return c
+
+
+def test_source_degenerated_cs_matches_the_quadratic():
+    # I_D = ½K(V_G − I_D R_S − V_th)², solved in closed form for u = V_GS − V_th:
+    # ½K R_S u² + u − (V_G − V_th) = 0 (Shichman–Hodges square law, saturation, λ = 0).
+    # B. Razavi, Design of Analog CMOS Integrated Circuits, ch. 3, from memory.
+    k, vth, rs = 4e-3, 0.7, 1e3
+    c = _cs_stage(vth=vth, kp=k, cgs=2e-12, cgd=0.5e-12)
     vg = 10.0 * 320 / 1000
     u = (-1 + math.sqrt(1 + 2 * k * rs * (vg - vth))) / (k * rs)
     i_d = 0.5 * k * u * u
@@ -322,17 +328,7 @@ def test_every_random_bias_network_is_solved_or_refused_by_name(r1, r2, rc, re, 
 def _sized_cs(rd="3k3", **gate):
     # The degenerated CS stage above, its device given by size: k′ = 200 µA/V², W/L = 20,
     # so K_P = k′·W/L = 4 mA/V² as before (Shichman–Hodges: K_P = μC_ox·W/L).
-    c = Circuit("sized CS")
-    c.rail("VDD", "vdd", 10.0)
-    c.vsource("Vs", "in", "0")
-    c.capacitor("Cin", "in", "g", "1u")
-    c.resistor("R1", "vdd", "g", "680k")
-    c.resistor("R2", "g", "0", "320k")
-    c.resistor("RD", "vdd", "d", rd)
-    c.resistor("RS", "s", "0", "1k")
-    c.mosfet("M1", drain="d", gate="g", source="s", vth=0.7, kprime="200u", w="20u", l="1u", **gate)
-    c.output("d")
-    return c
+    return _cs_stage(rd, vth=0.7, kprime="200u", w="20u", l="1u", **gate)
 
 
 def test_k_prime_with_w_and_l_gives_the_square_law_k():
