@@ -601,14 +601,24 @@ class AdvisorPanel(QWidget):
 
     def export_report(self, path: str) -> str:
         """Write the report (HTML or PDF by the file's ending); returns what happened, in words."""
+        from PySide6.QtGui import QGuiApplication
+        from PySide6.QtWidgets import QApplication
+
         from .export import export_report
 
+        # The report analyses the design, its suggestions and (unless one was run) a spread:
+        # seconds on a large design, so say so before the window stops answering.
+        self.spread_label.setText("Writing the report (analysis, suggestions and tolerance spread)…")
+        QGuiApplication.setOverrideCursor(Qt.CursorShape.WaitCursor)
+        QApplication.processEvents()
         try:
             export_report(self.doc.copy(), path, source=self.source() if self.source else None, spread=self.spread)
         except (CircuitError, OSError, ValueError) as exc:
             message = f"The report was not written: {getattr(exc, 'message', None) or exc}"
         else:
             message = f"Report written to {path}"
+        finally:
+            QGuiApplication.restoreOverrideCursor()
         self.spread_label.setText(message)
         return message
 
