@@ -7,6 +7,9 @@ so an edit is analysed once for every view. Long searches run on a worker thread
 snapshot of the design, so the sheet stays live; every change to the design, a target
 included, is a patch (:mod:`app.edits`) pushed through the window's
 :class:`app.commands.Editor`.
+
+The suggestion, search and tolerance modules are imported when first used, not with the
+window: the window opens without them.
 """
 
 from __future__ import annotations
@@ -28,11 +31,8 @@ from bandsketch.engine.present.plotdata import histogram_axis
 from bandsketch.engine.advise.sensitivity import FIGURE_TITLES, FIGURES, sensitivities
 from bandsketch.engine.advise.timetargets import rise_time_sensitivities
 from bandsketch.engine.design.schema import target_problem
-from bandsketch.engine.advise.search import search
-from bandsketch.engine.advise.suggest import suggest, verdict_line
 from bandsketch.engine.advise.targets import TARGET_LABELS, check_targets, parse_targets
 from bandsketch.engine.present.plotdata import bode_data
-from bandsketch.engine.advise.tolerance import spread_of_design
 from bandsketch.engine.core.values import format_signed, format_value
 
 from .. import edits
@@ -412,6 +412,8 @@ class AdvisorPanel(QWidget):
             return
         doc = self.doc.copy()
         self._busy(True)
+        from bandsketch.engine.advise.suggest import suggest
+
         self.jobs.start("suggest", lambda progress, cancel: suggest(doc, targets, progress=progress, cancel=cancel))
 
     def search_together(self) -> None:
@@ -422,6 +424,8 @@ class AdvisorPanel(QWidget):
         names = [n.strip() for n in self.search_knobs.text().replace(";", ",").split(",") if n.strip()] or None
         doc = self.doc.copy()
         self._busy(True)
+        from bandsketch.engine.advise.search import search
+
         self.jobs.start("search", lambda progress, cancel: search(doc, targets, names, progress=progress,
                                                                   cancel=cancel))
 
@@ -432,6 +436,8 @@ class AdvisorPanel(QWidget):
         self.suggest_progress.setValue(0)
 
     def _show_suggestions(self, rows, head: str) -> None:
+        from bandsketch.engine.advise.suggest import verdict_line
+
         self.suggestions = tuple(rows)
         self.suggest_label.setText(head)
         self.suggest_table.setRowCount(len(rows))
@@ -557,6 +563,8 @@ class AdvisorPanel(QWidget):
         self.spread_button.setEnabled(False)
         self.cancel_button.setEnabled(True)
         self.spread_progress.setValue(0)
+        from bandsketch.engine.advise.tolerance import spread_of_design
+
         self.jobs.start("spread", lambda progress, cancel: spread_of_design(
             doc, samples, seed, progress=progress, cancel=cancel))
 

@@ -14,8 +14,6 @@ import math
 import re
 from dataclasses import dataclass
 
-from scipy.optimize import brentq
-
 from . import eseries
 from ..solve.analysis import analyze
 from ..core.errors import BadValueError, Cancelled, CircuitError
@@ -465,6 +463,10 @@ def _root(fig: _Figure, estimate: bool) -> float | None:
             g_out, g_in = fig.g(x0 * math.exp(outer), estimate), fig.g(x0 * math.exp(inner), estimate)
             if math.isnan(g_out) or math.isnan(g_in) or (g_out > 0) == (g_in > 0):
                 continue
+            # Imported here: scipy.optimize takes a tenth of a second to import, and the
+            # window and the command line need it only once a target is solved for.
+            from scipy.optimize import brentq
+
             try:
                 return brentq(lambda u: fig.g(x0 * math.exp(u), estimate), inner, outer, xtol=_ROOT_XTOL)
             except ValueError:
