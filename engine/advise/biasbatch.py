@@ -5,10 +5,14 @@ its small-signal values are not the nominal ones. :class:`BiasBatch` solves the 
 equations of every variant together (Newton–Raphson from the nominal point, one batched
 linear solve a step) and turns each variant's point into factors on the derived
 small-signal values (g_m, r_π, r_o, C_π ...), which the batched AC evaluator then applies
-like any other value's factor.
+like any other value's factor. A row may also scale a transistor's own parameters
+(:data:`DEVICE_PARAMETERS`: β and I_S of a BJT, V_th and K_P of a MOSFET), named
+``"<block>.<parameter>"``; they enter the row's bias and its small-signal values.
 """
 
 from __future__ import annotations
+
+from dataclasses import replace
 
 import numpy as np
 
@@ -17,6 +21,25 @@ from ..network.largesignal import bjt_forward_active, mos_current, mos_saturated
 from ..solve.dcop import DcEquations
 from .biasslopes import RAW_SLICE, VOLTAGES, dc_pattern, device_index, unknowns
 from .partvalues import value_of
+
+DEVICE_PARAMETERS = {"bjt": ("beta", "isat"), "mosfet": ("vth", "kp")}
+"""A biased transistor's own parameters a row may scale (its transport or square-law model's)."""
+
+
+def device_parameter(circuit, name: str):
+    """(block, parameter) when ``name`` is ``"<block>.<parameter>"`` of a block biased from
+    ``circuit`` and one of :data:`DEVICE_PARAMETERS`; else None.
+
+    Parameters
+    ----------
+    circuit : bandsketch.engine.network.circuit.Circuit
+    name : str
+        A column name of a spread or a search (``"Q1.beta"``).
+    """
+    block, _, key = name.partition(".")
+    large = circuit.large_blocks.get(block)
+    return (large, key) if large is not None and key in DEVICE_PARAMETERS[large.kind] else None
+
 
 class BiasBatch:
     """Re-solves the bias of a design for rows of value factors.
@@ -45,6 +68,8 @@ class BiasBatch:
         self._patterns = np.array([p for p, _ in patterns]).reshape(len(patterns), self._eqs.n, self._eqs.n)
         self._p0 = np.array([p0 for _, p0 in patterns])
         self._inverse = np.array([isinstance(circuit.elements[self._names[k]], Resistor) for k in self._dc_cols])
+        self._device_cols = [(k, found) for k, n in enumerate(self._names)
+                             if (found := device_parameter(circuit, n)) is not None]
         derived = []
         for large in circuit.large_blocks.values():
             for key in large.model.small_signal(large.name, _point_volts(self._eqs, large, self._x0)):
@@ -79,19 +104,46 @@ class BiasBatch:
             G = self._eqs.G + np.einsum("mk,kij->mij", p - self._p0, self._patterns)
         else:
             G = np.broadcast_to(self._eqs.G, (m, self._eqs.n, self._eqs.n))
-        x, ok = self._eqs.solve_batch(G, self._x0)
+        scaled = self._device_factors(f)
+        devices = self._eqs.devices.per_row(self._row_factors(scaled, m)) if scaled else None
+        x, ok = self._eqs.solve_batch(G, self._x0, devices=devices)
         xe = np.concatenate([np.where(ok[:, None], x, self._x0), np.zeros((m, 1))], axis=1)
         raw = self._eqs.devices.raw(xe)
         for large in self._circuit.large_blocks.values():
             k = device_index(self._eqs, large)
             volts = {key: v[:, k] for key, v in zip(VOLTAGES[large.kind], raw[RAW_SLICE[large.kind]])}
-            ok &= _in_region(large, volts)
-            values = large.model.small_signal(large.name, volts)
+            own = scaled.get(large.name, {})
+            model = large.model if not own else replace(large.model, params=replace(
+                large.model.params, **{key: getattr(large.model.params, key) * g for key, g in own.items()}))
+            row = replace(large, model=model)
+            ok &= _in_region(row, volts)
+            values = model.small_signal(large.name, volts)
             for key, y in values.items():
                 name = f"{large.name}.{key}"
                 if name in columns and name in self.derived:
                     f[:, columns[name]] *= y / value_of(self._circuit.elements[name])
         return f, ok & np.all(np.isfinite(f), axis=1)
+
+
+    def _device_factors(self, f: np.ndarray) -> dict:
+        """Block name -> parameter -> (m,) factors of the device columns in ``f``."""
+        out: dict = {}
+        for k, (large, key) in self._device_cols:
+            out.setdefault(large.name, {})[key] = f[:, k]
+        return out
+
+    def _row_factors(self, scaled: dict, m: int) -> dict:
+        """The solver's (m, devices) multipliers of each scaled parameter."""
+        dev = self._eqs.devices
+        out = {}
+        for name, params in scaled.items():
+            kind_names = dev.bjt_names if name in dev.bjt_names else dev.mos_names
+            i = kind_names.index(name)
+            for key, g in params.items():
+                if key not in out:
+                    out[key] = np.ones((m, len(kind_names)))
+                out[key][:, i] = g
+        return out
 
 
 def _point_volts(eqs: DcEquations, large, x) -> dict:

@@ -31,8 +31,9 @@ import numpy as np
 from ..solve.analysis import analyze
 from ..core.errors import Cancelled, CircuitError
 from ..design.netlist import design_to_circuit
+from ..design.parts import KINDS
 from ..design.sourcing import tolerance_fraction
-from .biasbatch import BiasBatch
+from .biasbatch import DEVICE_PARAMETERS, BiasBatch
 from .partvalues import PartValue, coefficients_for, parametric_system, part_values
 from .targets import Targets, parse_targets
 from ..core.values import format_value
@@ -53,6 +54,13 @@ DEFAULT_TOLERANCES = MappingProxyType({
     ("bjt", "cpi"): (0.20, f"±20 %: C_π follows f_T ({_SRC_COMMON})"),
     ("bjt", "cmu"): (0.20, f"±20 %: {_SRC_COMMON}"),
     ("bjt", "ccs"): (0.20, f"±20 %: {_SRC_COMMON}"),
+    ("bjt", "beta"): (0.30, f"±30 %: β spreads widely between devices of one type, a datasheet's current-"
+                            f"gain group spanning about 2:1 ({_SRC_COMMON})"),
+    ("bjt", "isat"): (0.20, f"±20 %: I_S follows the emitter area and doping; ±20 % is about ±5 mV of "
+                            f"V_BE ({_SRC_COMMON})"),
+    ("mosfet", "vth"): (0.05, f"±5 %: the threshold spreads by tens of millivolts between devices "
+                              f"({_SRC_COMMON})"),
+    ("mosfet", "kp"): (0.10, f"±10 %: K_P = μC_ox·W/L follows mobility and oxide thickness ({_SRC_COMMON})"),
     ("mosfet", "gm"): (0.10, f"±10 %: g_m follows the bias current ({_SRC_COMMON})"),
     ("mosfet", "gmb"): (0.20, f"±20 %: {_SRC_COMMON}"),
     ("mosfet", "ro"): (0.30, f"±30 %: r_o follows λ ({_SRC_COMMON})"),
@@ -72,7 +80,8 @@ Controlled sources placed by the designer are ideal model elements: they default
 
 IDEAL_SOURCE = "0 %: an ideal model element, exact unless given a tolerance"
 BIASED_GM_SOURCE = ("no spread of its own: g_m follows the bias, which is solved again for every sample "
-                    "from that sample's resistor values")
+                    "from that sample's resistor values and the device's own parameters")
+BIASED_RPI_SOURCE = "no spread of its own: r_π = β/g_m follows the spread β and the bias of each sample"
 
 CHUNK = 2000
 """Samples solved per batch: large enough to amortise Python overhead, small enough that
@@ -122,6 +131,10 @@ def default_tolerances(circuit, overrides: Mapping[str, float] | None = None) ->
     Returns
     -------
     tuple of Tolerance
+        Every element's value, then each transistor biased from the circuit with its own
+        parameters (β and I_S, or V_th and K_P, named ``"Q1.beta"`` ...), which the spread
+        feeds to each sample's bias; such a transistor's g_m and r_π have no spread of their
+        own (they follow).
     """
     overrides = overrides or {}
     out = []
@@ -129,12 +142,28 @@ def default_tolerances(circuit, overrides: Mapping[str, float] | None = None) ->
         tol, source = DEFAULT_TOLERANCES.get((pv.kind, pv.key), (0.0, IDEAL_SOURCE))
         if pv.part in circuit.large_blocks and pv.key == "gm":
             tol, source = 0.0, BIASED_GM_SOURCE
+        if pv.part in circuit.large_blocks and pv.key == "rpi":
+            tol, source = 0.0, BIASED_RPI_SOURCE
         if pv.element in overrides:
             tol, source = float(overrides[pv.element]), "set for this part"
         if not (0 <= tol < 1):
             raise ValueError(f"{pv.label}: a tolerance of {tol:.0%} is not usable; give 0 to 99 %")
         out.append(Tolerance(pv, tol, source))
+    for large in circuit.large_blocks.values():
+        for key in DEVICE_PARAMETERS[large.kind]:
+            pv = PartValue(f"{large.name}.{key}", large.name, key, _device_label(large, key),
+                           _DEVICE_UNITS[key], float(getattr(large.model.params, key)), large.kind)
+            tol, source = DEFAULT_TOLERANCES[(large.kind, key)]
+            out.append(Tolerance(pv, overrides.get(pv.element, tol), source if pv.element not in overrides
+                                 else "set for this part"))
     return tuple(out)
+
+
+_DEVICE_UNITS = {"beta": "", "isat": "A", "vth": "V", "kp": "A/V²"}
+
+
+def _device_label(large, key: str) -> str:
+    return f"{large.name} {KINDS[large.kind].field(key).label}"
 
 
 def design_tolerances(doc, circuit) -> tuple:
@@ -267,8 +296,12 @@ class _Evaluator:
             names += [d for d in self.bias.derived if d not in names]
         self.names = tuple(names)
         self.columns = {n: k for k, n in enumerate(self.names)}
-        self.full = parametric_system(circuit, self.names)
-        self.mid = parametric_system(circuit, self.names, analysis.midband_states())
+        # A transistor's own parameter (Q1.beta) moves only the bias; the AC network sees
+        # the small-signal values it gives.
+        self.ac_columns = [k for k, n in enumerate(self.names) if n in circuit.elements]
+        ac_names = [self.names[k] for k in self.ac_columns]
+        self.full = parametric_system(circuit, ac_names)
+        self.mid = parametric_system(circuit, ac_names, analysis.midband_states())
         self.f_high0 = _positive(analysis.f_high_exact)
         self.f_low0 = _positive(analysis.f_low_exact)
 
@@ -282,7 +315,7 @@ class _Evaluator:
         if self.bias is not None:
             f, ok = self.bias.apply(f, self.columns)
             f[~ok] = 1.0
-        batch = _Batch(self.full, self.mid, self.circuit, f)
+        batch = _Batch(self.full, self.mid, self.circuit, f[:, self.ac_columns])
         fh = _corner(batch, self.f_high0, True) if self.f_high0 else np.full(m, np.nan)
         fl = _corner(batch, self.f_low0, False) if self.f_low0 else np.full(m, np.nan)
         gain = batch.gain.copy()

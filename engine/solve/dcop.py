@@ -11,6 +11,7 @@ accepted only when every node's current sum is within an absolute and a relative
 
 from __future__ import annotations
 
+import copy
 import math
 from dataclasses import dataclass, field
 from types import MappingProxyType
@@ -208,6 +209,29 @@ class _Devices:
         self._to_matrix = np.zeros((len(pairs), size * size))
         self._to_matrix[np.arange(len(pairs)), [r * size + c for r, c in pairs]] = 1.0
 
+    def per_row(self, factors):
+        """A copy whose parameters differ row by row.
+
+        ``factors`` maps a parameter (``"isat"``, ``"beta"`` of the BJTs, ``"vth"``, ``"kp"``
+        of the MOSFETs) to (m, devices of that kind) multipliers of its nominal values; the
+        copy's such parameters are (m, devices) arrays, and :meth:`rows` takes rows of them.
+        """
+        out = copy.copy(self)
+        for key, f in factors.items():
+            setattr(out, key, getattr(self, key) * np.asarray(f, dtype=float))
+        out._rowwise = tuple(factors)
+        return out
+
+    def rows(self, idx):
+        """This copy for the rows ``idx`` of its row-by-row parameters (itself if it has none)."""
+        keys = getattr(self, "_rowwise", ())
+        if not keys:
+            return self
+        out = copy.copy(self)
+        for key in keys:
+            setattr(out, key, getattr(self, key)[idx])
+        return out
+
     def start(self):
         """Device voltages of the first iteration: junctions at their critical voltage, MOS on."""
         return (self.vcrit.copy(), np.zeros_like(self.vcrit),
@@ -341,7 +365,7 @@ class DcEquations:
                 return x, volts, it, True, swing
         return x, volts, limit, False, swing
 
-    def solve_batch(self, G, x0, limit: int = MAX_NEWTON):
+    def solve_batch(self, G, x0, limit: int = MAX_NEWTON, devices=None):
         """Newton–Raphson for many variants of these equations at once, each from ``x0``.
 
         Parameters
@@ -354,6 +378,9 @@ class DcEquations:
             variant within its tolerances settles in a few steps.
         limit : int
             Newton steps before a variant is given up.
+        devices : optional
+            These equations' devices with parameters that differ row by row
+            (``self.devices.per_row(...)``); by default the nominal devices for every row.
 
         Returns
         -------
@@ -362,7 +389,8 @@ class DcEquations:
             current sums were met (:data:`ABS_TOL`, :data:`REL_TOL`); an unsettled variant's
             row is NaN.
         """
-        m, dev = G.shape[0], self.devices
+        m, every = G.shape[0], devices or self.devices
+        dev = every
         x = np.broadcast_to(np.asarray(x0, dtype=float), (m, self.n)).copy()
         volts = dev.raw(np.concatenate([x, np.zeros((m, 1))], axis=1))
         todo = np.arange(m)
@@ -370,6 +398,7 @@ class DcEquations:
         for _ in range(limit):
             if todo.size == 0:
                 break
+            dev = every.rows(todo)
             xe = np.concatenate([x[todo], np.zeros((todo.size, 1))], axis=1)
             limited = dev.limited(dev.raw(xe), tuple(v[todo] for v in volts))
             _, J, i_eq = dev.stamp(limited, self.n + 1)

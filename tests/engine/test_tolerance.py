@@ -16,6 +16,7 @@ from bandsketch.engine.design.netlist import design_to_circuit
 from bandsketch.engine.advise.partvalues import coefficients_for, parametric_system, part_values, value_of, with_value
 from bandsketch.engine.solve.dcop import operating_point
 from bandsketch.engine.advise.targets import Targets
+from bandsketch.engine.core.values import parse_value
 
 SAMPLES = Path(__file__).resolve().parents[2] / "sample_designs"
 
@@ -63,24 +64,40 @@ def test_zero_tolerance_gives_the_nominal(name):
             np.testing.assert_allclose(got, want, rtol=1e-9)
 
 
-def test_a_sample_is_the_analysis_of_that_circuit(ce):
-    # Source: analyze() of the circuit with the sample's values written into its elements, its
-    # bias solved again for the sample's resistors (the sample is biased from the sheet), and
-    # then each derived value's own tolerance factor applied at that point.
-    c, a = ce
+@pytest.mark.parametrize("name", ["ce_hydrophone_preamp", "cs_partly_bypassed"])
+def test_a_sample_is_the_analysis_of_that_circuit(name):
+    # Source: analyze() of the design with the sample's transistor parameters (β, I_S or V_th,
+    # K_P) written into its fields, its values into its elements, its bias solved again for
+    # them (the sample is biased from the sheet), and then each derived value's own tolerance
+    # factor applied at that point.
+    doc = load_design(SAMPLES / f"{name}.json")
+    c = design_to_circuit(doc)
+    a = analyze(c, bands=dict(doc.band_pins))
     tols = T.default_tolerances(c)
+    assert {t.value.key for t in tols if t.value.element not in c.elements} == (
+        {"beta", "isat"} if name.startswith("ce") else {"vth", "kp"})
     s = T.monte_carlo(c, a, tols, samples=5, seed=11)
     u = np.random.default_rng(11).uniform(-1, 1, size=(5, len(tols)))
-    in_dc = {el.name for el in c.dc_elements()}
     for i in (0, 4):
         factors = 1 + u[i] * np.array([t.tolerance for t in tols])
+        device = doc.copy()
+        for t, f in zip(tols, factors):
+            if t.value.element not in c.elements:
+                part = device.parts[t.value.part]
+                # A MOSFET sized by k′·W/L takes its K_P spread as k′'s.
+                key = "kprime" if t.value.key == "kp" and not part.params.get("kp") else t.value.key
+                scaled = parse_value(part.params[key]) * f
+                device.replace_part(part.name, part.with_params(**{key: f"{scaled:.12g}"}))
+        d = design_to_circuit(device)
+        in_dc = {el.name for el in d.dc_elements()}
         dc = {t.value.element: f for t, f in zip(tols, factors) if t.value.element in in_dc}
-        biased = c.with_elements({n: with_value(c.elements[n], value_of(c.elements[n]) * f) for n, f in dc.items()},
+        biased = d.with_elements({n: with_value(d.elements[n], value_of(d.elements[n]) * f) for n, f in dc.items()},
                                  rebias=True)
         operating_point(biased)
         changed = biased.with_elements({t.value.element: with_value(biased.elements[t.value.element],
                                                                     value_of(biased.elements[t.value.element]) * f)
-                                        for t, f in zip(tols, factors) if t.value.element not in in_dc})
+                                        for t, f in zip(tols, factors)
+                                        if t.value.element in d.elements and t.value.element not in in_dc})
         b = analyze(changed)
         # The batched and the one-design bias solves agree to about 1e-8 (both stop at 1e-9 of
         # each node's currents), which bounds the agreement here.
@@ -158,7 +175,9 @@ def test_defaults_say_where_they_come_from(ce):
     assert all(t.source for t in tols)
     by = {t.value.element: t for t in tols}
     assert by["RC"].tolerance == 0.05 and "IEC 60063" in by["RC"].source
-    assert "no source" in by["Q1.rpi"].source
+    # A biased transistor's β spreads (its source says so); r_π = β/g_m follows it.
+    assert "no source" in by["Q1.beta"].source and by["Q1.beta"].tolerance == 0.30
+    assert by["Q1.rpi"].tolerance == 0.0 and "follows" in by["Q1.rpi"].source
     over = T.default_tolerances(c, {"RC": 0.01})
     assert next(t for t in over if t.value.element == "RC").tolerance == 0.01
     with pytest.raises(ValueError, match="RC"):
