@@ -261,7 +261,10 @@ class PropertiesPanel(QWidget):
     def _form_shape(self):
         """What decides which rows the form has (rebuilt only when this changes)."""
         if self.part_name is None:
-            return ("doc", self._selection, tuple(sorted(self.doc.parts)), self.doc.input_source)
+            # The design form lists only the parts that can carry the signal: pasting a stage
+            # of resistors must not rebuild it part by part.
+            sources = tuple(p.name for p in self.doc.parts.values() if KINDS[p.kind].signal)
+            return ("doc", self._selection, sources, self.doc.input_source)
         p = self.doc.parts[self.part_name]
         senses = any(f.unit == "name" for f in KINDS[p.kind].fields)
         sensed = (tuple(sorted(self.doc.parts)), p.params.get("sensed")) if senses else ()
