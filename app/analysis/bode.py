@@ -271,8 +271,9 @@ class BodePlot(Restyles, QWidget):
         label.show()
 
     def _lay_out_labels(self, *_) -> None:
-        """Point the corner labels into the mid band, where there is room, unless the two
-        corners are too close for both there: then each points away from the other.
+        """Point the corner labels into the mid band, where there is room; where the two
+        corners are too close for both there, each points the way that hides least of it
+        (overlapping the other label, or running off the plot).
 
         The estimate sits above its pin (the −3 dB line, or a peak's top) and the exact
         value below the line, so a corner's two labels never overlap; labels of one row
@@ -283,15 +284,28 @@ class BodePlot(Restyles, QWidget):
             row = {corner: self.markers[(corner, estimated)] for corner in ("high", "low")}
             shown = {corner: (lines[0].value(), label) for corner, (lines, _, label) in row.items()
                      if label.isVisible()}
-            inward = True
+            inward = {corner: True for corner in shown}
             if len(shown) == 2:
                 (xh, high), (xl, low) = shown["high"], shown["low"]
-                px_h = box.mapViewToScene(QPointF(xh, 0)).x()
-                px_l = box.mapViewToScene(QPointF(xl, 0)).x()
-                width = high.textItem.boundingRect().width() + low.textItem.boundingRect().width()
-                inward = px_h - px_l >= width + LABELS_APART_PX
+                px_h, px_l = box.mapViewToScene(QPointF(xh, 0)).x(), box.mapViewToScene(QPointF(xl, 0)).x()
+                edges = box.sceneBoundingRect()
+                room = px_h - px_l - LABELS_APART_PX
+                w_h, w_l = high.textItem.boundingRect().width(), low.textItem.boundingRect().width()
+                beyond = {"low": px_l - edges.left(), "high": edges.right() - px_h}
+                widths = {"low": w_l, "high": w_h}
+
+                def hidden(low_in, high_in):
+                    # Pixels of label that overlap the other or run off the plot.
+                    overlap = max(0.0, low_in * w_l + high_in * w_h - room)
+                    return overlap + sum(max(0.0, widths[c] - beyond[c])
+                                         for c, keep in (("low", low_in), ("high", high_in)) if not keep)
+
+                # The arrangement that hides the least, pointing inward where it is a tie.
+                low_in, high_in = min(((True, True), (True, False), (False, True), (False, False)),
+                                      key=lambda pair: hidden(*pair))
+                inward = {"low": low_in, "high": high_in}
             for corner, (_, label) in shown.items():
-                left = (corner == "high") == inward
+                left = (corner == "high") == inward[corner]
                 label.setAnchor((1.0 if left else 0.0, 1.0 if estimated else 0.0))
 
     def data(self) -> BodeData | None:
