@@ -27,6 +27,8 @@ MARGIN_MM = 15
 """Page margins of the PDF, mm."""
 FOOTER_MM = 7
 """Room kept at the foot of each page for its footer line, mm."""
+FOOTER_PT = 7
+"""Size of the footer's text, points."""
 _LAYOUT_DPI = 96  # the text layout's pixels: a CSS pixel, as the pictures are sized
 _MM = _LAYOUT_DPI / 25.4
 REPORT_SUFFIXES = {".html": "HTML", ".htm": "HTML", ".pdf": "PDF"}
@@ -152,7 +154,10 @@ def paint_page(painter: QPainter, document: QTextDocument, page: int, scale: flo
     painter.restore()
     painter.save()
     painter.scale(scale, scale)
-    font = QFont("DejaVu Sans", 7)
+    # In layout pixels: a point size would be resolved at the writer's own resolution and
+    # then scaled again, printing the footer six times too large over itself.
+    font = QFont("DejaVu Sans")
+    font.setPixelSize(round(FOOTER_PT * _LAYOUT_DPI / 72))
     painter.setFont(font)
     painter.setPen(Qt.GlobalColor.darkGray)
     painter.drawText(QRectF(0, size.height() + 2 * _MM, size.width(), (FOOTER_MM - 2) * _MM),

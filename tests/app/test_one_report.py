@@ -87,6 +87,15 @@ def test_a_one_stage_pdf_is_three_pages_with_its_file_version_and_pictures_at_30
               if obj.get("/Subtype") == "/Image"]
     narrowest_mm = 110  # the step plot is printed narrowest
     assert len(widths) >= 4 and min(widths) >= narrowest_mm / 25.4 * export.REPORT_DPI - 1
+    # The footer prints at its own size in points (PDF user space is 1/72 inch, ISO 32000-1:2008 §8.3.2.3).
+    footers = []
+
+    def visit(text, cm, tm, font, size):
+        if "page" in text and " of " in " ".join(text.split()):
+            footers.append(size * abs(tm[3]) * abs(cm[3]))
+
+    pdf.pages[0].extract_text(visitor_text=visit)
+    assert footers and all(abs(pt - export.FOOTER_PT) < 0.5 for pt in footers), footers
 
 
 @pytest.mark.parametrize("name", ["ce_hydrophone_preamp", "two_stage_miller", "photodiode_tia"])
