@@ -1,7 +1,8 @@
 """Pictures as files: the Bode plot, the bars and the sheet as SVG a browser and librsvg draw
 (checked with Python's XML parser for what a renderer needs: the SVG namespace, version 1.1,
 pixel width and height with a matching viewBox, SVG 1.1 elements only, no empty path data) and
-as PNG at a chosen resolution or width; from ``bandsketch figure`` and from the window alike."""
+as PNG at a chosen resolution or width; from ``bandsketch figure`` and from the window alike.
+Where the system has them, GNOME's librsvg and cairo draw each SVG too (tests/app/librsvg.py)."""
 
 from __future__ import annotations
 
@@ -14,6 +15,7 @@ from PySide6.QtGui import QImage
 from bandsketch.app.cli import main
 from bandsketch.app.canvas.sheet_picture import sheet_svg
 from bandsketch.engine.design.designfile import load_design
+import librsvg
 
 SAMPLES = Path(__file__).resolve().parents[2] / "sample_designs"
 SVG = "{http://www.w3.org/2000/svg}"
@@ -46,6 +48,27 @@ def test_the_command_writes_each_figure_as_svg_and_png_at_the_chosen_dpi(what, t
     assert round(image.dotsPerMeterX() * 0.0254) == 300
     assert main(["figure", "--sample", "ce_hydrophone_preamp", "--what", what, "-o", str(wide), "--width", "1000"]) == 0
     assert QImage(str(wide)).width() == 1000
+
+
+@pytest.mark.skipif(librsvg.LIBRARIES is None, reason="librsvg and cairo are not installed")
+@pytest.mark.parametrize("what", ["bode", "bars", "sheet"])
+def test_librsvg_draws_each_figure_as_qt_does(what, tmp_path, capsys, qapp):
+    # The renderer itself (GNOME librsvg, through cairo), beside Qt's own PNG of the same figure:
+    # same size, and ink where Qt put ink (fonts differ, so pixels are compared in 8 px cells).
+    svg, png = tmp_path / f"{what}.svg", tmp_path / f"{what}.png"
+    assert main(["figure", "--sample", "ce_hydrophone_preamp", "--what", what, "-o", str(svg)]) == 0
+    assert main(["figure", "--sample", "ce_hydrophone_preamp", "--what", what, "-o", str(png), "--dpi", "96"]) == 0
+    drawn, expected = librsvg.draw(svg.read_bytes(), str(tmp_path / "rsvg.png")), QImage(str(png))
+    assert (drawn.width(), drawn.height()) == (expected.width(), expected.height())
+
+    def inked_cells(image: QImage) -> set:
+        background = image.pixelColor(2, 2).lightness()
+        return {(x // 8, y // 8) for y in range(0, image.height(), 2) for x in range(0, image.width(), 2)
+                if abs(image.pixelColor(x, y).lightness() - background) > 60}
+
+    ours, theirs = inked_cells(expected), inked_cells(drawn)
+    assert len(ours) > 50
+    assert len(ours & theirs) >= 0.8 * len(ours) and len(theirs - ours) <= 0.2 * len(theirs)
 
 
 def test_a_figure_must_be_svg_or_png(tmp_path, capsys):
