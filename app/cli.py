@@ -83,10 +83,9 @@ def _design_argument(p: argparse.ArgumentParser, required: bool = True) -> None:
 
 def _load(args):
     """The design the arguments name: a file, or a shipped sample."""
-    from bandsketch.engine.design.designfile import load_design
-    from bandsketch.engine.design.samples import load_sample
+    from bandsketch.engine.design.samples import load_named
 
-    return load_sample(args.sample) if args.sample else load_design(args.design)
+    return load_named(args.design, args.sample)
 
 
 def _samples_parser() -> argparse.ArgumentParser:
@@ -324,7 +323,10 @@ def _report(args) -> int:
     from .advisor.export import export_report
 
     offscreen_application()
-    export_report(doc, args.output, source=source, samples=args.samples, seed=args.seed)
+    from .console import Progress
+
+    export_report(doc, args.output, source=source, samples=args.samples, seed=args.seed,
+                  progress=Progress("report").stage)
     print(f"bandsketch: wrote {args.output}")
     return EXIT_OK
 

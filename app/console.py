@@ -55,16 +55,30 @@ class Progress:
         self.start = clock()
         self.shown = False
         self.last_tenth = -1
+        self.current: str | None = None
         self.bar = bool(getattr(self.stream, "isatty", lambda: False)())
 
     def __call__(self, done: int, total: int) -> None:
+        self._show(done, total, self.label)
+
+    def stage(self, name: str):
+        """The ``progress(done, total)`` callback of one stage of the work, shown as
+        "label (name)"; the stages share one clock, so work whose stages each take under
+        :data:`PROGRESS_AFTER_S` still shows its progress once the whole has taken that long."""
+        def report(done: int, total: int) -> None:
+            if self.current != name:
+                self.current, self.last_tenth = name, -1
+            self._show(done, total, f"{self.label} ({name})")
+        return report
+
+    def _show(self, done: int, total: int, label: str) -> None:
         if not self.shown and self.clock() - self.start < PROGRESS_AFTER_S:
             return
         self.shown = True
         share = done / total if total else 1.0
         if self.bar:
             filled = int(30 * share)
-            self.stream.write(f"\r{self.label} [{'#' * filled}{'.' * (30 - filled)}] {100 * share:3.0f} %")
+            self.stream.write(f"\r{label} [{'#' * filled}{'.' * (30 - filled)}] {100 * share:3.0f} %")
             if done >= total:
                 self.stream.write("\n")
         else:
@@ -72,5 +86,5 @@ class Progress:
             if tenth == self.last_tenth:
                 return
             self.last_tenth = tenth
-            self.stream.write(f"{self.label}: {10 * tenth} %\n")
+            self.stream.write(f"{label}: {10 * tenth} %\n")
         self.stream.flush()

@@ -108,8 +108,7 @@ def run_gui(design_path: str | None = None, screenshot: str | None = None,
 
     from PySide6.QtCore import QEventLoop, QTimer
 
-    from bandsketch.engine.design.designfile import load_design
-    from bandsketch.engine.design.samples import load_sample
+    from bandsketch.engine.design.samples import load_named
     from bandsketch.engine.core.errors import DesignFileError
 
     from .main_window import MainWindow
@@ -118,7 +117,7 @@ def run_gui(design_path: str | None = None, screenshot: str | None = None,
         doc = None
         if design_path or sample:
             try:
-                doc = load_sample(sample) if sample else load_design(design_path)
+                doc = load_named(design_path, sample)
             except DesignFileError as exc:
                 print(f"bandsketch: {exc}", file=sys.stderr)
                 return 2

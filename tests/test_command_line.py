@@ -162,6 +162,27 @@ def test_progress_draws_a_bar_on_a_terminal():
                               f"\rspread [{'#' * 30}] 100 %\n")
 
 
+def test_progress_of_stages_shares_one_clock_and_names_each_stage():
+    clock, out = _Clock(), io.StringIO()
+    progress = console.Progress("report", out, clock)
+    first, second = progress.stage("spread"), progress.stage("suggestions")
+    first(1, 2)
+    clock.now = console.PROGRESS_AFTER_S + 0.1  # the whole has now run over a second
+    first(2, 2)
+    second(1, 2)
+    second(2, 2)
+    assert out.getvalue().splitlines() == ["report (spread): 100 %", "report (suggestions): 50 %",
+                                           "report (suggestions): 100 %"]
+
+
+def test_the_report_reports_progress_on_stderr(capsys, monkeypatch, tmp_path):
+    monkeypatch.setattr(console, "PROGRESS_AFTER_S", 0.0)
+    code, _, err = run(capsys, "report", "--sample", "ce_hydrophone_preamp", "--samples", "300",
+                       "-o", str(tmp_path / "r.html"))
+    assert code == EXIT_OK
+    assert "report (spread): 100 %" in err and "report (suggestions): 100 %" in err
+
+
 def test_spread_reports_progress_on_stderr(capsys, monkeypatch):
     monkeypatch.setattr(console, "PROGRESS_AFTER_S", 0.0)
     code, out, err = run(capsys, "spread", "--sample", "ce_hydrophone_preamp", "--samples", "300")
@@ -176,3 +197,10 @@ def test_the_report_is_written_in_the_format_its_name_says(capsys, tmp_path, nam
                        "-o", str(tmp_path / name))
     assert code == EXIT_OK and name in out
     assert (tmp_path / name).read_bytes().startswith(magic)
+
+
+def test_a_sample_named_as_a_file_is_pointed_to_as_a_sample(capsys, monkeypatch, tmp_path):
+    monkeypatch.chdir(tmp_path)  # no file of that name here
+    code, _, err = run(capsys, "analyze", "ce_hydrophone_preamp")
+    assert code == 2
+    assert "ce_hydrophone_preamp: cannot be read" in err and "give it as --sample ce_hydrophone_preamp" in err

@@ -36,7 +36,7 @@ REPORT_SUFFIXES = {".html": "HTML", ".htm": "HTML", ".pdf": "PDF"}
 
 
 def export_report(doc, path: str, *, source: DesignSource | None = None, spread=None,
-                  samples: int = SPREAD_SAMPLES, seed: int = 1) -> None:
+                  samples: int = SPREAD_SAMPLES, seed: int = 1, progress=None) -> None:
     """Write the report of ``doc`` to ``path``: HTML for ``.html``/``.htm``, PDF for ``.pdf``.
 
     Parameters
@@ -49,6 +49,9 @@ def export_report(doc, path: str, *, source: DesignSource | None = None, spread=
         The design file's name and hash.
     spread : bandsketch.engine.advise.tolerance.Spread, optional
         The spread the designer ran, reported as is; otherwise one of ``samples`` with ``seed``.
+    progress : callable, optional
+        ``progress(stage)`` gives the ``progress(done, total)`` callback of each stage of the
+        work (see :func:`bandsketch.engine.present.report.build_report`).
 
     Raises
     ------
@@ -58,7 +61,8 @@ def export_report(doc, path: str, *, source: DesignSource | None = None, spread=
     kind = next((k for s, k in REPORT_SUFFIXES.items() if path.lower().endswith(s)), None)
     if kind is None:
         raise ValueError(f"{path}: name the report FILE.html (HTML) or FILE.pdf (PDF)")
-    options = dict(schematic_svg=sheet_svg(doc), source=source, spread=spread, samples=samples, seed=seed)
+    options = dict(schematic_svg=sheet_svg(doc), source=source, spread=spread, samples=samples, seed=seed,
+                   progress=progress)
     if kind == "HTML":
         text = build_report(doc, **options)
         with open(path, "w", encoding="utf-8") as fh:

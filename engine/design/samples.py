@@ -10,6 +10,7 @@ from __future__ import annotations
 import json
 from dataclasses import dataclass
 from importlib import resources
+from pathlib import Path
 
 from ..core.errors import DesignFileError
 from .designfile import load_design
@@ -96,3 +97,31 @@ def _file(name: str):
         raise DesignFileError(f"no sample is called {name!r}; the samples are {', '.join(names)} "
                               "(bandsketch samples lists them)")
     return resources.files(_PACKAGE) / f"{name}.json"
+
+
+def load_named(design: str | None, sample: str | None) -> Document:
+    """The design a command names: the shipped sample ``sample``, or else the file ``design``.
+
+    Parameters
+    ----------
+    design : str or None
+        A design file's path.
+    sample : str or None
+        A sample's name (as :func:`list_samples` names it); read instead of ``design``.
+
+    Raises
+    ------
+    DesignFileError
+        The file or sample cannot be read; where a missing file's name is a sample's, the
+        message says to give it as a sample.
+    """
+    if sample:
+        return load_sample(sample)
+    try:
+        return load_design(design)
+    except DesignFileError as exc:
+        if Path(design).exists() or design not in {s.name for s in list_samples()}:
+            raise
+        raise DesignFileError(f"{exc}; {design} is the name of a sample that ships with Bandsketch: "
+                              f"give it as --sample {design}") from None
+

@@ -189,7 +189,7 @@ REPORT_SUGGESTIONS = 4
 """Suggestion rows the report lists (the best first); the app and the command line show all."""
 
 
-def _targets_section(targets, analysis, doc) -> str:
+def _targets_section(targets, analysis, doc, progress) -> str:
     if targets.is_empty():
         return "<p>The design sets no targets.</p>"
     checks = check_targets(targets, analysis, analysis.gain_unit)
@@ -200,7 +200,7 @@ def _targets_section(targets, analysis, doc) -> str:
     out.append("</ul>")
     if all(c.passed for c in checks):
         return "\n".join(out)
-    advice = suggest(doc, targets)
+    advice = suggest(doc, targets, progress=progress("suggestions") if progress else None)
     unit = analysis.gain_unit
     chosen = next((s for s in advice.suggestions if s.meets_all), None)
     if chosen is None:
@@ -286,7 +286,8 @@ def _section(title: str, *content: str) -> str:
 
 def build_report(doc, *, schematic_svg: str | None = None, source: DesignSource | None = None,
                  samples: int = SPREAD_SAMPLES, seed: int = 1, spread=None,
-                 figure_html: Callable[[ReportFigure], str] = inline_svg) -> str:
+                 figure_html: Callable[[ReportFigure], str] = inline_svg,
+                 progress: Callable[[str], Callable[[int, int], None]] | None = None) -> str:
     """The design report of ``doc`` as one HTML text.
 
     Parameters
@@ -305,6 +306,10 @@ def build_report(doc, *, schematic_svg: str | None = None, source: DesignSource 
     figure_html : callable, optional
         ``figure_html(ReportFigure) -> str``, the HTML that stands for each picture:
         :func:`inline_svg` (the default) for a self-contained HTML file.
+    progress : callable, optional
+        ``progress(stage)`` returns the ``progress(done, total)`` callback of one stage of the
+        work: ``"spread"`` (after each batch of samples), then ``"suggestions"`` (after each knob,
+        when a target fails).
 
     Returns
     -------
@@ -316,7 +321,8 @@ def build_report(doc, *, schematic_svg: str | None = None, source: DesignSource 
     targets = parse_targets(doc.targets)
     verdict = verdict_data(analysis)
     sens = sensitivities(circuit, analysis)
-    spread = spread if spread is not None else spread_of_design(doc, samples, seed)
+    spread = spread if spread is not None else spread_of_design(
+        doc, samples, seed, progress=progress("spread") if progress else None)
     title = doc.title or "Untitled design"
     schematic = (figure_html(ReportFigure("schematic", "Schematic", schematic_svg, SCHEMATIC_MM))
                  if schematic_svg else '<p class="small">No schematic: the report was built without the '
@@ -329,7 +335,7 @@ def build_report(doc, *, schematic_svg: str | None = None, source: DesignSource 
                                                            PLOT_MM))),
             _section("Verdict", "<ul>" + "".join(f"<li>{_e(t)}</li>" for t in (
                 verdict.gain_text, verdict.high_text, verdict.low_text, verdict.dominant_text)) + "</ul>"),
-            _section("Targets", _targets_section(targets, analysis, doc)),
+            _section("Targets", _targets_section(targets, analysis, doc, progress)),
             _section("Corners", _corners_table(analysis)),
             _section("Bands and time constants",
                      figure_html(ReportFigure("bars", "Time-constant bars", bars_svg(bar_data(analysis)), BARS_MM)),
