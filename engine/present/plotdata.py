@@ -650,7 +650,7 @@ class TargetMarks:
     gain_db : (float, float) or None
         The window 20·log10|A_m| must fall in (dB of the gain unit), low to high.
     f_high_text, f_low_text, gain_text : str
-        Their labels (``"f_H ≥ 1 MHz"``, ``"f_L ≤ 20 Hz"``, ``"gain 38.5–41.5 dB"``).
+        Their labels (``"f_H ≥ 1 MHz"``, ``"f_L ≤ 20 Hz"``, ``"gain 38.5–41.5 dB"``, ``"gain −1.36 to −0.5 dB"``).
     """
 
     f_high_min_hz: float | None = None
@@ -675,7 +675,10 @@ def target_marks(targets, gain_unit: str = "V/V") -> TargetMarks:
     gain_text = ""
     if targets.gain_min and targets.gain_max:
         window = (float(_db(targets.gain_min)), float(_db(targets.gain_max)))
-        gain_text = f"gain {window[0]:.3g}–{window[1]:.3g} {db_unit(gain_unit)}"
+        low, high = (f"{db:.3g}".replace("-", MINUS) for db in window)
+        # An en dash between two negative figures reads as a third minus ("−1.36–−0.49").
+        between = " to " if window[0] < 0 else "–"
+        gain_text = f"gain {low}{between}{high} {db_unit(gain_unit)}"
     hi, lo = targets.f_high_min, targets.f_low_max
     return TargetMarks(hi, lo, window, f"f_H ≥ {format_value(hi, 'Hz')}" if hi else "",
                        f"f_L ≤ {format_value(lo, 'Hz')}" if lo else "", gain_text)

@@ -287,3 +287,12 @@ def test_corner_shift_without_a_move_says_the_gain():
     before, after = bode_data(_two_corner(am=-40.0)), bode_data(_two_corner(am=-44.0))
     shift = plotdata.corner_shift(before, after)
     assert shift.text == shift.note == "A_m 32.0 → 32.9 dB" and not shift.labels
+
+
+def test_a_gain_window_below_0_db_reads_with_true_minus_signs_and_to():
+    # A follower's window, 0.86–0.94 V/V, lies below 0 dB: "−1.31–−0.54" would read as three
+    # minus signs; the label says "to" and writes U+2212 (common practice, no source).
+    from bandsketch.engine.advise.targets import Targets
+    marks = plotdata.target_marks(Targets(gain=0.9, gain_min=0.86, gain_max=0.94))
+    assert marks.gain_text == "gain \u22121.31 to \u22120.537 dB"
+    assert plotdata.target_marks(Targets(gain=100, gain_min=84.1, gain_max=119)).gain_text == "gain 38.5–41.5 dB"
