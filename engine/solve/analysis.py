@@ -28,7 +28,7 @@ from .dcop import OperatingPoint, solved
 from .floating import check_dc_solvable
 from .lowcorner import LowSections, low_sections
 from .mna import OPEN, SHORT, build_system
-from .response import frequency_response, poles, zeros
+from .response import NEAREST_ROOTS, ROOT_LIMIT, frequency_response, poles, zeros
 from . import notebook, step
 from .analysisjson import analysis_to_dict
 from .timeconstants import (FULL_MATRIX_LIMIT, conductance, factorize, open_circuit, port_columns, port_diagonal,
@@ -318,15 +318,39 @@ class Analysis:
         """
         return frequency_response(self._system, freqs)
 
+    @property
+    def _band_edges(self) -> tuple:
+        """rad/s, negative real shifts at the corners (exact, else estimated) and the mid band."""
+        edges = [self.f_high_exact or self.f_high_estimate, self.f_low_exact or self.f_low_estimate,
+                 self.midband_frequency]
+        return tuple(-2 * math.pi * f for f in edges if f)
+
+    @property
+    def roots_complete(self) -> bool:
+        """Whether :attr:`poles` and :attr:`zeros` are all of them (up to the root limit of
+        unknowns), or only those nearest the band edges (:attr:`roots_note` says which)."""
+        return self._system.size <= ROOT_LIMIT
+
+    @property
+    def roots_note(self) -> str:
+        """What :attr:`poles` and :attr:`zeros` hold, when they are not all of them ("" when they are)."""
+        if self.roots_complete:
+            return ""
+        return (f"Only the {NEAREST_ROOTS} poles and zeros nearest each band edge and the mid band are listed: "
+                f"the network has {self._system.size:,} unknowns, and finding all of them (above "
+                f"{ROOT_LIMIT} unknowns) would take minutes to hours.")
+
     @cached_property
     def poles(self) -> np.ndarray:
-        """Exact poles of the full network (rad/s, complex; computed on first use)."""
-        return poles(self._system)
+        """Exact poles of the full network (rad/s, complex; computed on first use): all of
+        them, or above the root limit those nearest the band edges (:attr:`roots_note`)."""
+        return poles(self._system, near=self._band_edges)
 
     @cached_property
     def zeros(self) -> np.ndarray:
-        """Exact finite zeros from input to output (rad/s, complex; computed on first use)."""
-        return zeros(self._system) if self._zeros is None else self._zeros
+        """Exact finite zeros from input to output (rad/s, complex; computed on first use):
+        all of them, or above the root limit those nearest the band edges (:attr:`roots_note`)."""
+        return zeros(self._system, near=self._band_edges) if self._zeros is None else self._zeros
 
     def step_response(self, t_stop: float | None = None, points: int = 2000, **options) -> step.StepResponse:
         """The exact response to a unit input step and its figures beside their estimates

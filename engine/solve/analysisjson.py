@@ -99,6 +99,7 @@ def analysis_to_dict(a) -> dict:
         "warnings": a.warnings,
         "poles": _complex_list(a.poles),
         "zeros": _complex_list(a.zeros),
+        "roots_note": a.roots_note,
         "operating_point": _operating_point(a.operating_point),
         "units": {
             "midband_gain": gain, "midband_gain_db": db_unit(gain), "midband_frequency": "Hz", "b1": "s", "b2": "s²",

@@ -93,17 +93,112 @@ def _finite_eigenvalues(A, B) -> np.ndarray:
     return np.sort_complex(s)
 
 
-def poles(system) -> np.ndarray:
+ROOT_LIMIT = 600
+"""Up to this many unknowns every pole and zero is found (dense QZ: N² memory, N³ time);
+beyond it, only the :data:`NEAREST_ROOTS` nearest each band edge (:func:`nearest_eigenvalues`)."""
+NEAREST_ROOTS = 6
+"""Poles (and zeros) found near each band edge of a network above :data:`ROOT_LIMIT` unknowns."""
+_FINITE_THETA = 1e-9
+"""A root more than 1/this times its shift away (|θ·σ| below it) is an infinite one."""
+_NEAR_ROOT = 1e-3
+_ROOT_GROWTH = 30.0
+"""Solved at a root, K + s·E gives at least this many times the response a relative
+:data:`_NEAR_ROOT` away gives (a simple root found to 1e-8 gives about 1e5 times)."""
+_SAME_ROOT = 1e-8
+"""Two roots found from different shifts within this relative distance are one root."""
+
+
+def nearest_eigenvalues(K, E, shifts, k: int = NEAREST_ROOTS) -> np.ndarray:
+    """The finite s with (K + s·E)·v = 0 nearest each shift, by shift-invert Arnoldi.
+
+    For a shift σ, (K + σE)⁻¹·E has the eigenvalue θ = −1/(s − σ) for every finite root s,
+    so the roots nearest σ are its largest θ (ARPACK through :func:`scipy.sparse.linalg.eigs`,
+    one sparse LU of K + σE); the infinite roots of a singular E map to θ = 0 and stay out.
+
+    Parameters
+    ----------
+    K, E : scipy.sparse matrix
+        Square and of one size; S and F (or dimensionless and H on branch rows).
+    shifts : sequence of float
+        rad/s, where to look: a real σ on the negative axis (−2π·f at a band edge).
+    k : int
+        Roots wanted nearest each shift (fewer where the network has fewer finite ones).
+
+    Returns
+    -------
+    numpy.ndarray
+        rad/s, complex, sorted; roots found from two shifts are given once.
+    """
+    n = K.shape[0]
+    K, E = sp.csc_matrix(K, dtype=float), sp.csc_matrix(E, dtype=float)
+    found = []
+    for sigma in shifts:
+        try:
+            lu = spla.splu((K + sigma * E).tocsc())
+        except RuntimeError:  # σ is a root itself: look a hair beside it
+            lu = spla.splu((K + sigma * (1 + 1e-6) * E).tocsc())
+        T = spla.LinearOperator((n, n), matvec=lambda x, lu=lu: lu.solve(E @ x), dtype=float)
+        want = min(k, n - 2)
+        try:
+            theta = spla.eigs(T, k=want, which="LM", ncv=min(n - 1, max(2 * want + 1, 24)), tol=1e-12,
+                              return_eigenvectors=False)
+        except spla.ArpackNoConvergence as partial:
+            theta = partial.eigenvalues
+        # θ = 0 is an infinite root; rounding leaves it at about 1e-16 of 1/|σ|.
+        theta = theta[np.abs(theta) * abs(sigma) > _FINITE_THETA]
+        found.extend(sigma - 1 / theta)
+    roots = []
+    for s in found:
+        # A real root comes back with rounding in its imaginary part, which would make it a pair.
+        s = complex(s.real, 0.0) if abs(s.imag) <= 1e-9 * abs(s) else complex(s)
+        if not any(abs(s - r) <= _SAME_ROOT * max(abs(s), abs(r)) for r in roots) and _is_root(K, E, s):
+            roots.append(s)
+    return np.sort_complex(np.asarray(roots, dtype=complex))
+
+
+def _is_root(K, E, s: complex) -> bool:
+    """Whether K + s·E is singular at ``s``: solved there its response to a fixed excitation
+    is far larger than a relative 1e-3 away from it.
+
+    A pencil with a defective infinite root (the bordered pencil of an all-pole network)
+    hands Arnoldi a nilpotent block, whose rounding shows as finite "roots" that are none;
+    this is what tells them apart.
+    """
+    r = np.random.default_rng(0).standard_normal(K.shape[0])
+    sizes = []
+    for at in (s, s * (1 + _NEAR_ROOT)):
+        try:
+            sizes.append(np.linalg.norm(spla.splu((K + at * E).tocsc()).solve(r.astype(complex))))
+        except RuntimeError:  # exactly singular: a root
+            return at == s
+    return bool(np.isfinite(sizes[0]) and sizes[0] > _ROOT_GROWTH * sizes[1])
+
+
+def _bordered(system):
+    """The pencil [[G, −b], [c, 0]] + s·[[C, 0], [0, 0]], singular exactly where H(s) = 0."""
+    n = system.size
+    K = sp.bmat([[system.G, sp.csc_matrix(-system.b.reshape(n, 1))],
+                 [sp.csr_matrix(system.c.reshape(1, n)), None]], format="csc")
+    E = sp.bmat([[system.C, None], [None, sp.csc_matrix((1, 1))]], format="csc")
+    return K, E
+
+
+def poles(system, near=()) -> np.ndarray:
     """Finite natural frequencies of the network (rad/s): s with det(G + sC) = 0.
 
     Parameters
     ----------
     system : bandsketch.engine.solve.mna.MnaSystem
+    near : sequence of float, optional
+        rad/s, negative real shifts (band edges). Above :data:`ROOT_LIMIT` unknowns only the
+        poles nearest these are found; without them, or up to the limit, all of them.
     """
+    if system.size > ROOT_LIMIT and len(near):
+        return nearest_eigenvalues(system.G, system.C, near)
     return _finite_eigenvalues(-system.dense_G, system.dense_C)
 
 
-def zeros(system) -> np.ndarray:
+def zeros(system, near=()) -> np.ndarray:
     """Finite transmission zeros (rad/s) from the input to the output.
 
     The zeros are the finite generalised eigenvalues of the system pencil
@@ -112,7 +207,11 @@ def zeros(system) -> np.ndarray:
     Parameters
     ----------
     system : bandsketch.engine.solve.mna.MnaSystem
+    near : sequence of float, optional
+        rad/s, as for :func:`poles`.
     """
+    if system.size > ROOT_LIMIT and len(near):
+        return nearest_eigenvalues(*_bordered(system), near)
     n = system.size
     A = np.zeros((n + 1, n + 1))
     B = np.zeros((n + 1, n + 1))
