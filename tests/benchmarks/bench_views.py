@@ -58,24 +58,55 @@ def _capacitor(doc) -> str:
     return next(p.name for p in doc.parts.values() if p.kind == "capacitor")
 
 
-def time_edits(window, doc, edits_n: int = EDITS) -> list:
-    """Milliseconds from each value edit to the views showing its analysis."""
+def _shown(panel) -> None:
+    """Wait until the views show the analysis of the document as it is now."""
+    while panel.outcome is None or panel.outcome.generation != panel.runner.generation:
+        QCoreApplication.processEvents()
+        panel.runner.pool.waitForDone(1)
+    QCoreApplication.processEvents()
+
+
+def time_edits(window, doc, edits_n: int = EDITS, selected: bool = False) -> list:
+    """Milliseconds from each value edit to the views showing its analysis; with ``selected``
+    the capacitor edited is selected on the sheet, so its test picture follows too."""
     window.set_document(doc, None)
     panel = window.analysis_panel
     panel.runner.wait(60000)
     name = _capacitor(window.doc)
+    if selected:
+        window.scene.select([name])
+        _shown(panel)
     original = window.doc.parts[name].params["value"]
     times = []
     for k in range(edits_n):
         text = original if k % 2 else f"{1.5 + 0.1 * k:g}{original[-1] if original[-1].isalpha() else ''}"
         start = time.perf_counter()
         window.editor.patch(edits.edit_field(window.doc, name, "value", text), f"Edit {name}")
-        while panel.outcome is None or panel.outcome.generation != panel.runner.generation:
-            QCoreApplication.processEvents()
-            panel.runner.pool.waitForDone(1)
-        QCoreApplication.processEvents()
+        _shown(panel)
         times.append(1000 * (time.perf_counter() - start))
+    if selected:
+        window.scene.select([])
     return times
+
+
+def scrub_rate(window, doc, steps: int = 30) -> float:
+    """Updates per second of a value scrub: a selected capacitor stepped through its E series
+    (ten steps up, ten down, ...), each step shown (bars, Bode plot with its ghost, verdict,
+    test picture) before the next."""
+    window.set_document(doc, None)
+    panel = window.analysis_panel
+    panel.runner.wait(60000)
+    window.scene.select([_capacitor(window.doc)])
+    _shown(panel)
+    up, down = window.step_actions[0], window.step_actions[1]
+    start = time.perf_counter()
+    for k in range(steps):
+        (up if (k // 10) % 2 == 0 else down).trigger()
+        _shown(panel)
+    rate = steps / (time.perf_counter() - start)
+    window.scrub.end()
+    window.scene.select([])
+    return rate
 
 
 def main() -> int:
