@@ -23,6 +23,10 @@ CSS_DPI = 96
 
 
 _EMPTY_PATH = re.compile(r'<path[^>]*\sd=""\s*/>')
+_SCALED_GROUP = re.compile(r'(<g\b[^>]*?)\stransform="matrix\(([^)]*)\)"([^>]*>)(.*?)(</g>)', re.S)
+_ELEMENT = re.compile(r"<(\w+)\b[^>]*>")
+_POINTS = re.compile(r'\s(d|points)="([^"]*)"')
+_PAIR = re.compile(r"(-?[\d.]+(?:e[-+]?\d+)?),(-?[\d.]+(?:e[-+]?\d+)?)")
 
 
 def plain_qt_svg(text: str, width: int, height: int) -> str:
@@ -34,7 +38,32 @@ def plain_qt_svg(text: str, width: int, height: int) -> str:
     _tag, close, body = rest.partition(">")
     root = (f' xmlns="http://www.w3.org/2000/svg" xmlns:xlink="http://www.w3.org/1999/xlink" version="1.1" '
             f'width="{width}" height="{height}" viewBox="0 0 {width} {height}"')
-    return "<svg" + root + close + _EMPTY_PATH.sub("", body)
+    return "<svg" + root + close + _bake_non_scaling(_EMPTY_PATH.sub("", body))
+
+
+def _bake_non_scaling(body: str) -> str:
+    """Qt draws a plot's curve as data-space path data under a scaling group transform with
+    ``vector-effect="non-scaling-stroke"`` (SVG Tiny 1.2); SVG 1.1 readers such as librsvg
+    then scale the pen by the transform as well (a 2 px line 90 px wide). Where a group holds
+    only such paths, its transform is applied to their points instead."""
+
+    def bake(group):
+        start, matrix, rest, inside, end = group.groups()
+        elements = _ELEMENT.findall(inside)
+        if inside.count("non-scaling-stroke") != len(elements) or not set(elements) <= {"path", "polyline"}:
+            return group.group(0)
+        a, b, c, d, e, f = (float(v) for v in matrix.replace(" ", "").split(","))
+
+        def point(m):
+            x, y = float(m.group(1)), float(m.group(2))
+            return f"{a * x + c * y + e:.6g},{b * x + d * y + f:.6g}"
+
+        def coordinates(m):
+            return f' {m.group(1)}="{_PAIR.sub(point, m.group(2))}"'
+
+        return start + rest + _POINTS.sub(coordinates, inside) + end
+
+    return _SCALED_GROUP.sub(bake, body)
 
 
 def svg_image(svg: str, width_px: int) -> QImage:

@@ -2,15 +2,18 @@
 (checked with Python's XML parser for what a renderer needs: the SVG namespace, version 1.1,
 pixel width and height with a matching viewBox, SVG 1.1 elements only, no empty path data) and
 as PNG at a chosen resolution or width; from ``bandsketch figure`` and from the window alike.
-Where the system has them, GNOME's librsvg and cairo draw each SVG too (tests/app/librsvg.py)."""
+Where the system has them, GNOME's librsvg and cairo draw each SVG, the step view's too
+(tests/app/librsvg.py)."""
 
 from __future__ import annotations
 
+import re
 import xml.etree.ElementTree as ET
 from pathlib import Path
 
 import pytest
-from PySide6.QtGui import QImage
+from PySide6.QtGui import QColor, QImage, QPainter
+from PySide6.QtSvg import QSvgRenderer
 
 from bandsketch.app.cli import main
 from bandsketch.app.canvas.sheet_picture import sheet_svg
@@ -58,7 +61,10 @@ def test_librsvg_draws_each_figure_as_qt_does(what, tmp_path, capsys, qapp):
     svg, png = tmp_path / f"{what}.svg", tmp_path / f"{what}.png"
     assert main(["figure", "--sample", "ce_hydrophone_preamp", "--what", what, "-o", str(svg)]) == 0
     assert main(["figure", "--sample", "ce_hydrophone_preamp", "--what", what, "-o", str(png), "--dpi", "96"]) == 0
-    drawn, expected = librsvg.draw(svg.read_bytes(), str(tmp_path / "rsvg.png")), QImage(str(png))
+    _same_ink(QImage(str(png)), librsvg.draw(svg.read_bytes(), str(tmp_path / "rsvg.png")))
+
+
+def _same_ink(expected: QImage, drawn: QImage) -> None:
     assert (drawn.width(), drawn.height()) == (expected.width(), expected.height())
 
     def inked_cells(image: QImage) -> set:
@@ -69,6 +75,34 @@ def test_librsvg_draws_each_figure_as_qt_does(what, tmp_path, capsys, qapp):
     ours, theirs = inked_cells(expected), inked_cells(drawn)
     assert len(ours) > 50
     assert len(ours & theirs) >= 0.8 * len(ours) and len(theirs - ours) <= 0.2 * len(theirs)
+
+
+@pytest.mark.skipif(librsvg.LIBRARIES is None, reason="librsvg and cairo are not installed")
+def test_librsvg_draws_the_step_views_svg_as_qt_does(window, tmp_path):
+    # Qt writes a plot's curves in data units under a scaling transform with a non-scaling
+    # pen (SVG Tiny 1.2), which an SVG 1.1 reader would draw 90 px wide; the export bakes the
+    # transform into the points, so librsvg and Qt's own renderer draw the same picture.
+    window.resize(1400, 1000)
+    assert window.open_sample("follower_cable_driver")
+    panel = window.analysis_panel
+    panel.runner.wait()
+    panel.plots.setCurrentWidget(panel.time)
+    svg = tmp_path / "step.svg"
+    panel.export(str(svg))
+    check_svg(svg)
+    renderer = QSvgRenderer(str(svg))
+    qt_drawn = QImage(renderer.defaultSize(), QImage.Format.Format_ARGB32)
+    qt_drawn.fill(QColor("white"))
+    painter = QPainter(qt_drawn)
+    renderer.render(painter)
+    painter.end()
+    drawn = librsvg.draw(svg.read_bytes(), str(tmp_path / "rsvg.png"))
+    on_white = QImage(drawn.size(), QImage.Format.Format_ARGB32)  # the plot's margin is transparent
+    on_white.fill(QColor("white"))
+    painter = QPainter(on_white)
+    painter.drawImage(0, 0, drawn)
+    painter.end()
+    _same_ink(qt_drawn, on_white)
 
 
 def test_a_figure_must_be_svg_or_png(tmp_path, capsys):
@@ -104,4 +138,6 @@ def test_the_step_view_exports_plain_svg_too(window, tmp_path):
     panel.plots.setCurrentWidget(panel.time)
     panel.export(str(tmp_path / "step.svg"))
     check_svg(tmp_path / "step.svg")
-    assert "nan" not in (tmp_path / "step.svg").read_text(encoding="utf-8").lower()
+    text = (tmp_path / "step.svg").read_text(encoding="utf-8")
+    # Drawn as lines and text: no axis or marker pasted in as a bitmap, and no NaN coordinates.
+    assert "<image" not in text and not re.search(r"[\s,\"(]nan[\s,\")]", text, re.I)
