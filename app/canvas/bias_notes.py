@@ -7,7 +7,7 @@ texts come decided from the engine, and the items are kept and updated in place.
 from __future__ import annotations
 
 from PySide6.QtCore import QPointF
-from PySide6.QtGui import QBrush, QFont
+from PySide6.QtGui import QBrush, QFont, QFontMetricsF
 from PySide6.QtWidgets import QGraphicsScene, QGraphicsSimpleTextItem
 
 from ..theme import Theme
@@ -55,8 +55,11 @@ class BiasNotes:
                 if item is None:
                     continue
                 box = item.sceneBoundingRect()
-                at = QPointF(box.right() + 2, box.top()) if note.beside else QPointF(box.left(), box.bottom() + 1)
-                wanted.append((at, "\n".join(note.lines), note.warning))
+                text = "\n".join(note.lines)
+                # Above: lifted by the note's own height, so its last line ends just over the part.
+                at = QPointF(box.left(), box.top() - 1 - self._height(text)) if note.above else \
+                    QPointF(box.left(), box.bottom() + 1)
+                wanted.append((at, text, note.warning))
         while len(self._items) < len(wanted):
             text = QGraphicsSimpleTextItem()
             text.setFont(note_font())
@@ -71,6 +74,10 @@ class BiasNotes:
             item.setVisible(self.visible)
         for item in self._items[len(wanted):]:
             item.setVisible(False)
+
+    @staticmethod
+    def _height(text: str) -> float:
+        return QFontMetricsF(note_font()).lineSpacing() * (text.count("\n") + 1)
 
     def texts(self) -> list[str]:
         """What the visible notes say (for tests and screen readers)."""

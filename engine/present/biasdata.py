@@ -27,13 +27,14 @@ class DeviceNote:
         Short lines (I_C, V_CE, region for a transistor; the current a rail supplies).
     warning : str or None
         The plain-words warning about this device, when it is out of its region.
-    beside : bool
-        Written to the right of the part (a rail, whose leads run below it) rather than below.
+    above : bool
+        Written above the part rather than below it: a rail, whose lead runs down from it
+        and whose label (and often a neighbouring rail) sits beside it.
     """
 
     lines: tuple
     warning: str | None = None
-    beside: bool = False
+    above: bool = False
 
 
 @dataclass(frozen=True)
@@ -91,7 +92,7 @@ def bias_marks(doc, netlist, point) -> BiasMarks:
         if net in point.branch_currents and abs(point.branch_currents[net]) >= QUIET_RAIL_A \
                 and not any(n.lines[0].endswith(f"({net})") for n in devices.values()):
             supplied = format_value(-point.branch_currents[net], "A")
-            devices[part.name] = DeviceNote((f"supplies {supplied} ({net})",), beside=True)
+            devices[part.name] = DeviceNote((f"supplies {supplied} ({net})",), above=True)
     return BiasMarks(tuple(nodes), MappingProxyType(devices))
 
 
