@@ -4,6 +4,7 @@ Run as a script from the repository root (pytest does not collect it)::
 
     python tests/benchmarks/bench_all.py            # the full table (several minutes)
     python tests/benchmarks/bench_all.py --quick    # small sizes, for the CI smoke run (< 60 s)
+    python tests/benchmarks/bench_all.py --previous docs/benchmarks.md   # with the last run beside
 
 Each measurement runs in a fresh interpreter of its own, so its peak memory (the child's
 maximum resident set size, which includes the interpreter and numpy/scipy, about the
@@ -363,11 +364,28 @@ def main(argv) -> int:
             "interpreter start, imports, window, design opened (best of runs)", max(r["peak_mib"] for r in firsts))
         goal("start-up to the first painted window", "≤ 0.9 s", fmt_s(first), first <= 0.9)
 
-    _table(HEAD, rows)
+    if "--previous" in argv:
+        before = previous_times(Path(argv[argv.index("--previous") + 1]))
+        rows = [(*r[:3], before.get((r[0], r[1]), "—"), *r[3:]) for r in rows]
+        _table((*HEAD[:3], "previous run", *HEAD[3:]), rows)
+    else:
+        _table(HEAD, rows)
     print()
     _table(("target", "wanted", "measured", "verdict"), goals)
     print(f"\n({'quick' if '--quick' in argv else 'full'} run, {time.perf_counter() - started:.0f} s in all)")
     return 0
+
+
+def previous_times(path: Path) -> dict:
+    """(benchmark, size) -> the "time / rate" cell of the first table in a benchmarks page."""
+    times = {}
+    for line in path.read_text(encoding="utf-8").splitlines():
+        cells = [c.strip() for c in line.strip().strip("|").split("|")]
+        if line.startswith("| ") and len(cells) >= 5 and cells[0] not in ("benchmark", "target"):
+            times.setdefault((cells[0], cells[1]), cells[2])
+        elif times and not line.startswith("|"):
+            break
+    return times
 
 
 def _table(head, rows) -> None:
