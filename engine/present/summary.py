@@ -101,6 +101,8 @@ def format_table(a, title: str | None = None) -> str:
     lines.append(f"b1 = {_fmt(a.b1, 's')}{b2}")
     if len(a.elements) <= ROOTS_LISTED_UP_TO:
         lines += ["", f"Exact poles   {_roots(a.poles)}", f"Exact zeros   {_roots(a.zeros)}"]
+        if a.roots_note:
+            lines.append(f"  ({a.roots_note})")
     if a.operating_point is not None:
         lines += ["", "Bias (DC operating point)"] + _aligned((BIAS_HEADINGS,) + bias_rows(a.operating_point))
     if a.warnings:

@@ -85,3 +85,19 @@ def test_the_analysis_json_says_which_roots_it_lists(mesh_analysis):
     assert data["roots_note"] == mesh_analysis.roots_note and len(data["poles"]) == mesh_analysis.poles.size
     small = analysis_to_dict(analyze(_ladder(5)))
     assert small["roots_note"] == "" and len(small["poles"]) == 5
+
+
+def test_the_analysis_table_says_when_its_roots_are_only_the_nearest():
+    # Few capacitors on a long resistive chain: the table lists the roots, and says they are
+    # only those nearest the band edges.
+    from bandsketch.engine.present.summary import format_table
+    c = Circuit("long divider chain (invented)")
+    c.vsource("Vsig", "n0", "0")
+    for k in range(1, 701):
+        c.resistor(f"R{k}", f"n{k - 1}", f"n{k}", 1.0)
+    c.capacitor("C1", "n350", "0", 1e-9)
+    c.capacitor("C2", "n700", "0", 1e-9)
+    c.output("n700")
+    a = analyze(c)
+    assert not a.roots_complete
+    assert a.roots_note in format_table(a)
