@@ -14,7 +14,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from ..core.errors import CircuitError
-from ..core.values import format_value
+from ..core.values import format_gain, format_value
 from ..core.band import Band
 from .waveform import MODAL_LIMIT, dc_gain, integrated_step, modal_step, modes
 
@@ -402,6 +402,8 @@ def step_response(analysis, t_stop: float | None = None, points: int = 2000, *, 
         if arr is not None:
             arr.flags.writeable = False
     notes = _warnings(analysis, shape, poles, zeta, final)
+    if shape["settling_time"] is None:
+        notes.append(_unsettled(analysis, t, y / final, final))
     return StepResponse(t=t, y=y, y_first_order=y1, y_second_order=y2, final_value=final,
                         gain_unit=analysis.gain_unit, method=used, **shape,
                         rise_time_estimate=first(LN9), rise_time_estimate_2nd=second("rise_time"), damping=zeta,
@@ -470,6 +472,25 @@ def _warnings(analysis, shape, poles, zeta, final) -> list[str]:
                      f"{format_value(settle, 's')}, {settle / t90:.0f}× later. A pole–zero pair close together "
                      "(a doublet) settles far slower than the rise suggests.")
     return notes
+
+
+def _unsettled(analysis, t, yn, final) -> str:
+    """Why there is no settling time: the step is outside 1 % of its final value at the end."""
+    window, level = format_value(float(t[-1]), "s"), 100 * float(yn[-1])
+    target = format_gain(final, analysis.gain_unit)
+    tail = yn[t >= 0.9 * t[-1]]
+    if float(tail.max() - tail.min()) > SETTLE_BAND / 2:
+        return (f"No settling time: at the end of the {window} shown the step is still moving ({level:.1f} % of its "
+                f"final value, {target}); a longer window may show it settle.")
+    why = ""
+    peak = float(np.abs(analysis.sweep_response).max())
+    if final == analysis.midband_gain and 0 < peak < abs(final):
+        # The edge levels off where the exact gain tops out: below A_m when an element of one
+        # band still acts in the other's (a coupling capacitor against a Miller capacitance).
+        why = (f"; the exact gain itself tops out {20 * math.log10(abs(final) / peak):.2f} dB below |A_m| "
+               "(the bands interact), and the edge levels off there")
+    return (f"No settling time: the step levels off at {level:.1f} % of its final value ({target}), not within "
+            f"1 % of it, in the {window} shown{why}.")
 
 
 def _light_pair(analysis, poles, zeta):

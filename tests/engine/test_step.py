@@ -140,6 +140,32 @@ def test_doublet_slow_tail_matches_closed_form():
     assert any("slow tail" in w for w in modal.warnings)
 
 
+def test_a_step_that_levels_off_short_of_the_mid_band_gain_says_where_and_why():
+    # A coupling capacitor into a node that also holds a capacitance to ground: between the
+    # bands the two share the charge, so the edge levels off near C_in/(C_in + C_g) of the
+    # mid-band gain R_G/(R_G + R_sig) (C_in shorted, C_g open), here 2 % short of it. No
+    # settling time can be read, and the step says why instead of leaving a bare dash. The
+    # level it states is held to scipy.signal's step of the same H(s), written by hand:
+    # H = s·C_in·R_G / (R_sig·C_in·R_G·C_g·s² + (C_in·R_G + R_sig·C_in + R_G·C_g)·s + 1).
+    rs, ci, rg, cg = 1e3, 100e-9, 1e6, 2e-9
+    c = Circuit("sensor coupling into a capacitive node (invented)")
+    c.vsource("V", "s", "0")
+    c.resistor("Rsig", "s", "a", rs)
+    c.capacitor("Cin", "a", "g", ci)
+    c.resistor("RG", "g", "0", rg)
+    c.capacitor("Cg", "g", "0", cg)
+    c.output("g")
+    a = analyze(c)
+    step = a.step_response()
+    assert step.settling_time is None
+    den = [rs * ci * rg * cg, ci * rg + rs * ci + rg * cg, 1.0]
+    _, y = scipy.signal.step(([ci * rg, 0.0], den), T=step.t)
+    level = y[-1] / (rg / (rg + rs))
+    assert level == pytest.approx(ci / (ci + cg), abs=2e-3)
+    note = next(w for w in step.warnings if w.startswith("No settling time"))
+    assert f"levels off at {100 * level:.1f} %" in note and "dB below |A_m|" in note
+
+
 def test_rc_high_pass_pulse_sag_matches_closed_form():
     # A coupling capacitor into R: the top of a pulse of width T falls as e^(−t/RC), so the
     # sag is 1 − e^(−T/RC) ≈ T/RC = ω_L·T (from memory).
