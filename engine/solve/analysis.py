@@ -49,7 +49,8 @@ BANDS_APART = 10.0
 RHP_ZERO_FACTOR = 10.0
 """A right-half-plane zero below this multiple of f_H is worth a warning."""
 PEAKING_DB = 0.1
-"""Exact gain this far above |A_m| (dB) counts as peaking."""
+"""Exact gain this far above |A_m| (dB) counts as peaking; this far below it everywhere, as a
+mid band that never reaches A_m."""
 UNREACHED_RATIO = 1e-12
 """A mid-band output below this fraction of the largest node voltage is rounding, not signal."""
 ZERO_CHECK_LIMIT = 250
@@ -1280,12 +1281,17 @@ def _names(names) -> str:
     return names[0] if len(names) == 1 else ", ".join(names[:-1]) + " and " + names[-1]
 
 
-def _peaking_note(stage, gain) -> list[str]:
+def _top_note(stage, gain, shortfall_db) -> list[str]:
+    """The exact gain's top against |A_m|: peaking above it, or a mid band that stays below it."""
     mag = np.abs(stage.sweep_response)
     top = int(np.argmax(mag))
     excess = 20 * math.log10(mag[top] / abs(gain))
     if excess > PEAKING_DB:
         return [f"The exact gain peaks {excess:.1f} dB above the mid-band gain, at {_hz(stage.sweep_frequencies[top])}."]
+    if -excess > PEAKING_DB and shortfall_db is None:
+        return [f"The exact gain tops out {-excess:.2f} dB below the mid-band gain: a capacitor of one band "
+                "still acts in the other's (a coupling capacitor against a capacitance it feeds, such as a "
+                "Miller capacitance)."]
     return []
 
 
@@ -1320,4 +1326,4 @@ def warn(stage: Stage, bands: Classification, est: Estimates, exact: ExactCorner
         notes.append(f"The bands are only {exact.f_high / exact.f_low:.1f}× apart (f_H/f_L): the low-band elements "
                      "still act near f_H and the high-band ones near f_L, so both estimates are weak.")
     notes += _error_notes(stage, bands, est, exact, results, known_zeros)
-    return notes + _peaking_note(stage, bands.midband_gain)
+    return notes + _top_note(stage, bands.midband_gain, exact.shortfall_db)

@@ -200,3 +200,22 @@ def test_inconclusive_elements_take_the_state_their_impedance_gives(c):
         assert r.midband_resistance == pytest.approx(ref, rel=1e-9, abs=1e-9)
         if abs(r.midband_reactance - ref) > 1e-6 * ref:
             assert r.state == ("short" if r.midband_reactance < ref else "open"), r.name
+
+
+def test_a_mid_band_that_never_reaches_a_m_is_said_with_its_shortfall():
+    # A coupling capacitor into a node with a capacitance to ground: H is a band-pass
+    # k·s/(a2·s² + a1·s + 1), whose top is k/a1 (common practice, no source), short of the
+    # resistive A_m = R_G/(R_G + R_sig) by the charge the two capacitors share.
+    rs, ci, rg, cg = 1e3, 100e-9, 1e6, 2e-9
+    c = Circuit("sensor coupling into a capacitive node (invented)")
+    c.vsource("V", "s", "0")
+    c.resistor("Rsig", "s", "a", rs)
+    c.capacitor("Cin", "a", "g", ci)
+    c.resistor("RG", "g", "0", rg)
+    c.capacitor("Cg", "g", "0", cg)
+    c.output("g")
+    a = analyze(c)
+    top = ci * rg / (ci * rg + rs * ci + rg * cg)
+    short = 20 * math.log10((rg / (rg + rs)) / top)
+    assert a.midband_gain == pytest.approx(rg / (rg + rs))
+    assert any(w.startswith(f"The exact gain tops out {short:.2f} dB below the mid-band gain") for w in a.warnings)
