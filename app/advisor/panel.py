@@ -470,6 +470,12 @@ class AdvisorPanel(QWidget):
                     font.setBold(True)
                     item.setFont(font)
                 self.suggest_table.setItem(i, col, item)
+        # The best change that meets every target comes selected, so applying it is one click.
+        self.suggest_table.clearSelection()
+        first = next((i for i, s in enumerate(rows) if s.meets_all), None)
+        if first is not None:
+            self.suggest_table.selectRow(first)
+        self._suggestion_selected()
 
     def _show_advice(self, advice) -> None:
         meeting = [s for s in advice.suggestions if s.meets_all]

@@ -111,6 +111,9 @@ def test_done_when_suggest_apply_pass_undo(panel, window):
     assert best.meets_all and best.spread is not None
     assert f"yield {100 * best.spread.fraction:.0f} %" in panel.suggest_label.text()
     assert panel.suggest_table.item(0, 8).text() == "meets every target"
+    # It comes selected: applying it is one click.
+    assert panel.apply_button.isEnabled()
+    assert [r.row() for r in panel.suggest_table.selectionModel().selectedRows()] == [0]
     # Rows that meet everything come first; a row that breaks another target says which.
     flags = [s.meets_all for s in panel.suggestions]
     assert flags == sorted(flags, reverse=True)
