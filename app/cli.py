@@ -5,7 +5,7 @@ the window; ``bandsketch samples`` lists the shipped samples;
 ``bandsketch analyze DESIGN [--json] [--csv FILE]`` prints the analysis and the step figures;
 ``bandsketch step DESIGN [--csv FILE] [--t-stop S] [--points N] [--json]`` the step response;
 ``bandsketch report DESIGN -o FILE.html|FILE.pdf`` writes the design report;
-``bandsketch figure DESIGN --what bode|bars|sheet -o FILE.svg|FILE.png [--dpi N | --width PX]`` one picture;
+``bandsketch figure DESIGN --what bode|bars|step|sheet -o FILE.svg|FILE.png [--dpi N | --width PX]`` one picture;
 ``bandsketch spread DESIGN --samples N --seed S [--json]`` runs the tolerance spread;
 ``bandsketch advise DESIGN [--knobs R1,RC] [--json]`` prints the advisor's suggestions. Every DESIGN
 may be ``--sample NAME`` instead. Qt is imported only for the window and for pictures (a report's
@@ -218,10 +218,11 @@ def _report_parser() -> argparse.ArgumentParser:
 
 def _figure_parser() -> argparse.ArgumentParser:
     p = argparse.ArgumentParser(prog="bandsketch figure", epilog=_EPILOG,
-                                description="Save one picture of a design: the Bode plot, the time-constant bars or "
-                                            "the sheet, as SVG (browsers and librsvg draw it) or PNG.")
+                                description="Save one picture of a design: the Bode plot, the time-constant bars, the "
+                                            "step response or the sheet, as SVG (browsers and librsvg draw it) or PNG.")
     _design_argument(p)
-    p.add_argument("--what", required=True, choices=("bode", "bars", "sheet"), help="which picture")
+    p.add_argument("--what", required=True, choices=("bode", "bars", "step", "sheet"),
+                   help="which picture")
     p.add_argument("-o", "--output", required=True, type=_figure_path, metavar="FILE.svg|FILE.png",
                    help="where to write it; .svg writes SVG, .png a PNG")
     size = p.add_mutually_exclusive_group()

@@ -15,7 +15,7 @@ from PySide6.QtCore import QByteArray, QRectF, Qt
 from PySide6.QtGui import QImage, QPainter
 from PySide6.QtSvg import QSvgRenderer
 
-FIGURES = ("bode", "bars", "sheet")
+FIGURES = ("bode", "bars", "step", "sheet")
 """What ``bandsketch figure --what`` draws."""
 DEFAULT_DPI = 192
 """A PNG's resolution unless one is chosen: twice a screen's 96 dpi."""
@@ -117,7 +117,10 @@ def figure_svg(doc, what: str) -> str:
     from bandsketch.engine import analyze
     from bandsketch.engine.design.netlist import design_to_circuit
     from bandsketch.engine.present.plotdata import bar_data, bode_data
-    from bandsketch.engine.present.svgfigures import bars_svg, bode_svg
+    from bandsketch.engine.present.stepdata import step_data
+    from bandsketch.engine.present.svgfigures import bars_svg, bode_svg, step_svg
 
     analysis = analyze(design_to_circuit(doc), bands=dict(doc.band_pins))
+    if what == "step":
+        return step_svg(step_data(analysis.step_response()))
     return bode_svg(bode_data(analysis)) if what == "bode" else bars_svg(bar_data(analysis))

@@ -39,7 +39,7 @@ def check_svg(path: Path) -> tuple[float, float]:
     return float(width), float(height)
 
 
-@pytest.mark.parametrize("what", ["bode", "bars", "sheet"])
+@pytest.mark.parametrize("what", ["bode", "bars", "step", "sheet"])
 def test_the_command_writes_each_figure_as_svg_and_png_at_the_chosen_dpi(what, tmp_path, capsys, qapp):
     svg, png, wide = tmp_path / f"{what}.svg", tmp_path / f"{what}.png", tmp_path / f"{what}-wide.png"
     assert main(["figure", "--sample", "ce_hydrophone_preamp", "--what", what, "-o", str(svg)]) == 0
@@ -54,7 +54,7 @@ def test_the_command_writes_each_figure_as_svg_and_png_at_the_chosen_dpi(what, t
 
 
 @pytest.mark.skipif(librsvg.LIBRARIES is None, reason="librsvg and cairo are not installed")
-@pytest.mark.parametrize("what", ["bode", "bars", "sheet"])
+@pytest.mark.parametrize("what", ["bode", "bars", "step", "sheet"])
 def test_librsvg_draws_each_figure_as_qt_does(what, tmp_path, capsys, qapp):
     # The renderer itself (GNOME librsvg, through cairo), beside Qt's own PNG of the same figure:
     # same size, and ink where Qt put ink (fonts differ, so pixels are compared in 8 px cells).
