@@ -230,7 +230,8 @@ def step_svg(data, palette: Palette = LIGHT) -> str:
     pic = _Picture(WIDTH, height, "Step response", c)
     t = data.time
     curves = [v for v in (data.exact, data.first_order, data.second_order) if v is not None]
-    top = max(1.1, max(float(v.max()) for v in curves) + 0.05)
+    # Room over the highest curve for the overshoot's label, clear of the key above the plot.
+    top = max(1.1, max(float(v.max()) for v in curves) + 0.12)
     bottom = min(-0.05, min(float(v.min()) for v in curves) - 0.05)
     t_end = float(t[-1]) or 1.0
     x0, x1 = _L, WIDTH - _R
