@@ -151,6 +151,9 @@ def bode_svg(data, palette: Palette = LIGHT) -> str:
         inward = "end" if m.corner == "high" else "start"
         dx = -5 if m.corner == "high" else 5
         yy = float(y_mag(m.label_db)) + (-7 if m.estimated else 15)
+        if m.estimated:
+            # 3 dB is a few pixels here: clear of the mid band, not written over its curve.
+            yy = min(yy, float(y_mag(data.midband_db)) - 6)
         pic.text(xx + dx, yy, m.text, colour, inward, 10.5)
     p_lo, p_hi = data.phase_view_deg
     panel(_T + _MAG_H + _GAP, _PHASE_H, p_lo, p_hi, 90 if p_hi - p_lo > 180 else 45, lambda k: k.phase_deg,
