@@ -62,7 +62,7 @@ class _Version(argparse.Action):
 
 
 def _gui_parser() -> argparse.ArgumentParser:
-    p = argparse.ArgumentParser(
+    p = argparse.ArgumentParser(allow_abbrev=False,
         prog="bandsketch", epilog=_EPILOG,
         description="Sketch an amplifier stage and see where its -3 dB corners fall. "
                     f"Subcommands: {', '.join(SUBCOMMANDS)} (bandsketch analyze -h).")
@@ -89,7 +89,7 @@ def _load(args):
 
 
 def _samples_parser() -> argparse.ArgumentParser:
-    return argparse.ArgumentParser(prog="bandsketch samples", epilog=_EPILOG,
+    return argparse.ArgumentParser(allow_abbrev=False, prog="bandsketch samples", epilog=_EPILOG,
                                    description="List the sample designs that ship with Bandsketch.")
 
 
@@ -105,7 +105,7 @@ def _list_samples(args) -> int:
 
 
 def _analyze_parser() -> argparse.ArgumentParser:
-    p = argparse.ArgumentParser(prog="bandsketch analyze", epilog=_EPILOG,
+    p = argparse.ArgumentParser(allow_abbrev=False, prog="bandsketch analyze", epilog=_EPILOG,
                                 description="Print the time-constant analysis of a design.")
     _design_argument(p)
     p.add_argument("--json", action="store_true", help="print JSON instead of a table")
@@ -177,7 +177,7 @@ _points = _whole_number("points", 3, 1_000_000)
 
 
 def _step_parser() -> argparse.ArgumentParser:
-    p = argparse.ArgumentParser(prog="bandsketch step", epilog=_EPILOG,
+    p = argparse.ArgumentParser(allow_abbrev=False, prog="bandsketch step", epilog=_EPILOG,
                                 description="The exact step response of a design, its figures and their estimates.")
     _design_argument(p)
     p.add_argument("--csv", metavar="FILE", help="write the waveform (time, exact, estimates) to FILE")
@@ -206,7 +206,7 @@ def _step(args) -> int:
 
 
 def _report_parser() -> argparse.ArgumentParser:
-    p = argparse.ArgumentParser(prog="bandsketch report", epilog=_EPILOG,
+    p = argparse.ArgumentParser(allow_abbrev=False, prog="bandsketch report", epilog=_EPILOG,
                                 description="Write the design report: one self-contained HTML file, or a PDF.")
     _design_argument(p)
     p.add_argument("-o", "--output", required=True, type=_report_path, metavar="FILE.html|FILE.pdf",
@@ -217,7 +217,7 @@ def _report_parser() -> argparse.ArgumentParser:
 
 
 def _figure_parser() -> argparse.ArgumentParser:
-    p = argparse.ArgumentParser(prog="bandsketch figure", epilog=_EPILOG,
+    p = argparse.ArgumentParser(allow_abbrev=False, prog="bandsketch figure", epilog=_EPILOG,
                                 description="Save one picture of a design: the Bode plot, the time-constant bars, the "
                                             "step response or the sheet, as SVG (browsers and librsvg draw it) or PNG.")
     _design_argument(p)
@@ -253,7 +253,7 @@ def _figure(args) -> int:
 
 
 def _spread_parser() -> argparse.ArgumentParser:
-    p = argparse.ArgumentParser(prog="bandsketch spread", epilog=_EPILOG,
+    p = argparse.ArgumentParser(allow_abbrev=False, prog="bandsketch spread", epilog=_EPILOG,
                                 description="Tolerance spread of the corners and the gain, with the yield.")
     _design_argument(p)
     p.add_argument("--samples", type=_samples, default=10_000, help="Monte Carlo samples (default 10000)")
@@ -264,11 +264,11 @@ def _spread_parser() -> argparse.ArgumentParser:
 
 def _advise_parser() -> argparse.ArgumentParser:
     p = argparse.ArgumentParser(
-        prog="bandsketch advise",
+        allow_abbrev=False, prog="bandsketch advise", epilog=_EPILOG,
         description="Suggest values that meet the design's targets: one knob at a time, each row with "
                     "its whole effect (f_H, f_L, gain, every target), and with two or three --knobs "
                     "also the best combination of them.")
-    p.add_argument("design", help="design file (.json) with targets set")
+    _design_argument(p)
     p.add_argument("--knobs", metavar="R1,RC", help="only these parts (comma-separated); with two or "
                                                     "three, also search their combinations")
     p.add_argument("--samples", type=_samples, default=1000,
@@ -278,16 +278,15 @@ def _advise_parser() -> argparse.ArgumentParser:
 
 
 def _advise(args) -> int:
-    from bandsketch.engine.design.designfile import load_design
     from bandsketch.engine.present.advice import advice_table, advise_design, advice_to_dict
 
-    doc = load_design(args.design)
+    doc = _load(args)
     only = [k.strip() for k in args.knobs.split(",") if k.strip()] if args.knobs else None
     try:
         advice, found = advise_design(doc, only, samples=args.samples)
     except ValueError as exc:
-        print(f"bandsketch: {args.design}: {getattr(exc, 'message', exc)}", file=sys.stderr)
-        return 2
+        print(f"bandsketch: {args.design or args.sample}: {getattr(exc, 'message', exc)}", file=sys.stderr)
+        return EXIT_BAD_INPUT
     if args.json:
         print(json.dumps(_versioned("bandsketch-advice", advice_to_dict(advice, found)), indent=1, ensure_ascii=False))
     else:

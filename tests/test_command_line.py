@@ -49,6 +49,21 @@ def test_a_sample_by_name_is_analysed(capsys):
     assert "Upper corner" in out
 
 
+@pytest.mark.parametrize("command", [c for c in cli.SUBCOMMANDS if c not in ("samples",)])
+def test_every_command_on_a_design_takes_a_sample_by_name(command):
+    # argparse would otherwise read "--sample" as an abbreviation of "--samples" where a
+    # command has that option and no --sample of its own (advise did).
+    parser = getattr(cli, f"_{command}_parser")()
+    assert not parser.allow_abbrev
+    assert any("--sample" in action.option_strings for action in parser._actions)
+
+
+def test_advise_on_a_sample_prints_its_table(capsys):
+    code, out, _ = run(capsys, "advise", "--sample", "ce_hydrophone_preamp", "--samples", "100")
+    assert code == EXIT_OK
+    assert out.startswith("Advice for CE hydrophone preamp") and "misses minimum f_H" in out
+
+
 def test_an_unknown_sample_names_the_ones_there_are(capsys):
     code, _, err = run(capsys, "analyze", "--sample", "no_such_stage")
     assert code == EXIT_BAD_INPUT
