@@ -32,6 +32,10 @@ DEFAULT_RANGE_HZ = (10.0, 100e6)
 """Sweep used when the analysis names no corner and no pole to centre on."""
 MIN_DECADES = 4.0
 """A sweep narrower than this shows too little of the mid band around a single corner."""
+RANGE_STEP_DECADES = 0.25
+"""The swept span's ends are rounded outward to this step, so an edit that moves a corner a
+little leaves the axes as they were (the curve moves against still axes, and the plot is not
+re-ticked on every edit)."""
 POLE_REACH_DECADES = 1.0
 """Poles further than this beyond the corners do not stretch the sweep: a parasitic pole at
 tens of gigahertz would otherwise squeeze the corners into a corner of the plot."""
@@ -317,7 +321,8 @@ def _pole_frequencies(analysis) -> list:
 
 
 def sweep_range(analysis) -> tuple:
-    """The frequencies (Hz) the plot spans: a decade beyond the outermost corners and poles.
+    """The frequencies (Hz) the plot spans: a decade beyond the outermost corners and poles,
+    out to the next quarter decade.
 
     Parameters
     ----------
@@ -346,7 +351,10 @@ def sweep_range(analysis) -> tuple:
         else:
             # DC-coupled: the missing decades go below, where the flat mid band is.
             lo /= 10 ** short
-    return lo, hi
+    step = RANGE_STEP_DECADES
+    # The 1e-9 keeps an end already on a step (1e7 Hz) from being pushed a step further by rounding.
+    return (10 ** (step * math.floor(math.log10(lo) / step + 1e-9)),
+            10 ** (step * math.ceil(math.log10(hi) / step - 1e-9)))
 
 
 def sweep_frequencies(analysis, span_hz: tuple | None = None) -> np.ndarray:

@@ -96,8 +96,11 @@ def test_markers_sit_at_the_corners_three_db_down():
 
 def test_sweep_spans_a_decade_beyond_the_outermost_corner_or_pole():
     # The lowest is Cin's own 1/(2π·1 kΩ·10 µF) = 15.9 Hz, below f_L; the highest is f_H.
+    # A decade beyond each, 1.59 Hz and 10 MHz, out to the quarter decade: 1 Hz and 10 MHz.
     lo, hi = sweep_range(_two_corner())
-    assert lo == pytest.approx(1 / (2 * math.pi * 1e-2) / 10) and hi == pytest.approx(1e7)
+    assert lo == pytest.approx(1.0) and hi == pytest.approx(1e7)
+    # A corner moved a little leaves the span as it was.
+    assert sweep_range(_two_corner(f_h=0.95e6)) == (lo, hi)
     # A far parasitic pole does not squeeze the corners into a corner of the plot.
     far = _two_corner(high_time_constants=(1 / (2 * math.pi * 1e6), 1 / (2 * math.pi * 1e9)))
     assert sweep_range(far)[1] == pytest.approx(1e7)
