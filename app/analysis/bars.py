@@ -25,7 +25,10 @@ HEAD_H = 38
 GAP = 8
 PAD = 8
 PIN_W = 14
-MIN_BAR_W = 40
+MIN_BAR_W, SHORT_BAR_W = 40, 12
+"""A bar's least length (px); in a pane too narrow for every column, the longest texts are cut
+first (down to a usual row's), then the bars shrink to the second."""
+USUAL_ROW_TEXT = "888 ps · 88 %"
 SENS_SAMPLE = "−0.00"
 """The widest sensitivity text (two decimals), for the column's width."""
 SENS_WAIT = "…"
@@ -54,6 +57,7 @@ class _Bar:
     name_at: QPointF
     bar: QRectF
     text_at: QPointF
+    text: str
     sens_at: QPointF
 
 
@@ -149,9 +153,15 @@ class TimeConstantBars(QWidget):
             name_w = max((fb.horizontalAdvance(r.name) for r in rows), default=0) + 10
             text_w = max((fm.horizontalAdvance(_row_text(r)) for r in rows), default=0) + 10
             sens_w = fm.horizontalAdvance(SENS_SAMPLE) + 8
-            width = max(self.width(), PAD * 2 + PIN_W + name_w + MIN_BAR_W + text_w + sens_w)
+            # The layout fits the pane: the sensitivity column is never pushed out of sight. A
+            # narrow pane shortens the bars first, then cuts the longest texts (their tooltip
+            # keeps them whole).
+            width = self.width()
             bar_x = PAD + PIN_W + name_w
-            bar_w = max(MIN_BAR_W, width - PAD - text_w - sens_w - bar_x)
+            room = width - PAD - sens_w - bar_x  # for the bar and the text together
+            usual = min(text_w, fm.horizontalAdvance(USUAL_ROW_TEXT) + 10)
+            text_w = max(min(text_w, room - MIN_BAR_W), usual)
+            bar_w = max(SHORT_BAR_W, room - text_w)
             for g in self._data.groups:
                 # The column's heading goes on whichever line of the group's heading has room
                 # for it; with room on neither it is left to the tooltip rather than overprint.
@@ -167,8 +177,9 @@ class TimeConstantBars(QWidget):
                     rect = QRectF(PAD / 2, y, width - PAD, ROW_H)
                     bar = QRectF(bar_x, y + 4, max(1.0, bar_w * r.share) if r.share > 0 else 0.0, ROW_H - 8)
                     base = y + ROW_H / 2 + fm.ascent() / 2 - 1
+                    text = fm.elidedText(_row_text(r), Qt.TextElideMode.ElideRight, max(0.0, text_w - 10))
                     self._bars.append(_Bar(r, rect, QPointF(PAD + PIN_W, base), bar,
-                                           QPointF(bar_x + bar_w + 8, base), QPointF(width - PAD, base)))
+                                           QPointF(bar_x + bar_w + 8, base), text, QPointF(width - PAD, base)))
                     y += ROW_H
                 y += GAP
         self._height = int(y + PAD)
@@ -233,7 +244,7 @@ class TimeConstantBars(QWidget):
                 p.drawRect(b.bar)
             p.setFont(plain)
             p.setPen(c.stale if self._stale else c.muted)
-            p.drawText(b.text_at, _row_text(r))
+            p.drawText(b.text_at, b.text)
             sens = None if self._sens is None or isinstance(self._sens, str) else self._sens.get(r.name)
             p.setFont(bold if sens is not None and sens.leads else plain)
             p.setPen(c.stale if self._stale else c.ink)

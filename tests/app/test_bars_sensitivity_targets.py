@@ -105,3 +105,25 @@ def test_the_sweep_range_is_the_designers_and_blank_is_automatic(qtbot, window):
     panel.sweep_to.clear()
     qtbot.keyClick(panel.sweep_to, Qt.Key.Key_Return)
     assert panel.bode.data().freq_range == pytest.approx(automatic)
+
+
+@pytest.mark.parametrize("width", [300, 520])
+def test_a_narrow_bars_pane_keeps_every_column_in_sight(qtbot, width):
+    # The cascode's pole-zero pair row ("1.77 Hz → 1.79 Hz · −<1 %") is the widest text: in a
+    # narrow pane it is cut (its tooltip keeps it) before the sensitivity column is pushed out.
+    from bandsketch.app.analysis.bars import MIN_BAR_W, TimeConstantBars, _row_text
+    from bandsketch.engine.design.samples import load_sample
+    from bandsketch.engine.present.plotdata import bar_data
+
+    bars = TimeConstantBars()
+    qtbot.addWidget(bars)
+    bars.resize(width, 400)
+    bars.show_bars(bar_data(analyze(design_to_circuit(load_sample("cascode_line_receiver")))))
+    assert bars._bars
+    for b in bars._bars:
+        assert b.sens_at.x() <= width and b.text_at.x() + bars.fontMetrics().horizontalAdvance(b.text) <= b.sens_at.x()
+        assert b.bar.right() <= b.text_at.x()
+    longest = max(bars._bars, key=lambda b: len(_row_text(b.row)))
+    assert longest.text.endswith("…") == (width == 300)
+    top = max(bars._bars, key=lambda b: b.row.share)
+    assert top.bar.width() >= MIN_BAR_W * top.row.share - 1
