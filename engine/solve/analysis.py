@@ -515,14 +515,21 @@ def physical_state(el, f: float, seen: float) -> str:
     return SHORT if reactance(el, f) < seen else OPEN
 
 
-def _seen_resistances(system, lu, reactive) -> dict[str, float]:
-    """Ω each element sees in the resistive network ``system`` (factorised as ``lu``).
+def _port_diagonal_at(stage, states, system, lu) -> np.ndarray:
+    """Every reactive element's port entry in the resistive network at ``states`` (once per states)."""
+    key = tuple(states.items())
+    if key not in stage._diagonals:
+        stage._diagonals[key] = port_diagonal(lu, port_columns(system, stage.reactive)).real
+    return stage._diagonals[key]
+
+
+def _seen_resistances(system, z, reactive) -> dict[str, float]:
+    """Ω each element sees in the resistive network ``system``, from its port entries ``z``.
 
     A shorted element is a 0-V branch: its port entry is minus the conductance it sees. An
     open one is left out: its port entry, across its nodes, is the resistance. Either way
     the others stay at their states.
     """
-    z = port_diagonal(lu, port_columns(system, reactive)).real
     out = {}
     for el, v in zip(reactive, z):
         if el.name in system.branch_index:
@@ -673,6 +680,9 @@ class Stage:
     operating_point: OperatingPoint | None = field(default=None, repr=False)
     _networks: dict = field(default_factory=dict, repr=False, compare=False)
     """States -> the resistive network at them and its factors: the band rounds revisit the same states."""
+    _diagonals: dict = field(default_factory=dict, repr=False, compare=False)
+    """States -> the port diagonal of every reactive element in that network: the rounds that
+    revisit the states, and the open-circuit constants of a large high band, reuse it."""
 
 
 @dataclass(frozen=True)
@@ -825,14 +835,14 @@ def _place_neutral(stage, bands, f_m):
     placed: dict[str, str] = {}
     for _ in range(PLACE_ROUNDS):
         states, mid, lu = _mid_network(stage, bands, placed)
-        seen = _seen_resistances(mid, lu, stage.reactive)
+        seen = _seen_resistances(mid, _port_diagonal_at(stage, states, mid, lu), stage.reactive)
         judged = {el.name: physical_state(el, f_m, seen[el.name]) for el in undecided}
         if judged == placed:
             break
         placed = judged
     else:
         states, mid, lu = _mid_network(stage, bands, placed)
-        seen = _seen_resistances(mid, lu, stage.reactive)
+        seen = _seen_resistances(mid, _port_diagonal_at(stage, states, mid, lu), stage.reactive)
     return placed, states, mid, lu, seen
 
 
@@ -907,8 +917,13 @@ def estimate(stage: Stage, bands: Classification, full_matrix_limit: int = FULL_
     Estimates
     """
     high, low = bands.members(stage, Band.HIGH), bands.members(stage, Band.LOW)
-    oc = open_circuit(bands.mid_lu, port_columns(bands.mid, high), port_weights(high),
-                      full=len(high) <= full_matrix_limit)
+    full = len(high) <= full_matrix_limit
+    # Without the whole matrix, the high band's entries are those the band rounds already found
+    # in this same network.
+    known = None if full else _port_diagonal_at(stage, bands.states, bands.mid, bands.mid_lu)
+    index = {el.name: i for i, el in enumerate(stage.reactive)}
+    oc = open_circuit(bands.mid_lu, port_columns(bands.mid, high), port_weights(high), full=full,
+                      diagonal=None if known is None else known[[index[el.name] for el in high]])
     sc, low_port_of = _low_band(stage.circuit, low, bands.states)
     f_high = 1 / (2 * math.pi * oc.b1) if oc.b1 > 0 else None
     f_high_2nd = second_order_corner(oc.b1, oc.b2) if high and oc.b2 is not None else None

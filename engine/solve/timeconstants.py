@@ -252,7 +252,8 @@ def _eigenvalues(D: np.ndarray, Z: np.ndarray) -> np.ndarray:
     return lam[np.argsort(-np.abs(lam), kind="stable")]
 
 
-def open_circuit(lu, U: sp.csc_matrix, D: np.ndarray, *, full: bool | None = None) -> OpenCircuit:
+def open_circuit(lu, U: sp.csc_matrix, D: np.ndarray, *, full: bool | None = None,
+                 diagonal: np.ndarray | None = None) -> OpenCircuit:
     """Open-circuit time constants of the ports ``U`` with weights ``D``, from one LU.
 
     Parameters
@@ -267,6 +268,9 @@ def open_circuit(lu, U: sp.csc_matrix, D: np.ndarray, *, full: bool | None = Non
     full : bool, optional
         Form the whole port matrix for b2 and the exact time constants; by default only up
         to :data:`FULL_MATRIX_LIMIT` ports.
+    diagonal : numpy.ndarray, optional
+        diag(Uᵀ A⁻¹ U) when it is already known (Ω for a capacitor, −S for an inductor): used
+        instead of solving for it where the whole matrix is not formed.
     """
     n = U.shape[1]
     if n == 0:
@@ -275,7 +279,7 @@ def open_circuit(lu, U: sp.csc_matrix, D: np.ndarray, *, full: bool | None = Non
     if full is None:
         full = n <= FULL_MATRIX_LIMIT
     if not full:
-        z = port_diagonal(lu, U)
+        z = port_diagonal(lu, U) if diagonal is None else np.asarray(diagonal, dtype=float)
         return OpenCircuit(z, D * z, float(np.dot(D, z)), None, None)
     Z = port_matrix(lu, U)
     z = np.diag(Z).copy()

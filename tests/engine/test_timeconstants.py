@@ -103,6 +103,17 @@ def test_ladder_far_end_is_elmore_delay():
     assert rel(a.b1, elmore) < 1e-12
 
 
+def test_the_diagonal_alone_gives_the_same_elmore_b1_and_every_resistance():
+    # Beyond the full-matrix limit only diag(Z) is formed, taken from the band rounds' own
+    # solve of the same network; it must be the full matrix's diagonal (Elmore, as above).
+    n = 6
+    full, diagonal_only = analyze(ladder(n)), analyze(ladder(n), full_matrix_limit=0)
+    elmore = sum((1e-9 / k) * sum(1000.0 * i for i in range(1, k + 1)) for k in range(1, n + 1))
+    assert rel(diagonal_only.b1, elmore) < 1e-12 and diagonal_only.b2 is None
+    for name, r in full.elements.items():
+        assert rel(diagonal_only.elements[name].resistance, r.resistance) < 1e-12
+
+
 # Emitter follower: R_μ0 = (R_S + r_b)‖(r_π + (1 + β)R_E) and
 # R_π0 = r_π‖[(R_S + r_b + R_E)/(1 + g_m R_E)], β = g_m r_π (Gray, Hurst, Lewis, Meyer,
 # as above; from memory, and re-derived from the node equations in writing this test).
