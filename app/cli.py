@@ -341,14 +341,17 @@ def _spread(args) -> int:
     if args.json:
         print(json.dumps(_versioned("bandsketch-spread", summary), indent=1, ensure_ascii=False))
         return EXIT_OK
-    from bandsketch.engine.core.values import format_value
+    from bandsketch.engine.core.values import format_gain, format_value
 
     print(f"{summary['samples']} samples, seed {summary['seed']}, {summary['seconds']:.2f} s")
-    for key, title, unit in (("f_high_hz", "f_H", "Hz"), ("f_low_hz", "f_L", "Hz"), ("gain_magnitude", "|A_m|", summary["gain_unit"])):
+    gain_unit = summary["gain_unit"]
+    for key, title, write in (("f_high_hz", "f_H", lambda x: format_value(x, "Hz")),
+                              ("f_low_hz", "f_L", lambda x: format_value(x, "Hz")),
+                              ("gain_magnitude", "|A_m|", lambda x: format_gain(x, gain_unit))):
         st = summary[key]
         if st and "median" in st:
-            print(f"  {title:6s} median {format_value(st['median'], unit):>10s}   "
-                  f"0.135 %..99.865 %: {format_value(st['p0.135'], unit)} .. {format_value(st['p99.865'], unit)}")
+            print(f"  {title:6s} median {write(st['median']):>10s}   "
+                  f"0.135 %..99.865 %: {write(st['p0.135'])} .. {write(st['p99.865'])}")
     for key, value in summary["yield"].items():
         print(f"  yield {key:10s} {100 * value:5.1f} %")
     return EXIT_OK

@@ -26,19 +26,28 @@ _EMPTY_PATH = re.compile(r'<path[^>]*\sd=""\s*/>')
 _SCALED_GROUP = re.compile(r'(<g\b[^>]*?)\stransform="matrix\(([^)]*)\)"([^>]*>)(.*?)(</g>)', re.S)
 _ELEMENT = re.compile(r"<(\w+)\b[^>]*>")
 _POINTS = re.compile(r'\s(d|points)="([^"]*)"')
+_FONT_FAMILY = re.compile(r'font-family="([^"]*)"')
 _PAIR = re.compile(r"(-?[\d.]+(?:e[-+]?\d+)?),(-?[\d.]+(?:e[-+]?\d+)?)")
 
 
 def plain_qt_svg(text: str, width: int, height: int) -> str:
     """What Qt's SVG generator wrote, with a root browsers and librsvg size alike: SVG 1.1 with
     pixel ``width`` and ``height`` and the matching viewBox (Qt writes millimetres and declares
-    SVG Tiny 1.2), and without the empty paths Qt writes for an empty stroke (path data an SVG
-    reader must treat as an error)."""
+    SVG Tiny 1.2), without the empty paths Qt writes for an empty stroke (path data an SVG
+    reader must treat as an error), with curves' transforms baked into their points and a
+    generic family behind Qt's font names."""
     _head, _sep, rest = text.partition("<svg")
     _tag, close, body = rest.partition(">")
     root = (f' xmlns="http://www.w3.org/2000/svg" xmlns:xlink="http://www.w3.org/1999/xlink" version="1.1" '
             f'width="{width}" height="{height}" viewBox="0 0 {width} {height}"')
-    return "<svg" + root + close + _bake_non_scaling(_EMPTY_PATH.sub("", body))
+    return "<svg" + root + close + _generic_font(_bake_non_scaling(_EMPTY_PATH.sub("", body)))
+
+
+def _generic_font(body: str) -> str:
+    """Qt names the font as Qt knows it ("Sans Serif"), which no browser does, so a browser fell
+    back to a serif face; the CSS generic family after it keeps the text sans-serif."""
+    return _FONT_FAMILY.sub(lambda m: m.group(0) if "sans-serif" in m.group(1)
+                            else f'font-family="{m.group(1)}, sans-serif"', body)
 
 
 def _bake_non_scaling(body: str) -> str:

@@ -33,7 +33,7 @@ from bandsketch.engine.advise.timetargets import rise_time_sensitivities
 from bandsketch.engine.design.schema import target_problem
 from bandsketch.engine.advise.targets import TARGET_LABELS, check_targets, parse_targets
 from bandsketch.engine.present.plotdata import bode_data
-from bandsketch.engine.core.values import format_signed, format_value
+from bandsketch.engine.core.values import format_gain, format_signed, format_value
 
 from .. import edits
 
@@ -450,7 +450,7 @@ class AdvisorPanel(QWidget):
                 f"{first.knob.series}: {format_value(first.lower, first.knob.unit)} … {format_value(first.upper, first.knob.unit)}"
             now = ", ".join(format_value(abs(c.knob.nominal), c.knob.unit) for c in s.changes)
             cells = (s.label, now, between, _hz(e.f_high), _hz(e.f_low),
-                     format_value(abs(e.gain), unit) if math.isfinite(e.gain) else "—",
+                     format_gain(abs(e.gain), unit) if math.isfinite(e.gain) else "—",
                      ", ".join(d.text for d in e.devices) or "—",
                      f"{100 * s.spread.fraction:.0f} %" if s.spread else "—", verdict_line(e))
             for col, text in enumerate(cells):

@@ -18,7 +18,7 @@ from . import eseries
 from ..solve.analysis import analyze
 from ..core.errors import BadValueError, Cancelled, CircuitError
 from ..design.netlist import design_to_circuit
-from ..core.values import format_value, parse_value
+from ..core.values import format_gain, format_value, parse_value
 from .knobs import Knob, knobs
 from .targetcheck import TargetCheck
 from .timetargets import TIME_TARGETS, check_time_targets, parse_time_target, time_figure
@@ -270,11 +270,11 @@ def _frequency_checks(targets: Targets, analysis, gain_unit: str) -> tuple:
             margin = min(_db(g) - _db(targets.gain_min), _db(targets.gain_max) - _db(g))
         else:
             margin = -math.inf
-        wanted = f"{format_value(targets.gain, gain_unit)} {targets.gain_window_text}"
+        wanted = f"{format_gain(targets.gain, gain_unit)} {targets.gain_window_text}"
         target_text = f"|A_m| = {wanted}"
         if g > 0:
             word = "inside the window by" if passed else "outside the window by"
-            text = f"|A_m| = {format_value(g, gain_unit)} against {wanted}: {word} {abs(margin):.2f} dB"
+            text = f"|A_m| = {format_gain(g, gain_unit)} against {wanted}: {word} {abs(margin):.2f} dB"
         else:
             text = f"|A_m| = 0: no signal reaches the output; {target_text} failed"
         out.append(TargetCheck("gain", target_text, g, g, passed, margin, passed, text))
@@ -296,9 +296,9 @@ def _no_band_checks(targets: Targets, analysis, gain_unit: str, short_db: float)
                                f"{why}; {text} failed"))
     if targets.gain is not None:
         g = abs(float(analysis.midband_gain)) * 10 ** (-short_db / 20)
-        text = f"|A_m| = {format_value(targets.gain, gain_unit)} {targets.gain_window_text}"
+        text = f"|A_m| = {format_gain(targets.gain, gain_unit)} {targets.gain_window_text}"
         out.append(TargetCheck("gain", text, g, g, False, -short_db, False,
-                               f"{why}; the stage peaks at {format_value(g, gain_unit)}; {text} failed"))
+                               f"{why}; the stage peaks at {format_gain(g, gain_unit)}; {text} failed"))
     return tuple(out)
 
 

@@ -36,7 +36,7 @@ from ..design.sourcing import tolerance_fraction
 from .biasbatch import DEVICE_PARAMETERS, BiasBatch
 from .partvalues import PartValue, coefficients_for, parametric_system, part_values
 from .targets import Targets, parse_targets
-from ..core.values import format_value
+from ..core.values import format_gain, format_value
 
 _SRC_COMMON = "common practice, no source"
 DEFAULT_TOLERANCES = MappingProxyType({
@@ -484,8 +484,8 @@ def _target_lines(targets: Targets | None, figure: str, gain_unit: str) -> tuple
     if figure == "f_low" and targets.f_low_max is not None:
         return ((targets.f_low_max, f"f_L ≤ {format_value(targets.f_low_max, 'Hz')}"),)
     if figure == "gain" and targets.gain is not None:
-        return ((targets.gain_min, f"|A_m| ≥ {format_value(targets.gain_min, gain_unit)}"),
-                (targets.gain_max, f"|A_m| ≤ {format_value(targets.gain_max, gain_unit)}"))
+        return ((targets.gain_min, f"|A_m| ≥ {format_gain(targets.gain_min, gain_unit)}"),
+                (targets.gain_max, f"|A_m| ≤ {format_gain(targets.gain_max, gain_unit)}"))
     return ()
 
 

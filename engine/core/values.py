@@ -332,6 +332,10 @@ def format_gain(gain: float, gain_unit: str, digits: int = 3) -> str:
         Significant figures (a count, dimensionless).
     """
     if gain_unit == "V/V" and 1e-3 <= abs(gain) < 1e6:
+        if abs(gain) >= 10 ** digits:
+            # "1230 V/V", not the "1.23e+03 V/V" the g format would write.
+            gain = round(gain, digits - 1 - math.floor(math.log10(abs(gain))))
+            return f"{gain:.0f} V/V".replace("-", MINUS)
         return f"{gain:.{digits}g} V/V".replace("-", MINUS)
     return format_value(gain, gain_unit, digits)
 

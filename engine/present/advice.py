@@ -12,7 +12,7 @@ import math
 from ..advise.search import search
 from ..advise.suggest import YIELD_SAMPLES, suggest, verdict_line
 from ..advise.targets import parse_targets
-from ..core.values import format_value
+from ..core.values import format_gain, format_value
 
 
 def advise_design(doc, only=None, samples: int = YIELD_SAMPLES) -> tuple:
@@ -123,7 +123,7 @@ def advice_table(advice, found=None, title: str = "") -> str:
     unit = advice.before.gain_unit
     lines = [f"Advice for {title}" if title else "Advice",
              f"now: f_H {_hz(advice.before.f_high)}, f_L {_hz(advice.before.f_low)}, "
-             f"|A_m| {format_value(abs(advice.before.gain), unit)}; {verdict_line(advice.before)}", ""]
+             f"|A_m| {format_gain(abs(advice.before.gain), unit)}; {verdict_line(advice.before)}", ""]
     if advice.before.meets_all:
         lines.append("Every target is met; nothing to suggest.")
     head = f"{'change':24s} {'exact lies between':24s} {'f_H':>10s} {'f_L':>10s} {'|A_m|':>10s} {'yield':>7s}  verdict"
@@ -136,7 +136,7 @@ def advice_table(advice, found=None, title: str = "") -> str:
         y = f"{100 * s.spread.fraction:.0f} %" if s.spread else ""
         e = s.effect
         lines.append(f"{s.label:24s} {near:24s} {_hz(e.f_high):>10s} {_hz(e.f_low):>10s} "
-                     f"{format_value(abs(e.gain), unit):>10s} {y:>7s}  {verdict_line(e)}")
+                     f"{format_gain(abs(e.gain), unit):>10s} {y:>7s}  {verdict_line(e)}")
     for key in advice.unmet:
         lines.append(f"No single knob in reach meets the {key} target.")
     notes = {s.spread.note for s in advice.suggestions if s.spread and s.spread.note}

@@ -38,7 +38,7 @@ from ..advise.sensitivity import FIGURE_TITLES, sensitivities
 from ..advise.suggest import suggest, verdict_line
 from ..advise.targets import check_targets, parse_targets
 from ..advise.tolerance import spread_of_design
-from ..core.values import MINUS, db_unit, error_text, format_signed, format_value
+from ..core.values import MINUS, db_unit, error_text, format_gain, format_signed, format_value
 from .biasdata import BIAS_HEADINGS, bias_rows
 
 CAUTION = ("These are design estimates from a linear small-signal model. Confirm them by full "
@@ -138,7 +138,8 @@ def _table(head, rows, numeric=()) -> str:
 def _fmt(value, unit="", digits=3) -> str:
     if value is None or (isinstance(value, float) and math.isnan(value)):
         return "—"
-    return format_value(value, unit, digits)
+    # A gain in its unit reads as the verdict writes it: a plain ratio, or ohms for V/A.
+    return format_gain(value, unit, digits) if unit in ("V/V", "V/A") else format_value(value, unit, digits)
 
 
 def _signed(x) -> str:

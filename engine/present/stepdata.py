@@ -13,7 +13,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from ..core.values import format_value
+from ..core.values import format_gain, format_value
 
 _PREFIXES = ((1e-12, "ps"), (1e-9, "ns"), (1e-6, "µs"), (1e-3, "ms"), (1.0, "s"))
 PULSE_SAG_SHOWN = 0.1
@@ -154,7 +154,7 @@ def step_data(step) -> StepData:
                     first_order=None if step.y_first_order is None else step.y_first_order / final,
                     second_order=None if step.y_second_order is None else step.y_second_order / final,
                     markers=tuple(markers), summary=summary,
-                    final_text=format_value(final, "Ω" if step.gain_unit == "V/A" else "V/V"), warnings=step.warnings,
+                    final_text=format_gain(final, step.gain_unit), warnings=step.warnings,
                     scale=scale)
 
 

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import csv
 
-from ..core.values import error_text, format_value
+from ..core.values import error_text, format_gain, format_value
 from ..solve.analysisjson import json_number
 
 ESTIMATE_KEYS = {"first order": "first_order", "second order": "second_order", "from f_H": "from_bandwidth"}
@@ -84,7 +84,7 @@ def format_time_table(step, pulse=None) -> str:
     step : bandsketch.engine.solve.step.StepResponse
     pulse : bandsketch.engine.solve.step.PulseResponse, optional
     """
-    lines = [f"Step response ({step.method}; final value {format_value(step.final_value, step.gain_unit)}, "
+    lines = [f"Step response ({step.method}; final value {format_gain(step.final_value, step.gain_unit)}, "
              f"window {format_value(float(step.t[-1]), 's')})"]
     figures = list(step.figures) + (list(pulse.figures) if pulse is not None else [])
     for f in figures:

@@ -12,7 +12,7 @@ import math
 
 from ..core.band import Band
 from ..core.colours import LIGHT
-from ..core.values import db_unit, error_text, format_value
+from ..core.values import db_unit, error_text, format_gain, format_value
 from .mna import SHORT
 
 BAR_PX = 120
@@ -34,8 +34,7 @@ def _corner(sym: str, exact, estimate) -> str:
 
 
 def _gain(a) -> str:
-    unit = "Ω" if a.gain_unit == "V/A" else a.gain_unit
-    return f"A_m {format_value(a.midband_gain, unit)} ({20 * math.log10(abs(a.midband_gain)):.1f} {db_unit(a.gain_unit)})"
+    return f"A_m {format_gain(a.midband_gain, a.gain_unit)} ({20 * math.log10(abs(a.midband_gain)):.1f} {db_unit(a.gain_unit)})"
 
 
 def analysis_repr(a) -> str:

@@ -155,7 +155,7 @@ class StepResponse:
             return "none" if x is None else format_value(x, "s")
 
         est = f" (est. {t(self.rise_time_estimate)})" if self.rise_time_estimate is not None else ""
-        return (f"<StepResponse {self.method}: final {format_value(self.final_value, self.gain_unit)}, "
+        return (f"<StepResponse {self.method}: final {format_gain(self.final_value, self.gain_unit)}, "
                 f"t_r {t(self.rise_time)}{est}, overshoot {100 * self.overshoot:.1f} %, "
                 f"settling {t(self.settling_time)}, {self.t.size} samples>")
 

@@ -312,3 +312,26 @@ def test_squared_units_take_an_exponent_not_a_prefix():
     # section 3: "1 cm³ = (10⁻² m)³"), so b2 in s² must not read "47.7 fs²".
     assert format_value(4.77e-14, "s²") == "4.77e-14 s²"
     assert format_value(2.5e-9, "s") == "2.5 ns"
+
+
+@pytest.mark.parametrize("gain, unit, text", [
+    (0.8966, "V/V", "0.897 V/V"), (-107.4, "V/V", "\u2212107 V/V"), (1234.5, "V/V", "1230 V/V"),
+    (-98765.0, "V/V", "\u221298800 V/V"), (-1e5, "V/A", "\u2212100 kΩ")])
+def test_a_gain_reads_as_a_plain_ratio_or_in_ohms(gain, unit, text):
+    # A voltage gain is a ratio (no milli or kilo on V/V, and no exponent either); V/A is Ω
+    # (SI brochure, BIPM 2019: the ohm is the volt per ampere).
+    from bandsketch.engine.core.values import format_gain
+    assert format_gain(gain, unit) == text
+
+
+def test_the_follower_samples_figures_read_as_plain_ratios():
+    # Its |A_m| is 0.897: the targets, the step's final value and the advice say "0.897 V/V",
+    # never "897 mV/V" (common practice, no source).
+    from bandsketch.engine import analyze, design_to_circuit, load_sample
+    from bandsketch.engine.advise.targets import check_targets, parse_targets
+    from bandsketch.engine.present.stepdata import step_data
+    doc = load_sample("follower_cable_driver")
+    a = analyze(design_to_circuit(doc))
+    texts = [c.text for c in check_targets(parse_targets(doc.targets), a)]
+    texts.append(step_data(a.step_response()).final_text)
+    assert all("mV/V" not in t for t in texts) and any("0.897 V/V" in t for t in texts)
