@@ -23,6 +23,8 @@ import json
 import os
 import sys
 
+FIGURES = ("bode", "bars", "step", "sheet")
+"""What ``bandsketch figure --what`` draws (:func:`bandsketch.app.figures.figure_svg`)."""
 SUBCOMMANDS = ("samples", "analyze", "step", "report", "figure", "spread", "advise")
 EXIT_OK, EXIT_FAILED, EXIT_BAD_INPUT = 0, 1, 2
 EXIT_CODES = {EXIT_OK: "done", EXIT_FAILED: "the work failed (an output could not be written)",
@@ -221,8 +223,7 @@ def _figure_parser() -> argparse.ArgumentParser:
                                 description="Save one picture of a design: the Bode plot, the time-constant bars, the "
                                             "step response or the sheet, as SVG (browsers and librsvg draw it) or PNG.")
     _design_argument(p)
-    p.add_argument("--what", required=True, choices=("bode", "bars", "step", "sheet"),
-                   help="which picture")
+    p.add_argument("--what", required=True, choices=FIGURES, help="which picture")
     p.add_argument("-o", "--output", required=True, type=_figure_path, metavar="FILE.svg|FILE.png",
                    help="where to write it; .svg writes SVG, .png a PNG")
     size = p.add_mutually_exclusive_group()

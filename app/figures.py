@@ -15,8 +15,6 @@ from PySide6.QtCore import QByteArray, QRectF, Qt
 from PySide6.QtGui import QImage, QPainter
 from PySide6.QtSvg import QSvgRenderer
 
-FIGURES = ("bode", "bars", "step", "sheet")
-"""What ``bandsketch figure --what`` draws."""
 DEFAULT_DPI = 192
 """A PNG's resolution unless one is chosen: twice a screen's 96 dpi."""
 CSS_DPI = 96
@@ -118,7 +116,7 @@ def write_picture(svg: str, path: str, dpi: float = DEFAULT_DPI, width_px: int |
 
 
 def figure_svg(doc, what: str) -> str:
-    """The figure ``what`` (one of :data:`FIGURES`) of the design ``doc`` as SVG text."""
+    """The figure ``what`` (one of :data:`bandsketch.app.cli.FIGURES`) of the design ``doc`` as SVG text."""
     if what == "sheet":
         from .canvas.sheet_picture import sheet_svg
 

@@ -918,12 +918,15 @@ def estimate(stage: Stage, bands: Classification, full_matrix_limit: int = FULL_
     """
     high, low = bands.members(stage, Band.HIGH), bands.members(stage, Band.LOW)
     full = len(high) <= full_matrix_limit
-    # Without the whole matrix, the high band's entries are those the band rounds already found
-    # in this same network.
-    known = None if full else _port_diagonal_at(stage, bands.states, bands.mid, bands.mid_lu)
-    index = {el.name: i for i, el in enumerate(stage.reactive)}
+    diagonal = None
+    if not full:
+        # Without the whole matrix, the high band's entries are those the band rounds already
+        # found in this same network.
+        at = {el.name: i for i, el in enumerate(stage.reactive)}
+        known = _port_diagonal_at(stage, bands.states, bands.mid, bands.mid_lu)
+        diagonal = known[[at[el.name] for el in high]]
     oc = open_circuit(bands.mid_lu, port_columns(bands.mid, high), port_weights(high), full=full,
-                      diagonal=None if known is None else known[[index[el.name] for el in high]])
+                      diagonal=diagonal)
     sc, low_port_of = _low_band(stage.circuit, low, bands.states)
     f_high = 1 / (2 * math.pi * oc.b1) if oc.b1 > 0 else None
     f_high_2nd = second_order_corner(oc.b1, oc.b2) if high and oc.b2 is not None else None

@@ -117,6 +117,20 @@ def common_source(coupling=False):
     return c
 
 
+def capacitive_node(rs=1e3, ci=100e-9, rg=1e6, cg=2e-9):
+    """Invented "sensor coupling": a source through R_sig and a coupling capacitor C_in into a
+    node held by R_G and a capacitance C_g to ground, output at that node. Between the bands
+    C_in and C_g share the charge, so the exact gain tops out below the resistive A_m."""
+    c = Circuit("sensor coupling into a capacitive node (invented)")
+    c.vsource("V", "s", "0")
+    c.resistor("Rsig", "s", "a", rs)
+    c.capacitor("Cin", "a", "g", ci)
+    c.resistor("RG", "g", "0", rg)
+    c.capacitor("Cg", "g", "0", cg)
+    c.output("g")
+    return c
+
+
 def ladder(n=4, r=1000.0, cap=1e-9):
     """Invented "sensor cable model": an unbranched RC ladder, output at the far end."""
     c = Circuit("sensor cable model (invented)")

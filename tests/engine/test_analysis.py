@@ -11,7 +11,7 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from bandstages import common_emitter
+from bandstages import capacitive_node, common_emitter
 from bandsketch.engine import Circuit, CircuitError, analyze
 from bandsketch.engine.solve.mna import OPEN, build_system
 from bandsketch.engine.present.plotdata import bode_data, write_response_csv
@@ -207,14 +207,7 @@ def test_a_mid_band_that_never_reaches_a_m_is_said_with_its_shortfall():
     # k·s/(a2·s² + a1·s + 1), whose top is k/a1 (common practice, no source), short of the
     # resistive A_m = R_G/(R_G + R_sig) by the charge the two capacitors share.
     rs, ci, rg, cg = 1e3, 100e-9, 1e6, 2e-9
-    c = Circuit("sensor coupling into a capacitive node (invented)")
-    c.vsource("V", "s", "0")
-    c.resistor("Rsig", "s", "a", rs)
-    c.capacitor("Cin", "a", "g", ci)
-    c.resistor("RG", "g", "0", rg)
-    c.capacitor("Cg", "g", "0", cg)
-    c.output("g")
-    a = analyze(c)
+    a = analyze(capacitive_node(rs, ci, rg, cg))
     top = ci * rg / (ci * rg + rs * ci + rg * cg)
     short = 20 * math.log10((rg / (rg + rs)) / top)
     assert a.midband_gain == pytest.approx(rg / (rg + rs))

@@ -7,39 +7,19 @@ Anal. 10(2), 1973), which finds every root and is what the engine uses up to its
 
 from __future__ import annotations
 
+import sys
+from pathlib import Path
+
 import numpy as np
 import pytest
 
+from bandstages import ladder
 from bandsketch.engine import Circuit, analyze
 from bandsketch.engine.solve import response
 from bandsketch.engine.solve.analysisjson import analysis_to_dict
 
-
-def _mesh(rows: int, cols: int) -> Circuit:
-    # An invented sensor-array model: a resistive grid with a capacitor at every node.
-    c = Circuit("sensor grid (invented)")
-    c.vsource("Vsig", "sig", "0")
-    c.resistor("Rs", "sig", "m0_0", 100)
-    for i in range(rows):
-        for j in range(cols):
-            c.capacitor(f"C{i}_{j}", f"m{i}_{j}", "0", 1e-12 * (1 + (i + 2 * j) % 5))
-            if j + 1 < cols:
-                c.resistor(f"Rh{i}_{j}", f"m{i}_{j}", f"m{i}_{j + 1}", 1000)
-            if i + 1 < rows:
-                c.resistor(f"Rv{i}_{j}", f"m{i}_{j}", f"m{i + 1}_{j}", 1500)
-    c.resistor("Rload", f"m{rows - 1}_{cols - 1}", "0", 1e6)
-    c.output(f"m{rows - 1}_{cols - 1}")
-    return c
-
-
-def _ladder(n: int) -> Circuit:
-    c = Circuit("cable model ladder (invented)")
-    c.vsource("Vsig", "n0", "0")
-    for k in range(1, n + 1):
-        c.resistor(f"R{k}", f"n{k - 1}", f"n{k}", 10.0)
-        c.capacitor(f"C{k}", f"n{k}", "0", 1e-12)
-    c.output(f"n{n}")
-    return c
+sys.path.insert(0, str(Path(__file__).resolve().parents[1] / "benchmarks"))
+import bench_timeconstants  # noqa: E402  (its invented sensor-array mesh, 25 × 28 nodes at 700)
 
 
 def _all_roots(system):
@@ -51,7 +31,7 @@ def _all_roots(system):
 
 @pytest.fixture(scope="module")
 def mesh_analysis():
-    a = analyze(_mesh(25, 28))
+    a = analyze(bench_timeconstants.mesh(700))
     assert a._system.size > response.ROOT_LIMIT
     return a
 
@@ -74,7 +54,7 @@ def test_an_all_pole_ladder_has_no_finite_zeros_even_beside_its_nilpotent_block(
     # for an RC ladder only at s = ∞ (common practice; e.g. E. A. Guillemin, Synthesis of
     # Passive Networks, 1957). Arnoldi on its bordered pencil sees the rounding of those
     # infinite roots, which must not come out as zeros.
-    a = analyze(_ladder(700))
+    a = analyze(ladder(700))
     assert a.zeros.size == 0
     poles, _ = _all_roots(a._system)
     assert np.allclose(np.sort(a.poles.real)[::-1], np.sort(poles.real)[::-1][:a.poles.size], rtol=1e-8)
@@ -83,7 +63,7 @@ def test_an_all_pole_ladder_has_no_finite_zeros_even_beside_its_nilpotent_block(
 def test_the_analysis_json_says_which_roots_it_lists(mesh_analysis):
     data = analysis_to_dict(mesh_analysis)
     assert data["roots_note"] == mesh_analysis.roots_note and len(data["poles"]) == mesh_analysis.poles.size
-    small = analysis_to_dict(analyze(_ladder(5)))
+    small = analysis_to_dict(analyze(ladder(5)))
     assert small["roots_note"] == "" and len(small["poles"]) == 5
 
 

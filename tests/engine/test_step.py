@@ -14,6 +14,7 @@ import scipy.signal
 from hypothesis import given
 from hypothesis import strategies as st
 
+from bandstages import capacitive_node
 from bandsketch.engine import Circuit, CircuitError, analyze, load_design
 from bandsketch.engine.design.netlist import design_to_circuit
 from bandsketch.engine.solve.step import StepResponse, pair_step
@@ -148,15 +149,7 @@ def test_a_step_that_levels_off_short_of_the_mid_band_gain_says_where_and_why():
     # level it states is held to scipy.signal's step of the same H(s), written by hand:
     # H = s·C_in·R_G / (R_sig·C_in·R_G·C_g·s² + (C_in·R_G + R_sig·C_in + R_G·C_g)·s + 1).
     rs, ci, rg, cg = 1e3, 100e-9, 1e6, 2e-9
-    c = Circuit("sensor coupling into a capacitive node (invented)")
-    c.vsource("V", "s", "0")
-    c.resistor("Rsig", "s", "a", rs)
-    c.capacitor("Cin", "a", "g", ci)
-    c.resistor("RG", "g", "0", rg)
-    c.capacitor("Cg", "g", "0", cg)
-    c.output("g")
-    a = analyze(c)
-    step = a.step_response()
+    step = analyze(capacitive_node(rs, ci, rg, cg)).step_response()
     assert step.settling_time is None
     den = [rs * ci * rg * cg, ci * rg + rs * ci + rg * cg, 1.0]
     _, y = scipy.signal.step(([ci * rg, 0.0], den), T=step.t)
