@@ -8,6 +8,7 @@ import scipy.sparse as sp
 import scipy.sparse.linalg as spla
 
 from ..core.errors import CircuitError
+from .sparselu import sparse_lu
 
 DENSE_LIMIT = 60
 """Up to this many unknowns a batched dense solve beats a sparse LU per frequency."""
@@ -67,7 +68,7 @@ def frequency_response(system, freqs_hz) -> np.ndarray:
         for i, wi in enumerate(w):
             A = sp.csc_matrix(G + 1j * wi * C)
             try:
-                lu = spla.splu(A)
+                lu = sparse_lu(A)
             except RuntimeError:
                 raise CircuitError(f"The network equations are singular at {f[i]:g} Hz.") from None
             x = lu.solve(rhs)
@@ -134,9 +135,9 @@ def nearest_eigenvalues(K, E, shifts, k: int = NEAREST_ROOTS) -> np.ndarray:
     found = []
     for sigma in shifts:
         try:
-            lu = spla.splu((K + sigma * E).tocsc())
+            lu = sparse_lu(K + sigma * E)
         except RuntimeError:  # σ is a root itself: look a hair beside it
-            lu = spla.splu((K + sigma * (1 + 1e-6) * E).tocsc())
+            lu = sparse_lu(K + sigma * (1 + 1e-6) * E)
         T = spla.LinearOperator((n, n), matvec=lambda x, lu=lu: lu.solve(E @ x), dtype=float)
         want = min(k, n - 2)
         try:
@@ -168,7 +169,7 @@ def _is_root(K, E, s: complex) -> bool:
     sizes = []
     for at in (s, s * (1 + _NEAR_ROOT)):
         try:
-            sizes.append(np.linalg.norm(spla.splu((K + at * E).tocsc()).solve(r.astype(complex))))
+            sizes.append(np.linalg.norm(sparse_lu(K + at * E).solve(r.astype(complex))))
         except RuntimeError:  # exactly singular: a root
             return at == s
     return bool(np.isfinite(sizes[0]) and sizes[0] > _ROOT_GROWTH * sizes[1])

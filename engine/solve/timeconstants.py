@@ -17,11 +17,11 @@ import numpy as np
 import scipy.linalg as la
 from scipy.linalg import lapack
 import scipy.sparse as sp
-import scipy.sparse.linalg as spla
 
 from ..network.elements import Capacitor, Inductor
 from ..core.errors import CircuitError
 from .response import is_dense
+from .sparselu import sparse_lu
 
 FULL_MATRIX_LIMIT = 1000
 """Up to this many ports the whole port matrix is formed (b2, exact time constants);
@@ -111,7 +111,7 @@ class _SparseLU:
     """SuperLU's factors, with the element type they solve in."""
 
     def __init__(self, A):
-        self._lu = spla.splu(sp.csc_matrix(A))
+        self._lu = sparse_lu(A)
         self.dtype = np.result_type(A.dtype, float)
 
     def solve(self, rhs, trans="N"):

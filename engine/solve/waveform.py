@@ -14,10 +14,9 @@ from functools import lru_cache
 
 import numpy as np
 import scipy.linalg as la
-import scipy.sparse as sp
-import scipy.sparse.linalg as spla
 
 from ..core.errors import CircuitError
+from .sparselu import sparse_lu
 
 MODAL_LIMIT = 80
 """Up to this many unknowns the step response comes from the poles and residues."""
@@ -47,7 +46,7 @@ def dc_gain(system) -> tuple[float, np.ndarray]:
     system : bandsketch.engine.solve.mna.MnaSystem
     """
     try:
-        x = spla.splu(sp.csc_matrix(system.G)).solve(system.b.astype(float))
+        x = sparse_lu(system.G).solve(system.b.astype(float))
     except RuntimeError:
         raise CircuitError("The network has no d.c. solution (a node held only by capacitors or current "
                            "sources): its step response is not defined. Add a resistance to ground.") from None
@@ -168,7 +167,7 @@ class _Stepper:
         for a, coeff, real in self.roots if factor else ():
             A = (-h * G - a * C).tocsc()
             try:
-                lu = spla.splu(A)
+                lu = sparse_lu(A)
             except RuntimeError:
                 raise CircuitError("The network equations are singular for the time step: check for "
                                    "ideal elements that fix the same voltage or current twice.") from None
