@@ -20,8 +20,8 @@ import numpy as np
 from ..core.band import Band
 from .bands import (IN_BAND_DB, NEUTRAL_DB, BandTest, GroupTest, band_tests, fixed_elements, group_tests,
                     parallel_capacitance, parallel_groups)
-from .corners import (brackets, corners_around, first_span, midband_guess, points_per_decade, refine_peak,
-                      second_order_corner, wide_sweep)
+from .corners import (brackets, corners_around, first_span, midband_between, midband_guess, points_per_decade,
+                      refine_peak, second_order_corner, wide_sweep)
 from ..network.elements import Capacitor, Inductor, ISource, VSource
 from ..core.errors import CircuitError
 from .dcop import OperatingPoint, solved
@@ -602,21 +602,6 @@ def _check_pins(bands, reactive_names) -> dict[str, Band]:
     return pins
 
 
-def _next_midband(low_bracket, high_bracket, current, f):
-    """√(f_L·f_H), with each corner taken as the geometric middle of its sweep bracket."""
-    f_low = math.sqrt(low_bracket[0] * low_bracket[1]) if low_bracket else None
-    f_high = math.sqrt(high_bracket[0] * high_bracket[1]) if high_bracket else None
-    if f_low and f_high:
-        nxt = math.sqrt(f_low * f_high)
-    elif f_high:
-        nxt = f_high / 100  # no low band: the mid band reaches down to d.c.
-    elif f_low:
-        nxt = f_low * 100
-    else:
-        nxt = current
-    return min(max(nxt, f[0]), f[-1])
-
-
 def _low_band(c, low, states):
     """Short-circuit constants of the low band, from one LU.
 
@@ -893,7 +878,12 @@ def classify(stage: Stage) -> Classification:
             break
         previous = chosen, placed
         low_bracket, high_bracket = brackets(freqs, H, f_m, abs(gain) / math.sqrt(2))
-        f_m = _next_midband(low_bracket, high_bracket, f_m, freqs)
+        f_next = midband_between(low_bracket, high_bracket, f_m, freqs)
+        if f_next == f_m:
+            # The next round would test at this same frequency and find the same.
+            settled = True
+            break
+        f_m = f_next
     inconclusive = [el for el in stage.reactive if isinstance(el, Capacitor) and chosen[el.name] == Band.NEUTRAL
                     and el.name not in stage.fixed and el.name not in stage.pins]
     groups = tuple(group_tests(stage.circuit, stage.system, inconclusive, f_m))

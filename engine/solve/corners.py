@@ -138,10 +138,12 @@ def refine_peak(system, f: np.ndarray, H: np.ndarray, near: float) -> float:
 
 
 def midband_guess(system, f: np.ndarray, H: np.ndarray) -> float:
-    """Hz: the geometric centre of the stretch around the peak where |H| stays within 3 dB of it.
+    """Hz: the mid band :func:`midband_between` gives for corners 3 dB below the sweep's peak.
 
-    When no other sweep sample lies within 3 dB of the peak (a band narrower than the sweep's
-    spacing), the exact peak (:func:`refine_peak`) is the mid band.
+    It is the rule each band-test round applies with |A_m| in place of the peak, so where
+    the two levels fall between the same sweep samples the first round is already settled.
+    When no other sweep sample lies within 3 dB of the peak (a band narrower than the
+    sweep's spacing), the exact peak (:func:`refine_peak`) is the mid band.
 
     Parameters
     ----------
@@ -154,15 +156,41 @@ def midband_guess(system, f: np.ndarray, H: np.ndarray) -> float:
     mag = np.abs(H)
     top = int(np.argmax(mag))
     level = mag[top] / math.sqrt(2)
-    lo = top
-    while lo > 0 and mag[lo - 1] >= level:
-        lo -= 1
-    hi = top
-    while hi < len(mag) - 1 and mag[hi + 1] >= level:
-        hi += 1
-    if lo == hi:
+    near = (top > 0 and mag[top - 1] >= level) or (top < len(mag) - 1 and mag[top + 1] >= level)
+    if not near:
         return refine_peak(system, f, H, float(f[top]))
-    return math.sqrt(f[lo] * f[hi])
+    return midband_between(*brackets(f, H, float(f[top]), level), float(f[top]), f)
+
+
+def midband_between(low_bracket, high_bracket, current: float, f: np.ndarray) -> float:
+    """Hz: √(f_L·f_H), each corner taken as the geometric middle of its sweep bracket.
+
+    Parameters
+    ----------
+    low_bracket, high_bracket : (float, float) or None
+        Hz, from :func:`brackets`.
+    current : float
+        Hz, the mid band so far: kept when neither side has a corner.
+    f : numpy.ndarray
+        Sweep frequencies, Hz, rising: the result stays within them.
+
+    Returns
+    -------
+    float
+        Hz. Without a lower corner the mid band reaches down to d.c. and is taken two
+        decades below f_H; without an upper one, two decades above f_L.
+    """
+    f_low = math.sqrt(low_bracket[0] * low_bracket[1]) if low_bracket else None
+    f_high = math.sqrt(high_bracket[0] * high_bracket[1]) if high_bracket else None
+    if f_low and f_high:
+        nxt = math.sqrt(f_low * f_high)
+    elif f_high:
+        nxt = f_high / 100
+    elif f_low:
+        nxt = f_low * 100
+    else:
+        nxt = current
+    return min(max(nxt, f[0]), f[-1])
 
 
 def brackets(f: np.ndarray, H: np.ndarray, f_mid: float, level: float):

@@ -163,3 +163,24 @@ def test_a_state_that_raises_the_gain_does_not_decide():
     assert "raises the gain" in cb.reason and "but it is shorted at mid band" in cb.reason
     assert any(w.startswith("Opening CB raises the gain") for w in a.warnings)
     assert a.f_high_exact / 10 < a.f_high_estimate < a.f_high_exact
+
+
+# The first mid-band guess follows the rule every round applies (√(f_L·f_H) from the sweep's
+# brackets), so a stage whose bands hold at once is tested once, and the answer is the one
+# a confirming round would give (common practice, no source).
+def test_a_round_that_would_repeat_itself_is_not_run(monkeypatch):
+    import bandsketch.engine.solve.analysis as analysis
+
+    calls = []
+    real = analysis.band_tests
+
+    def counted(system, reactive, f_test, fixed):
+        calls.append(f_test)
+        return real(system, reactive, f_test, fixed)
+
+    monkeypatch.setattr(analysis, "band_tests", counted)
+    a = analyze(common_emitter(coupling=True))
+    assert calls == [a.midband_frequency]
+    confirmed = real(a._system, [el for el in common_emitter(coupling=True).elements.values()
+                                 if el.name in a.capacitors], a.midband_frequency, {})
+    assert {n: t.band for n, t in confirmed.items()} == {n: r.band for n, r in a.capacitors.items()}
