@@ -2,6 +2,9 @@
 
 from __future__ import annotations
 
+import os
+from concurrent.futures import ThreadPoolExecutor
+
 import numpy as np
 import scipy.linalg as la
 import scipy.sparse as sp
@@ -12,6 +15,8 @@ from .sparselu import sparse_lu
 
 DENSE_LIMIT = 60
 """Up to this many unknowns a batched dense solve beats a sparse LU per frequency."""
+THREADED_SIZE = 2000
+"""From this many unknowns a sparse sweep factorises its frequencies on every core at once."""
 _CHUNK_BYTES = 64 * 1024 * 1024
 _FINITE_RATIO = 1e-9
 """An eigenvalue whose |β| is below this fraction of |α| (after frequency scaling) is infinite."""
@@ -26,6 +31,11 @@ def is_dense(system) -> bool:
         Its size is compared with :data:`DENSE_LIMIT`, read when called.
     """
     return system.size <= DENSE_LIMIT
+
+
+def _cores() -> int:
+    """Cores this process may run on."""
+    return len(os.sched_getaffinity(0)) if hasattr(os, "sched_getaffinity") else os.cpu_count() or 1
 
 
 def frequency_response(system, freqs_hz) -> np.ndarray:
@@ -65,8 +75,9 @@ def frequency_response(system, freqs_hz) -> np.ndarray:
     else:
         G, C = system.G.tocsc().astype(complex), system.C.tocsc().astype(complex)
         rhs = system.b.astype(complex)
-        for i, wi in enumerate(w):
-            A = sp.csc_matrix(G + 1j * wi * C)
+
+        def at(i):
+            A = sp.csc_matrix(G + 1j * w[i] * C)
             try:
                 lu = sparse_lu(A)
             except RuntimeError:
@@ -75,7 +86,16 @@ def frequency_response(system, freqs_hz) -> np.ndarray:
             # One step of iterative refinement: SuperLU's threshold pivoting can lose a few
             # digits more than the dense solve on ill-conditioned networks; this wins them back.
             x += lu.solve(rhs - A @ x)
-            out[i] = system.c @ x
+            return system.c @ x
+
+        workers = min(w.size, _cores()) if n >= THREADED_SIZE else 1
+        if workers > 1:
+            # SuperLU lets go of the interpreter while it factorises, so the frequencies
+            # share the cores.
+            with ThreadPoolExecutor(workers) as pool:
+                out[:] = list(pool.map(at, range(w.size)))
+        else:
+            out[:] = [at(i) for i in range(w.size)]
     return out
 
 

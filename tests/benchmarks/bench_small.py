@@ -10,8 +10,9 @@ left them), and the floor then times only numpy and LAPACK on them:
 - the bias: as many Newton steps as the engine took, each the devices' model equations
   (the engine's own vectorised functions) and one dense solve of the DC equations;
 - the exact sweep: one batched solve of (G + jωC)x = b at every frequency the analysis swept;
-- the band test: two rounds (a test and the one that confirms it), each one complex
-  solve with the input and every port together and one transposed solve for the output;
+- the band test: as many rounds as the engine took (one where the first mid-band guess
+  holds, two where a second round had to confirm a moved one), each one complex solve with
+  the input and every port together and one transposed solve for the output;
 - the neutral elements' resistances and the mid-band gain: one real solve with the input and every port;
 - the open-circuit constants: Z = Uᵀ G⁻¹ U, b1, b2 and the eigenvalues of D·Z;
 - the short-circuit constants: Z_L, its inverse and its eigenvalues;
@@ -48,17 +49,23 @@ def _best(fn, repeat):
 
 def _floor_inputs(doc):
     """The matrices the floor works on, from one analysis of ``doc``."""
+    import bandsketch.engine.solve.analysis as analysis
     from bandsketch.engine.core.band import Band
     from bandsketch.engine.design.netlist import design_to_circuit
     from bandsketch.engine.network.elements import Capacitor
-    from bandsketch.engine.solve.analysis import analyze
     from bandsketch.engine.solve.dcop import DcEquations
     from bandsketch.engine.solve.mna import OPEN, build_system
     from bandsketch.engine.solve.timeconstants import port_columns, port_weights
 
     c = design_to_circuit(doc)
     dc = DcEquations(c) if c.large_blocks else None
-    a = analyze(c)
+    rounds = []  # the band-test rounds the engine ran, for the floor to run as many
+    band_tests = analysis.band_tests
+    analysis.band_tests = lambda *args: rounds.append(args) or band_tests(*args)
+    try:
+        a = analysis.analyze(c)
+    finally:
+        analysis.band_tests = band_tests
     full = a._system
     reactive = [el for el in c.elements.values() if el.name in a.elements]
     states = a.midband_states()
@@ -74,7 +81,7 @@ def _floor_inputs(doc):
         Uh=port_columns(mid, high, dense=True), Dh=port_weights(high),
         Gl=np.array(low_net.dense_G), Ul=port_columns(low_net, low, dense=True), Dl=port_weights(low),
         dc=dc, steps=a.operating_point.iterations if a.operating_point else 0,
-        corners=sum(x is not None for x in (a.f_low_exact, a.f_high_exact)), circuit=c)
+        corners=sum(x is not None for x in (a.f_low_exact, a.f_high_exact)), rounds=len(rounds), circuit=c)
 
 
 def _floor(m):
@@ -97,7 +104,7 @@ def _floor(m):
     w = 2 * np.pi * m["f"]
     A = G[None] + 1j * w[:, None, None] * C[None]
     (np.linalg.solve(A, np.broadcast_to(b, (w.size, b.size))[..., None])[..., 0] @ c)
-    for _ in range(2):
+    for _ in range(m["rounds"]):
         Am = G + 2j * np.pi * m["f_m"] * C
         X = np.linalg.solve(Am, np.column_stack((b, m["U"])))
         np.linalg.solve(Am.T, c)
