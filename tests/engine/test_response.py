@@ -13,6 +13,7 @@ from bandsketch.engine.solve import response
 from bandsketch.engine.solve.response import frequency_response, poles, zeros
 from bandsketch.engine.network.validate import validate
 from bandsketch.engine.core.values import SMALLEST
+from bandsketch.engine.core.errors import CircuitError
 
 
 def _rc(r=4700.0, c=22e-9):
@@ -83,6 +84,28 @@ def test_sparse_path_matches_dense_path(monkeypatch):
     h_big = frequency_response(big, [1e3])
     ref = np.linalg.solve(big.G.toarray() + 2j * np.pi * 1e3 * big.C.toarray(), big.b) @ big.c
     assert h_big[0] == pytest.approx(ref, rel=1e-9)
+
+
+def test_threaded_sweep_matches_one_thread(monkeypatch):
+    # Large sparse sweeps share the frequencies among the cores: the same numbers, in
+    # order, as one thread, and a singular frequency still names itself (common practice,
+    # no source).
+    system = _ladder(120)
+    f = np.logspace(2, 7, 17)
+    monkeypatch.setattr(response, "THREADED_SIZE", 10**9)
+    one = frequency_response(system, f)
+    monkeypatch.setattr(response, "THREADED_SIZE", 0)
+    monkeypatch.setattr(response, "_cores", lambda: 2)
+    np.testing.assert_array_equal(frequency_response(system, f), one)
+    c = Circuit("two sources fight")
+    c.vsource("V1", "a", "0")
+    c.vsource("V2", "a", "0")
+    c.capacitor("C1", "a", "0", 1e-9)
+    c.output("a")
+    stiff = build_system(c)
+    monkeypatch.setattr(response, "DENSE_LIMIT", 0)
+    with pytest.raises(CircuitError, match="singular at"):
+        frequency_response(stiff, [1.0, 10.0, 100.0])
 
 
 def test_poles_and_zeros_of_a_purely_resistive_network_are_empty():
