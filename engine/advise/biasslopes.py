@@ -68,7 +68,7 @@ def bias_slopes(circuit, names) -> BiasSlopes | None:
     x = unknowns(eqs, point)
     xe = np.append(x, 0.0)
     volts = eqs.devices.raw(xe)
-    _, J, _ = eqs.devices.stamp(volts, eqs.n + 1)
+    J, _ = eqs.devices.linearised(volts, eqs.n + 1)
     A = eqs.G + J[:-1, :-1]
     dc = {el.name for el in circuit.dc_elements()}
     values = [n for n in names if n in dc and n in circuit.elements]

@@ -256,18 +256,33 @@ class _Devices:
                 ogs + np.clip(vgs - ogs, -step_gs, step_gs), ods + np.clip(vds - ods, -step_ds, step_ds),
                 obs + np.clip(vbs - obs, -step_gs, step_gs))
 
-    def stamp(self, volts, size):
-        """At device voltages ``volts``: the currents leaving each node into the devices, their
-        Jacobian J in node voltages, and the constant i_eq of the linearisation f ≈ i_eq + J·x.
-        A leading axis of samples in ``volts`` gives one of each per sample."""
+    def currents(self, volts, size):
+        """At device voltages ``volts``: the current leaving each node into the devices (A).
+        A leading axis of samples in ``volts`` gives one row per sample."""
+        vbe, vbc, vgs, vds, vbs = volts
+        parts = []
+        if self.bjt_names:
+            ic, ib, *_ = bjt_currents(vbe, vbc, self.isat, self.beta, self.beta_r, self.va, self.vt)
+            s = self.bs
+            # Terminal currents into the device: s·I_C at the collector, s·I_B at the base.
+            parts += [s * ic, s * ib, -s * (ic + ib)]
+        if self.mos_names:
+            i_d = mos_current(vgs, vds, vbs, self.vth, self.kp, self.lam, self.gamma, self.phi)[0]
+            parts += [self.msign * i_d, -self.msign * i_d]
+        if not parts:
+            return np.zeros(np.shape(vbe)[:-1] + (size,))
+        return np.concatenate(parts, axis=-1) @ self._to_nodes
+
+    def linearised(self, volts, size):
+        """At device voltages ``volts``: the Jacobian J of the device currents in node
+        voltages (S) and the constant i_eq (A) of the linearisation f ≈ i_eq + J·x. A leading
+        axis of samples in ``volts`` gives one of each per sample."""
         vbe, vbc, vgs, vds, vbs = volts
         batch = np.shape(vbe)[:-1]
-        currents, constants, entries = [], [], []
+        constants, entries = [], []
         if self.bjt_names:
             ic, ib, c_be, c_bc, b_be, b_bc = bjt_currents(vbe, vbc, self.isat, self.beta, self.beta_r, self.va, self.vt)
             s = self.bs
-            # Terminal currents into the device: s·I_C at the collector, s·I_B at the base.
-            currents += [s * ic, s * ib, -s * (ic + ib)]
             eq_c = s * (ic - c_be * vbe - c_bc * vbc)
             eq_b = s * (ib - b_be * vbe - b_bc * vbc)
             constants += [eq_c, eq_b, -(eq_c + eq_b)]
@@ -277,19 +292,16 @@ class _Devices:
             entries.append(np.stack([d for d_be, d_bc in per_row for d in (d_be + d_bc, -d_be, -d_bc)], axis=-1))
         if self.mos_names:
             i_d, gm, gds, gmb, _ = mos_current(vgs, vds, vbs, self.vth, self.kp, self.lam, self.gamma, self.phi)
-            m = self.msign
-            currents += [m * i_d, -m * i_d]
-            eq_d = m * (i_d - gm * vgs - gds * vds - gmb * vbs)
+            eq_d = self.msign * (i_d - gm * vgs - gds * vds - gmb * vbs)
             constants += [eq_d, -eq_d]
             # Per device: rows drain, source; columns gate, drain, bulk, source.
             entries.append(np.stack([k * v for k in (1.0, -1.0) for v in (gm, gds, gmb, -(gm + gds + gmb))], axis=-1))
-        if not currents:
-            return np.zeros(batch + (size,)), np.zeros(batch + (size, size)), np.zeros(batch + (size,))
-        f = np.concatenate(currents, axis=-1) @ self._to_nodes
+        if not constants:
+            return np.zeros(batch + (size, size)), np.zeros(batch + (size,))
         i_eq = np.concatenate(constants, axis=-1) @ self._to_nodes
         # Entries come device by device, each device's in the order _scatter lists its pairs.
         J = _device_major(entries, batch) @ self._to_matrix
-        return f, J.reshape(batch + (size, size)), i_eq
+        return J.reshape(batch + (size, size)), i_eq
 
 
 def _device_major(entries, batch):
@@ -326,7 +338,7 @@ class DcEquations:
     def residual(self, x, scale_b=1.0, gmin=0.0):
         """Each equation's residual and the size of the largest current in it."""
         xe = np.append(x, 0.0)
-        f, _, _ = self.devices.stamp(self.devices.raw(xe), self.n + 1)
+        f = self.devices.currents(self.devices.raw(xe), self.n + 1)
         lin = self.G @ x
         r = lin + f[:-1] - scale_b * self.b
         r[:self.nodes] += gmin * x[:self.nodes]
@@ -346,7 +358,7 @@ class DcEquations:
         for it in range(1, limit + 1):
             xe = np.append(x, 0.0)
             volts = dev.limited(dev.raw(xe), volts) if it > 1 or volts is not None else dev.start()
-            _, J, i_eq = dev.stamp(volts, self.n + 1)
+            J, i_eq = dev.linearised(volts, self.n + 1)
             # The devices linearised about the limited voltages: i_eq + J·x.
             A = self.G + J[:-1, :-1]
             A[np.arange(self.nodes), np.arange(self.nodes)] += gmin
@@ -401,7 +413,7 @@ class DcEquations:
             dev = every.rows(todo)
             xe = np.concatenate([x[todo], np.zeros((todo.size, 1))], axis=1)
             limited = dev.limited(dev.raw(xe), tuple(v[todo] for v in volts))
-            _, J, i_eq = dev.stamp(limited, self.n + 1)
+            J, i_eq = dev.linearised(limited, self.n + 1)
             A = G[todo] + J[:, :-1, :-1]
             try:
                 new = np.linalg.solve(A, (self.b - i_eq[:, :-1])[..., None])[..., 0]
@@ -412,7 +424,7 @@ class DcEquations:
             for v, lv in zip(volts, limited):
                 v[todo] = lv
             xe = np.concatenate([new, np.zeros((todo.size, 1))], axis=1)
-            f, _, _ = dev.stamp(dev.raw(xe), self.n + 1)
+            f = dev.currents(dev.raw(xe), self.n + 1)
             r = np.einsum("mij,mj->mi", G[todo], new) + f[:, :-1] - self.b
             size = np.einsum("mij,mj->mi", np.abs(G[todo]), np.abs(new)) + np.abs(f[:, :-1]) + np.abs(self.b)
             settled = np.all(np.abs(swing) <= SETTLED * (1.0 + np.abs(new)), axis=1) \
