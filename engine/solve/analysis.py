@@ -31,6 +31,7 @@ from .mna import OPEN, SHORT, build_system
 from .response import NEAREST_ROOTS, ROOT_LIMIT, frequency_response, poles, zeros
 from . import notebook, step
 from .analysisjson import analysis_to_dict
+from .waveform import modes
 from .timeconstants import (FULL_MATRIX_LIMIT, conductance, factorize, open_circuit, port_columns, port_diagonal,
                             port_weights, short_circuit)
 from ..network.validate import validate
@@ -369,6 +370,11 @@ class Analysis:
         if t_stop is None and points == 2000 and not options:
             return self._default_step
         return step.step_response(self, t_stop, points, **options)
+
+    @cached_property
+    def _step_modes(self):
+        # The step, the pulse and their figures all read the same poles and residues.
+        return modes(self._system, self.midband_gain)
 
     @cached_property
     def _default_step(self) -> step.StepResponse:

@@ -22,6 +22,8 @@ from typing import Mapping
 import numpy as np
 import scipy.sparse as sp
 
+from .response import is_dense
+from .sparselu import sparse_lu
 from ..network.elements import CCCS, CCVS, VCCS, VCVS, Capacitor, Inductor, ISource, Resistor, VSource
 
 SHORT, OPEN = "short", "open"
@@ -86,6 +88,20 @@ class MnaSystem:
     def dense_C(self) -> np.ndarray:
         """:attr:`C` as a read-only dense array."""
         return _dense(self._c, self.size)
+
+    @cached_property
+    def dc_solution(self) -> np.ndarray | None:
+        """x_∞ = G⁻¹b: the unknowns (V, A) once a unit input has settled; None when G is singular.
+
+        The step's final value, its modes and its integration each start from it.
+        """
+        try:
+            x = (np.linalg.solve(self.dense_G, self.b.astype(float)) if is_dense(self)
+                 else sparse_lu(self.G).solve(self.b.astype(float)))
+        except (np.linalg.LinAlgError, RuntimeError):
+            return None
+        x.flags.writeable = False
+        return x
 
     def incidence(self, a: str, b: str) -> np.ndarray:
         """Vector with +1 at node ``a`` and −1 at node ``b`` (ground rows omitted)."""

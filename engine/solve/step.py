@@ -16,7 +16,7 @@ import numpy as np
 from ..core.errors import CircuitError
 from ..core.values import format_gain, format_value
 from ..core.band import Band
-from .waveform import MODAL_LIMIT, dc_gain, integrated_step, modal_step, modes
+from .waveform import MODAL_LIMIT, dc_gain, integrated_step, modal_step
 
 RISE_FROM, RISE_TO, DELAY_LEVEL = 0.1, 0.9, 0.5
 """The rise time runs from 10 % to 90 % of the final value; the delay to 50 %."""
@@ -328,7 +328,7 @@ def _waveform(analysis, t, method):
         raise ValueError(f"method must be one of {', '.join(METHODS)}, not {method!r}")
     system = analysis._system
     if method != "integrated" and (method == "modal" or system.size <= MODAL_LIMIT):
-        found = modes(system, analysis.midband_gain)
+        found = analysis._step_modes
         if found is not None:
             return modal_step(found, t), "modal", found[0]
     return integrated_step(system, t, _poles_hint(analysis)), "integrated", None

@@ -45,11 +45,10 @@ def dc_gain(system) -> tuple[float, np.ndarray]:
     ----------
     system : bandsketch.engine.solve.mna.MnaSystem
     """
-    try:
-        x = sparse_lu(system.G).solve(system.b.astype(float))
-    except RuntimeError:
+    x = system.dc_solution
+    if x is None:
         raise CircuitError("The network has no d.c. solution (a node held only by capacitors or current "
-                           "sources): its step response is not defined. Add a resistance to ground.") from None
+                           "sources): its step response is not defined. Add a resistance to ground.")
     return float(system.c @ x), x
 
 
@@ -76,7 +75,7 @@ def modes(system, scale: float) -> tuple[np.ndarray, np.ndarray, float] | None:
         A pole in the right half-plane or at the origin: the step response grows without bound.
     """
     h0, _ = dc_gain(system)
-    G, C = system.G.toarray(), system.C.toarray()
+    G, C = np.asarray(system.dense_G), np.asarray(system.dense_C)
     nb = np.abs(C).max(initial=0.0)
     if nb == 0:
         return np.zeros(0, complex), np.zeros(0, complex), h0
