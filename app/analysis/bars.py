@@ -212,7 +212,11 @@ class TimeConstantBars(QWidget):
             p.drawText(self.rect().adjusted(PAD, PAD, -PAD, -PAD), Qt.AlignmentFlag.AlignTop,
                        "No capacitors or inductors to rank yet." if self._data else "")
             return
+        # The bars scroll: of a long list, only the rows in the part being painted are drawn.
+        exposed = QRectF(event.rect())
         for h in self._headings:
+            if not h.rect.intersects(exposed):
+                continue
             top, bottom = h.rect.adjusted(0, 0, 0, -h.rect.height() / 2), h.rect.adjusted(0, h.rect.height() / 2, 0, 0)
             p.setFont(bold)
             p.setPen(c.stale if self._stale else c.band(h.band))
@@ -224,6 +228,8 @@ class TimeConstantBars(QWidget):
                        (Qt.AlignmentFlag.AlignBottom if h.head_on_top else Qt.AlignmentFlag.AlignVCenter)
                        | Qt.AlignmentFlag.AlignRight, h.sens_head)
         for b in self._bars:
+            if not b.rect.adjusted(-2, -2, 2, 2).intersects(exposed):  # with the selection's outline
+                continue
             r = b.row
             colour = QColor(c.stale if self._stale else c.band(r.band))
             if r.name == self._selected:

@@ -233,14 +233,17 @@ class BodePlot(Restyles, QWidget):
         if self._data is None:
             return
         lo, hi = self._data.freq_range
-        ranges = ((self.magnitude, "x", (math.log10(lo), math.log10(hi))),
-                  (self.magnitude, "y", self._data.magnitude_view_db),
-                  (self.phase, "y", self._data.phase_view_deg))
-        for plot, axis, (a, b) in ranges:
-            if self._held:
-                now = plot.getViewBox().viewRange()[0 if axis == "x" else 1]
-                a, b = min(a, now[0]), max(b, now[1])
-            (plot.setXRange if axis == "x" else plot.setYRange)(a, b, padding=0)
+        magnitude, phase = self.magnitude.getViewBox(), self.phase.getViewBox()
+        ranges = {(magnitude, 0): (math.log10(lo), math.log10(hi)),
+                  (magnitude, 1): self._data.magnitude_view_db,
+                  (phase, 1): self._data.phase_view_deg}
+        if self._held:
+            ranges = {(box, axis): (min(a, box.viewRange()[axis][0]), max(b, box.viewRange()[axis][1]))
+                      for (box, axis), (a, b) in ranges.items()}
+        # Both of the magnitude's ranges in one call: each call that changes a range moves
+        # every item over it and lays the corner labels out again.
+        magnitude.setRange(xRange=ranges[magnitude, 0], yRange=ranges[magnitude, 1], padding=0)
+        phase.setRange(yRange=ranges[phase, 1], padding=0)
 
     def hold_range(self, held: bool) -> None:
         """While ``held`` (a value scrub), new responses widen the axes where they must and

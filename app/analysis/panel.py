@@ -387,15 +387,19 @@ class AnalysisPanel(QWidget):
         outcome = self.outcome
         geometry = picture_geometry(outcome.doc, outcome.netlist, outcome.analysis, focus) \
             if focus is not None else None
+        if geometry is None:
+            # Without a picture its label has no place to find: the sheet's outlines (one
+            # per part and wire) are not gathered.
+            self.overlay.show_picture(None)
+            return
         view = self.window.view
         seen = view.mapToScene(view.viewport().rect()).boundingRect()
         self.overlay.show_picture(geometry, self.scene.content_rect(), self.scene.occupied(), seen)
-        if geometry is not None:
-            # No free spot in view: scroll (never zoom) until the label and its ring are.
-            wanted = self.overlay.label_rect().united(self.overlay.glyph_rect())
-            if not seen.contains(wanted):
-                view.ensureVisible(wanted if wanted.width() < seen.width() and wanted.height() < seen.height()
-                                   else self.overlay.label_rect(), 12, 12)
+        # No free spot in view: scroll (never zoom) until the label and its ring are.
+        wanted = self.overlay.label_rect().united(self.overlay.glyph_rect())
+        if not seen.contains(wanted):
+            view.ensureVisible(wanted if wanted.width() < seen.width() and wanted.height() < seen.height()
+                               else self.overlay.label_rect(), 12, 12)
 
     def _list_problems(self, outcome: Outcome) -> None:
         """Put every problem of the sheet in the banner, the one that stops the analysis first."""

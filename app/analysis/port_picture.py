@@ -10,7 +10,7 @@ a gap cut through them, shorted elements and zeroed voltage sources bridged by a
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 from PySide6.QtCore import QLineF, QPointF, QRectF, QSizeF, Qt
 from PySide6.QtGui import QColor, QFont, QFontMetricsF, QPainterPath, QPen
@@ -237,11 +237,13 @@ class PictureOverlay(QGraphicsItem):
         segments, as paths or rectangles. A label set apart from its glyph gets a thin
         leader line.
         """
-        self.prepareGeometryChange()
+        before = self.geometry, self._label_area()
         self.geometry = geometry
-        self.setVisible(geometry is not None)
         if geometry is None:
-            self._bounds = QRectF()
+            if before[0] is not None:
+                self.prepareGeometryChange()
+                self._bounds = QRectF()
+            self.setVisible(False)
             return
         self._fade = QPainterPath()
         for a, b in geometry.faded:
@@ -278,7 +280,24 @@ class PictureOverlay(QGraphicsItem):
         bounds = self._fade.boundingRect().united(self._label).united(self._glyph).united(self._leads.boundingRect())
         if self._leader is not None:
             bounds = bounds.united(QRectF(self._leader.p1(), self._leader.p2()).normalized())
-        self._bounds = bounds.adjusted(-6, -6, 6, 6)
+        bounds = bounds.adjusted(-6, -6, 6, 6)
+        self.setVisible(True)
+        # The picture spans the circuit: an edit that changes only the label's numbers (or
+        # nothing of it) repaints the label, not every part under the veil.
+        if bounds != self._bounds:
+            self.prepareGeometryChange()
+            self._bounds = bounds
+        elif before[0] is None or replace(before[0], lines=()) != replace(geometry, lines=()):
+            self.update()
+        elif before[0].lines != geometry.lines or before[1] != self._label_area():
+            self.update(before[1].united(self._label_area()))
+
+    def _label_area(self) -> QRectF:
+        """What the label and its leader line cover (scene units), their pens included."""
+        area = QRectF(self._label)
+        if self._leader is not None:
+            area = area.united(QRectF(self._leader.p1(), self._leader.p2()).normalized())
+        return area.adjusted(-3, -3, 3, 3)
 
     def boundingRect(self) -> QRectF:
         return self._bounds

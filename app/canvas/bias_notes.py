@@ -67,9 +67,16 @@ class BiasNotes:
             self.scene.addItem(text)
             self._items.append(text)
         for item, (pos, text, warning) in zip(self._items, wanted):
-            item.setText(text + ("  ⚠" if warning else ""))
-            item.setPos(pos)
-            item.setBrush(QBrush(self.theme.problem if warning else self.theme.input))
+            # Each setter repaints its note even when nothing changes, and an edit seldom
+            # moves the bias: only what differs is set.
+            text += "  ⚠" if warning else ""
+            if item.text() != text:
+                item.setText(text)
+            if item.pos() != pos:
+                item.setPos(pos)
+            colour = self.theme.problem if warning else self.theme.input
+            if item.brush().color() != colour:
+                item.setBrush(QBrush(colour))
             item.setToolTip(warning or "")
             item.setVisible(self.visible)
         for item in self._items[len(wanted):]:

@@ -144,6 +144,10 @@ class PartItem(_Lit, QGraphicsItem):
         if not ghost:
             self.setFlag(QGraphicsItem.GraphicsItemFlag.ItemIsSelectable)
             self.setAcceptHoverEvents(True)
+            # Kept as a picture: a part is drawn again only when it changes, not whenever a
+            # label, veil or halo over it does (a scrub repaints the test picture's label
+            # over the parts beneath it at every step).
+            self.setCacheMode(QGraphicsItem.CacheMode.DeviceCoordinateCache)
         self.show(part)
 
     # -- what the item shows ---------------------------------------------------
@@ -189,7 +193,14 @@ class PartItem(_Lit, QGraphicsItem):
         for r in rects:
             outline.addRect(r)
         self._shape = outline
-        self._bounds = outline.boundingRect().adjusted(-HALO_WIDTH, -HALO_WIDTH, HALO_WIDTH, HALO_WIDTH)
+        # A vertical tag writes its name beside itself, outside the outline: the bounds
+        # hold every text, or the part's picture would cut it off.
+        drawn = outline.boundingRect()
+        for text in self._texts:
+            m = nf if text.bold else vf
+            drawn = drawn.united(QRectF(text.origin.x(), text.origin.y() - m.ascent(),
+                                        m.horizontalAdvance(text.text), m.height()))
+        self._bounds = drawn.adjusted(-HALO_WIDTH, -HALO_WIDTH, HALO_WIDTH, HALO_WIDTH)
         self.update()
 
     def _body_path(self) -> QPainterPath:
@@ -241,8 +252,11 @@ class PartItem(_Lit, QGraphicsItem):
 
     def set_accent(self, colour: QColor | None) -> None:
         """Colour the symbol (a band's colour), or None for plain ink."""
-        self._accent = colour
-        self.update()
+        # Every analysis colours every part again; only a part whose colour changed is
+        # repainted, not the whole sheet.
+        if colour != self._accent:
+            self._accent = colour
+            self.update()
 
     def set_problem(self, message: str | None, *, outline: bool = True) -> None:
         """Give the part the engine's message as tooltip, or clear it.
@@ -250,10 +264,12 @@ class PartItem(_Lit, QGraphicsItem):
         ``outline`` rings the part; it is left off when the fault is already marked at its
         pins, so a half-wired sketch is not boxed all over.
         """
-        self._problem = message
-        self._outline = bool(message) and outline
+        outline = bool(message) and outline
         self.setToolTip(message or "")
-        self.update()
+        # Asked of every part after every edit: only a change repaints.
+        if (message, outline) != (self._problem, self._outline):
+            self._problem, self._outline = message, outline
+            self.update()
 
     @property
     def problem(self) -> str | None:

@@ -123,13 +123,16 @@ class SchematicScene(QGraphicsScene):
 
     def refresh_problems(self) -> None:
         """Ask the engine what is wrong with the connections and mark it where it is."""
-        for item in self._problem_marks:
-            self.removeItem(item)
-        self.problems = list(self.reading.drawn().problems)
-        self._problem_marks = [ProblemItem(pt, pr.message, self.theme)
-                               for pr in self.problems for pt in pr.points]
-        for item in self._problem_marks:
-            self.addItem(item)
+        problems = list(self.reading.drawn().problems)
+        # A value edit seldom changes what is wrong: then the rings stay as they are.
+        if problems != self.problems:
+            for item in self._problem_marks:
+                self.removeItem(item)
+            self.problems = problems
+            self._problem_marks = [ProblemItem(pt, pr.message, self.theme)
+                                   for pr in self.problems for pt in pr.points]
+            for item in self._problem_marks:
+                self.addItem(item)
         faults: dict[str, list[str]] = {}
         pointless: set[str] = set()
         for pr in self.problems:

@@ -10,6 +10,7 @@ from __future__ import annotations
 from PySide6.QtCore import QBuffer, QByteArray, QIODevice, QRectF, QSize, Qt
 from PySide6.QtGui import QImage, QPainter
 from PySide6.QtSvg import QSvgGenerator
+from PySide6.QtWidgets import QGraphicsItem
 
 from bandsketch.engine.design.document import Document
 from bandsketch.engine.design.parts import GRID
@@ -33,6 +34,9 @@ def _scene(doc: Document, style: ResistorStyle | None):
         style = resistor_style()
     scene = SchematicScene(doc, LIGHT, style, SheetReading(doc))
     scene.grid_shown = False
+    # A part kept as a picture on screen would reach an SVG as an embedded image.
+    for item in scene.items():
+        item.setCacheMode(QGraphicsItem.CacheMode.NoCache)
     rect = scene.content_rect()
     if rect.isEmpty():
         rect = QRectF(0, 0, 10 * GRID, 5 * GRID)

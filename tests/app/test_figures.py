@@ -16,6 +16,7 @@ from PySide6.QtGui import QColor, QImage, QPainter
 from PySide6.QtSvg import QSvgRenderer
 
 from bandsketch.app.cli import main
+from bandsketch.app.canvas.items import PartItem
 from bandsketch.app.canvas.sheet_picture import sheet_svg
 from bandsketch.engine.design.designfile import load_design
 import librsvg
@@ -141,3 +142,12 @@ def test_the_step_view_exports_plain_svg_too(window, tmp_path):
     text = (tmp_path / "step.svg").read_text(encoding="utf-8")
     # Drawn as lines and text: no axis or marker pasted in as a bitmap, and no NaN coordinates.
     assert "<image" not in text and not re.search(r"[\s,\"(]nan[\s,\")]", text, re.I)
+
+
+def test_the_sheet_exports_as_lines_and_text_though_the_window_caches_its_parts(window):
+    path = SAMPLES / "two_stage_miller.json"
+    window.set_document(load_design(path), str(path))
+    assert all(item.cacheMode() != item.CacheMode.NoCache for item in window.scene.items()
+               if isinstance(item, PartItem))
+    # A cached item reaches Qt's SVG writer as an embedded bitmap (DEVELOPERS.md, known traps).
+    assert "<image" not in sheet_svg(window.doc)
