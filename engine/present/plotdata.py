@@ -44,6 +44,9 @@ VIEW_DEPTH_DB = 60.0
 """How far below the mid-band gain the magnitude axis reaches at most, dB."""
 VIEW_MARGIN_DB = 6.0
 """Room above and below the magnitude curve, dB."""
+VIEW_STEP_DB = 10.0
+"""The magnitude axis ends on a multiple of this (dB), out from its margins: an edit that
+moves the curve by less keeps the axis, and its ticks, where they were."""
 PHASE_STEP_DEG = 45.0
 """The phase axis ends on a multiple of an eighth of a turn."""
 PHASE_MARGIN_DEG = 2.0
@@ -169,13 +172,16 @@ class BodeData:
         """(bottom, top) of the magnitude axis, dB: the exact curve, but no deeper than
         :data:`VIEW_DEPTH_DB` below the mid band, so a deep notch does not flatten the corners.
         Above the mid band, or above a peak, the axis leaves :data:`PEAK_ROOM` of its span
-        (at least :data:`VIEW_MARGIN_DB`) for the corner labels."""
+        (at least :data:`VIEW_MARGIN_DB`) for the corner labels; both ends are then rounded
+        out to :data:`VIEW_STEP_DB`."""
         m = self.exact.magnitude_db
         bottom = max(float(m.min()), self.midband_db - VIEW_DEPTH_DB) - VIEW_MARGIN_DB
         # The corner labels sit just above the -3 dB line, so the room above the curve is a
         # share of the span (it is a share of the plot's height on screen), not a fixed dB.
         highest = self.midband_db if self.peak is None else self.peak[1]
-        return bottom, highest + max(VIEW_MARGIN_DB, PEAK_ROOM * (highest - bottom) / (1 - PEAK_ROOM))
+        top = highest + max(VIEW_MARGIN_DB, PEAK_ROOM * (highest - bottom) / (1 - PEAK_ROOM))
+        step = VIEW_STEP_DB
+        return step * math.floor(bottom / step), step * math.ceil(top / step)
 
     def readout(self, freq_hz: float) -> str:
         """The exact response at the swept point nearest ``freq_hz``, as the hover line reads it.

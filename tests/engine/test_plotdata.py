@@ -183,16 +183,22 @@ def test_hover_readout_reads_the_nearest_swept_point():
 def test_magnitude_view_keeps_the_corners_in_sight():
     d = bode_data(_two_corner())
     bottom, top = d.magnitude_view_db
+    step = plotdata.VIEW_STEP_DB
+    # Both ends on whole steps, so a small edit leaves the axis as it was.
+    assert bottom % step == 0 and top % step == 0
     # Room above the mid band for the corner labels: a share of the span, at least 6 dB.
-    assert top - d.midband_db == pytest.approx(max(6.0, plotdata.PEAK_ROOM * (top - bottom)))
+    assert top - d.midband_db >= max(6.0, plotdata.PEAK_ROOM * (top - step - bottom))
+    assert top - d.midband_db < max(6.0, plotdata.PEAK_ROOM * (top - bottom)) + step
     # The sweep reaches about a decade beyond each corner, some 20 dB down: all of it is in view.
-    assert bottom == pytest.approx(d.exact.magnitude_db.min() - 6.0)
-    assert bottom > d.midband_db - plotdata.VIEW_DEPTH_DB
+    low = d.exact.magnitude_db.min() - 6.0
+    assert low - step < bottom <= low
+    assert bottom > d.midband_db - plotdata.VIEW_DEPTH_DB - step
     # A zero on the swept frequency reads as the floor, a finite number, not −∞, and the
     # view stops VIEW_DEPTH_DB below the mid band.
     notch = bode_data(_two_corner(response=lambda f: np.zeros(len(f))))
     assert np.all(notch.exact.magnitude_db == plotdata.DB_FLOOR)
-    assert notch.magnitude_view_db[0] == pytest.approx(notch.midband_db - plotdata.VIEW_DEPTH_DB - 6.0)
+    deepest = notch.midband_db - plotdata.VIEW_DEPTH_DB - 6.0
+    assert deepest - step < notch.magnitude_view_db[0] <= deepest
 
 
 def test_response_csv_has_every_swept_point_both_magnitudes_and_the_estimates_where_drawn(tmp_path):
@@ -253,7 +259,8 @@ def test_a_peak_above_the_mid_band_stays_in_view_with_the_label_over_it():
     rise = 20 * math.log10(q / math.sqrt(1 - 1 / (4 * q * q)))
     assert d.peak is not None and d.peak[1] - d.midband_db == pytest.approx(rise, abs=0.05)
     bottom, top = d.magnitude_view_db
-    assert top - d.peak[1] == pytest.approx(plotdata.PEAK_ROOM * (top - bottom))
+    assert plotdata.PEAK_ROOM * (top - bottom) - plotdata.VIEW_STEP_DB <= top - d.peak[1] < (
+        plotdata.PEAK_ROOM * (top - bottom) + plotdata.VIEW_STEP_DB)
     by_kind = {(m.corner, m.estimated): m for m in d.markers}
     assert by_kind["high", True].label_db == d.peak[1]
     assert by_kind["high", False].label_db == by_kind["low", True].label_db == d.midband_db - HALF_POWER_DB
