@@ -6,8 +6,9 @@ while runs stay quick (no thread hand-over to wait for), and on a worker thread 
 has taken longer than :data:`THREAD_AFTER_S`. Each request gets a generation number; only
 the newest request's outcome is delivered, and while one run is under way only the newest
 of the requests that arrive meanwhile is kept, so a burst of edits costs at most two runs.
-The exact sensitivities written beside the bars follow the delivered outcomes, always on the
-worker thread (they cost as much again as the analysis), one run at a time, the newest next.
+The exact sensitivities written beside the bars follow the delivered outcomes once the edits
+pause (:data:`SENSE_AFTER_MS`), always on the worker thread (they cost as much again as the
+analysis), one run at a time, the newest next.
 """
 
 from __future__ import annotations
@@ -15,7 +16,7 @@ from __future__ import annotations
 import time
 from dataclasses import dataclass
 
-from PySide6.QtCore import QObject, QThreadPool, Signal
+from PySide6.QtCore import QObject, QThreadPool, QTimer, Signal
 
 from bandsketch.engine.solve.analysis import analyze
 from bandsketch.engine.design.document import Document
@@ -29,6 +30,10 @@ from bandsketch.engine.present.stepdata import PulseData, StepData, time_views
 
 THREAD_AFTER_S = 0.030
 """A run slower than this (seconds) moves the next ones off the UI thread."""
+SENSE_AFTER_MS = 150
+"""The sensitivities wait until no newer outcome has been delivered for this long (ms): during
+a value scrub they would share the interpreter with the views and slow every step, while
+they only matter once the hand rests."""
 
 
 @dataclass(frozen=True)
@@ -189,6 +194,10 @@ class AnalysisRunner(QObject):
         self._relay.sensed.connect(self._on_sensed)
         self._sensing = 0
         self._sense_next: Outcome | None = None
+        self._sense_timer = QTimer(self)
+        self._sense_timer.setSingleShot(True)
+        self._sense_timer.setInterval(SENSE_AFTER_MS)
+        self._sense_timer.timeout.connect(self._sense_newest)
         self._generation = 0
         self._running = False
         self._pending: tuple | None = None
@@ -229,17 +238,20 @@ class AnalysisRunner(QObject):
             self.last = outcome
             self.finished.emit(outcome)
             if outcome.ok:
-                self._sense(outcome)
+                self._sense_next = outcome
+                self._sense_timer.start()
         if self._pending is not None:
             job, self._pending = self._pending, None
             self._start(job)
 
-    def _sense(self, outcome: Outcome) -> None:
-        # One sensitivity run at a time; of the outcomes delivered meanwhile (a value scrub
-        # delivers one per step) only the newest is sensed next, so no queue builds up on the
-        # worker ahead of the next analysis.
-        if self._sensing:
-            self._sense_next = outcome
+    def _sense_newest(self) -> None:
+        # One sensitivity run at a time, of the newest outcome only, so no queue builds up on
+        # the worker ahead of the next analysis.
+        outcome = self._sense_next
+        if self._sensing or outcome is None:
+            return
+        self._sense_next = None
+        if outcome.generation != self._generation:
             return
         self._sensing = 1
         relay, generation = self._relay, outcome.generation
@@ -249,14 +261,13 @@ class AnalysisRunner(QObject):
         self._sensing = 0
         if generation == self._generation:
             self.sensed.emit(result)
-        if self._sense_next is not None:
-            outcome, self._sense_next = self._sense_next, None
-            if outcome.generation == self._generation:
-                self._sense(outcome)
+        if not self._sense_timer.isActive():
+            self._sense_newest()
 
     def shutdown(self) -> None:
         """Drop what is queued and wait for the worker to finish (before the window goes)."""
         self._pending = self._sense_next = None
+        self._sense_timer.stop()
         self.pool.clear()
         self.pool.waitForDone()
         # What the worker finished is still queued for this thread; none of it is awaited now.
@@ -273,7 +284,7 @@ class AnalysisRunner(QObject):
         from PySide6.QtCore import QCoreApplication, QDeadlineTimer
 
         deadline = QDeadlineTimer(timeout_ms)
-        while self._running or self._pending is not None or self._sensing:
+        while self._running or self._pending is not None or self._sensing or self._sense_timer.isActive():
             if deadline.hasExpired():
                 return False
             self.pool.waitForDone(20)

@@ -23,6 +23,26 @@ def _f_high(doc, name, factor):
     return analyze(design_to_circuit(copy), bands=dict(copy.band_pins)).f_high_exact
 
 
+def test_a_scrub_is_sensed_once_when_the_hand_rests(qtbot, window, monkeypatch):
+    # Sensing every step of a scrub would share the interpreter with the views and slow each
+    # step; the newest design is sensed once the edits pause (common practice, no source).
+    window.open_sample("photodiode_tia")
+    panel = window.analysis_panel
+    panel.runner.wait()
+    sensed = []
+    real = runner_module.sensitivities
+    monkeypatch.setattr(runner_module, "sensitivities", lambda c, a: sensed.append(a) or real(c, a))
+    window.scene.select(["Cpd"])
+    panel.runner.wait()
+    sensed.clear()
+    for _ in range(5):
+        window.step_actions[0].trigger()
+    window.scrub.end()
+    panel.runner.wait()
+    assert len(sensed) == 1 and sensed[0] is panel.runner.last.analysis
+    assert panel.bars.sensitivity_text("Cpd") not in ("…", "—")
+
+
 def test_each_bar_shows_the_exact_sensitivity_worked_off_the_ui_thread(qtbot, window, monkeypatch):
     threads = []
     real = runner_module.sensitivities
