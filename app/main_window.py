@@ -3,7 +3,6 @@
 from __future__ import annotations
 
 import json
-import os
 from pathlib import Path
 
 from PySide6.QtCore import QEvent, QMimeData, QPointF, Qt
@@ -54,12 +53,6 @@ class MainWindow(QMainWindow):
     """
 
     def __init__(self, recovery_folder=None, keep_recovery: bool = True):
-        # Qt's raster engine hands every fill of more than about a hundred spans to its GUI
-        # thread pool, which a one-pixel grid line or wire across a view is: a hand-over
-        # per line costs more than the line (measured: the Bode plot's axes re-ticked in
-        # 8.5 ms with the pool, 5.9 ms without). Read when the pool is first wanted, at the
-        # first paint.
-        os.environ.setdefault("QT_NO_GUI_THREADPOOL", "1")
         super().__init__()
         self.doc = Document()
         self.stack = QUndoStack(self)
