@@ -21,12 +21,16 @@ import scipy.sparse as sp
 from ..network.elements import Capacitor, Inductor
 from ..core.errors import CircuitError
 from .response import is_dense
+from .selectedinverse import inverse_entries
 from .sparselu import sparse_lu
 
 FULL_MATRIX_LIMIT = 1000
 """Up to this many ports the whole port matrix is formed (b2, exact time constants);
 beyond it only its diagonal (b1), since the matrix costs N² memory and its eigenvalues N³."""
 _CHUNK_BYTES = 32 * 1024 * 1024
+SELECTED_INVERSE_PORTS = 256
+"""From this many ports a sparse network's port diagonal comes from the selected inverse
+(about one factorisation's work) rather than two triangular solves per port."""
 CUT_OFF = 1e-9
 """An open/short gain ratio below this is rounding of an exact zero (a coupling element)."""
 _SINGULAR = 1e-12
@@ -108,7 +112,8 @@ class _DenseLU:
 
 
 class _SparseLU:
-    """SuperLU's factors, with the element type they solve in."""
+    """SuperLU's factors (:func:`bandsketch.engine.solve.sparselu.sparse_lu`), with the element
+    type they solve in."""
 
     def __init__(self, A):
         self._lu = sparse_lu(A)
@@ -196,14 +201,49 @@ def port_diagonal(lu, U) -> np.ndarray:
     ----------
     lu, U
         As for :func:`port_matrix`.
+
+    Notes
+    -----
+    With SuperLU's factors and at least :data:`SELECTED_INVERSE_PORTS` ports, the entries
+    of A⁻¹ the ports touch come from the selected inverse
+    (:func:`bandsketch.engine.solve.selectedinverse.inverse_entries`, Takahashi's
+    equations): u_jᵀ A⁻¹ u_j is Σ u_aj u_bj (A⁻¹)_ab over the one or two unknowns of port
+    j, so a floating port reads (A⁻¹)_ab and (A⁻¹)_ba beside the two diagonal entries.
+    Otherwise, and in the one case the selected inverse declines (its symbolic step
+    pivoted), A⁻¹U is solved in column blocks, two triangular solves per port.
     """
     if isinstance(U, np.ndarray):
         return np.einsum("ij,ij->j", U, lu.solve(U))
+    if isinstance(lu, _SparseLU) and U.shape[1] >= SELECTED_INVERSE_PORTS:
+        z = _selected_diagonal(lu, sp.csc_matrix(U))
+        if z is not None:
+            return z
     out = np.empty(U.shape[1], dtype=lu.dtype)
     for cols in _column_chunks(U.shape[0], U.shape[1], np.dtype(lu.dtype).itemsize):
         block = U[:, cols]
         X = lu.solve(block.toarray())
         out[cols] = np.asarray(block.multiply(X).sum(axis=0)).ravel()
+    return out
+
+
+def _selected_diagonal(lu: _SparseLU, U: sp.csc_matrix) -> np.ndarray | None:
+    """diag(Uᵀ A⁻¹ U) from the selected inverse, or None where it declines."""
+    U.sum_duplicates()
+    count = np.diff(U.indptr)
+    # Every ordered pair of entries (a, b) within a column, for the term u_a·u_b·(A⁻¹)_ab.
+    col = np.repeat(np.arange(U.shape[1]), count)
+    per_entry = count[col]
+    first = np.repeat(np.arange(len(col)), per_entry)
+    ends = np.cumsum(per_entry)
+    second = U.indptr[col[first]] + np.arange(ends[-1] if len(ends) else 0) - np.repeat(ends - per_entry, per_entry)
+    rows, cols = U.indices[first], U.indices[second]
+    keys, where = np.unique(rows.astype(np.int64) * U.shape[0] + cols, return_inverse=True)
+    entries = inverse_entries(lu._lu, keys // U.shape[0], keys % U.shape[0])
+    if entries is None:
+        return None
+    terms = U.data[first] * U.data[second] * entries[where]
+    out = np.zeros(U.shape[1], dtype=lu.dtype)
+    np.add.at(out, col[first], terms)
     return out
 
 
