@@ -27,8 +27,8 @@ _PIECE = 1 << 16
 """Multiply-adds per BLAS call: OpenBLAS threads a complex matrix product from 2¹⁶ of them
 (a matrix–vector one from 64 × 64), and on a busy machine those threads stall the caller
 for milliseconds; many single-threaded calls cost less."""
-_WIDTH = 32
-"""Columns a supernode may hold: a larger triangular inverse (trtri) is threaded too."""
+_WIDTH = 64
+"""Columns a supernode may hold: OpenBLAS threads a larger triangular inverse (trtri) too."""
 _PADDING = 4
 """Explicit zeros a column may bring into its parent's supernode (or an eighth of the
 front, if more): larger fronts, fewer steps."""
