@@ -250,10 +250,8 @@ class _Fronts:
         for s in range(len(widths) - 1, -1, -1):
             k, f, P = widths[s], sizes[s], parents[s]
             a, b = want[s], want[s + 1]
-            if a == b and remaining[s] == 0:
-                # A leaf no entry is wanted from: no other front needs its own.
-                pass
-            else:
+            # A leaf no entry is wanted from is passed over: no other front needs its own.
+            if a < b or remaining[s]:
                 Lb = self.Lbuf[blocks[s]:blocks[s + 1]].reshape(f, k)
                 Ub = self.Ubuf[blocks[s]:blocks[s + 1]].reshape(k, f)
                 Z = np.empty((f, f), dtype=self.dtype)
