@@ -174,3 +174,14 @@ def test_declined_selected_inverse_falls_back_to_solves(monkeypatch):
     monkeypatch.setattr(timeconstants, "inverse_entries", lambda *args: None)
     selected, solved, dense = _diagonals(monkeypatch, system.G.tocsc(), U)
     _assert_close(selected, dense)
+
+
+def test_ladder_against_its_closed_form(monkeypatch):
+    # With the capacitors open and the source a short, capacitor k of the ladder sees the k
+    # 10-Ω resistors in series back to the source: R_k = 10·k Ω (series resistance,
+    # common practice, no source).
+    c = bench_timeconstants.ladder(2000)
+    system, U = _sparse_system(c, {el.name: OPEN for el in _capacitors(c)})
+    monkeypatch.setattr(timeconstants, "SELECTED_INVERSE_PORTS", 1)
+    z = timeconstants.port_diagonal(timeconstants.factorize(system.G.tocsc(), "under test"), U)
+    np.testing.assert_allclose(z, 10.0 * np.arange(1, 2001), rtol=RTOL)
