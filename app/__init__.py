@@ -7,8 +7,9 @@ Importing it sets two process-wide choices, each only where the user has not set
   first). The application's matrices are small: a product of a few hundred rows by a dozen
   columns was handed to two threads and, with the interface thread and the analysis worker
   already on both cores, took 8 ms instead of 3 µs, often enough to double an edit's time on
-  screen. The one wide job, a large network's sweep, shares its frequencies among the cores
-  itself.
+  screen. The engine's ``analyze`` holds this limit itself while it works
+  (:func:`bandsketch.engine.core.threads.one_blas_thread`); here it also covers what the views
+  derive from an analysis afterwards (the plotted sweep, the sensitivities).
 - Qt's software painter does not hand its fills to a thread pool. It passes every fill of
   more than about a hundred spans to one, which a one-pixel grid line or wire across a view
   is, and the hand-over costs more than the line (measured: the Bode plot's axes re-ticked

@@ -18,6 +18,7 @@ from typing import Mapping
 import numpy as np
 
 from ..core.band import Band
+from ..core.threads import one_blas_thread
 from .bands import (IN_BAND_DB, NEUTRAL_DB, BandTest, GroupTest, band_tests, fixed_elements, group_tests,
                     parallel_capacitance, parallel_groups)
 from .corners import (brackets, corners_around, first_span, midband_between, midband_guess, points_per_decade,
@@ -1060,6 +1061,11 @@ def analyze(c, bands=None, *, per_decade: int | None = None, full_matrix_limit: 
     up to ``full_matrix_limit``; the right-half-plane-zero check is an n³ eigenproblem, done
     up to 250 unknowns. Poles and zeros are otherwise computed only when asked for.
     """
+    with one_blas_thread():
+        return _analyze(c, bands, per_decade, full_matrix_limit)
+
+
+def _analyze(c, bands, per_decade, full_matrix_limit) -> Analysis:
     stage = prepare(c, bands, per_decade)
     classes = classify(stage)
     est = estimate(stage, classes, full_matrix_limit)
