@@ -274,6 +274,9 @@ class PropertiesPanel(QWidget):
     def _rebuild(self) -> None:
         if self._body is not None:
             self._layout.removeWidget(self._body)
+            # Deleted only when the event loop comes round; until then it would be painted
+            # under the new form (the design's fields showing through a part's).
+            self._body.hide()
             self._body.deleteLater()
         self._entries = {}
         self._derived = None

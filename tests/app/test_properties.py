@@ -158,3 +158,21 @@ def test_sourcing_is_edited_in_properties_as_undoable_steps(qtbot, window):
     for expected in (("E96", ""), ("", "")):
         window.stack.undo()
         assert (window.doc.parts[r].sourcing.series, window.doc.parts[r].sourcing.knob) == expected
+
+
+def test_a_new_form_never_shows_the_old_one_through_it(qtbot, window):
+    # The old form is deleted only when the event loop comes round; a paint before that
+    # drew the design's title and notes under a part's fields (common practice, no source).
+    from PySide6.QtCore import QCoreApplication
+    from PySide6.QtWidgets import QLineEdit, QPlainTextEdit
+
+    window.open_sample("ce_hydrophone_preamp")
+    window.analysis_panel.runner.wait()
+    window.scene.select(["CE"])
+    for _ in range(5):
+        QCoreApplication.processEvents()  # the new form is built; the old one awaits deletion
+    fields = window.properties.findChildren(QLineEdit) + window.properties.findChildren(QPlainTextEdit)
+    shown = [w for w in fields if w.isVisibleTo(window.properties)]
+    texts = [w.text() if isinstance(w, QLineEdit) else w.toPlainText() for w in shown]
+    assert "CE" in texts
+    assert not any("hydrophone" in t.lower() for t in texts), texts
