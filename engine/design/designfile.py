@@ -25,7 +25,6 @@ part-way leaves the previous file as it was.
 from __future__ import annotations
 
 import json
-import math
 import os
 import stat
 import tempfile

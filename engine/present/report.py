@@ -28,7 +28,6 @@ import numpy as np
 from ..core.band import Band
 from ..solve.analysis import analyze
 from ..design.netlist import design_to_circuit
-from ..advise.partvalues import part_values
 from .plotdata import bar_data, bode_data, verdict_data
 from .reportfigure import ReportFigure, inline_svg
 from .reportstep import step_section
@@ -38,7 +37,7 @@ from ..advise.sensitivity import FIGURE_TITLES, sensitivities
 from ..advise.suggest import suggest, verdict_line
 from ..advise.targets import check_targets, parse_targets
 from ..advise.tolerance import spread_of_design
-from ..core.values import MINUS, db_unit, error_text, format_gain, format_signed, format_value
+from ..core.values import MINUS, error_text, format_gain, format_signed, format_value
 from .biasdata import BIAS_HEADINGS, bias_rows
 
 CAUTION = ("These are design estimates from a linear small-signal model. Confirm them by full "

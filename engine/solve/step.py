@@ -13,7 +13,6 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from ..core.errors import CircuitError
 from ..core.values import format_gain, format_value
 from ..core.band import Band
 from .waveform import MODAL_LIMIT, dc_gain, integrated_step, modal_step

@@ -18,7 +18,7 @@ import scipy.linalg as la
 from scipy.linalg import lapack
 import scipy.sparse as sp
 
-from ..network.elements import Capacitor, Inductor
+from ..network.elements import Capacitor
 from ..core.errors import CircuitError
 from .response import is_dense
 from .selectedinverse import inverse_entries
