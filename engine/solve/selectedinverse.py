@@ -23,12 +23,11 @@ import scipy.sparse as sp
 import scipy.sparse.linalg as spla
 from scipy.linalg import lapack
 
-_PIECE = 1 << 16
-"""Multiply-adds per BLAS call: OpenBLAS threads a complex matrix product from 2¹⁶ of them
-(a matrix–vector one from 64 × 64), and on a busy machine those threads stall the caller
-for milliseconds; many single-threaded calls cost less."""
 _WIDTH = 64
-"""Columns a supernode may hold: OpenBLAS threads a larger triangular inverse (trtri) too."""
+"""Columns a supernode may hold: the quickest of 32, 64 and 128 on the 10,000-capacitor sensor
+mesh and cable ladder. The steps' products are plain BLAS calls, as
+:func:`bandsketch.engine.solve.analysis.analyze` holds OpenBLAS
+to one thread (threaded, a call this size stalled for milliseconds on a busy machine)."""
 _PADDING = 4
 """Explicit zeros a column may bring into its parent's supernode (or an eighth of the
 front, if more): larger fronts, fewer steps."""
@@ -149,23 +148,6 @@ def _supernodes(parent, count) -> np.ndarray:
     return np.array(first[::-1], dtype=np.int64)
 
 
-def _product(a, b) -> np.ndarray:
-    """a @ b in BLAS calls of fewer than :data:`_PIECE` multiply-adds, none a matrix–vector one."""
-    m, inner = a.shape
-    n = b.shape[1]
-    if m == 1 or n == 1:
-        return np.einsum("ij,jk->ik", a, b)
-    if m * inner * n < _PIECE:
-        return a @ b
-    out = np.empty((m, n), dtype=np.result_type(a.dtype, b.dtype))
-    cols = max(2, min(n, (_PIECE - 1) // (2 * inner)))
-    rows = max(2, (_PIECE - 1) // (inner * cols))
-    for j in range(0, n, cols):
-        for i in range(0, m, rows):
-            out[i:i + rows, j:j + cols] = a[i:i + rows] @ b[:, j:j + cols]
-    return out
-
-
 def _ranges(counts) -> np.ndarray:
     """0, 1, …, c − 1 for every c in ``counts``, end to end."""
     counts = np.asarray(counts, dtype=np.int64)
@@ -259,15 +241,15 @@ class _Fronts:
                     Linv, Uinv = np.ones((1, 1), dtype=self.dtype), 1.0 / Ub[:, :1]
                 else:
                     Linv, Uinv = trtri(Lb[:k], lower=1, unitdiag=1)[0], trtri(Ub[:, :k], lower=0)[0]
-                Z[:k, :k] = _product(Uinv, Linv)
+                Z[:k, :k] = Uinv @ Linv
                 if P >= 0:
                     Zrr = fronts[P][self.rel[s][:, None], self.rel[s]]
-                    Uhat = _product(Uinv, Ub[:, k:])
-                    Zrj = -_product(Zrr, _product(Lb[k:], Linv))
+                    Uhat = Uinv @ Ub[:, k:]
+                    Zrj = -(Zrr @ (Lb[k:] @ Linv))
                     Z[k:, :k] = Zrj
-                    Z[:k, k:] = -_product(Uhat, Zrr)
+                    Z[:k, k:] = -(Uhat @ Zrr)
                     Z[k:, k:] = Zrr
-                    Z[:k, :k] -= _product(Uhat, Zrj)
+                    Z[:k, :k] -= Uhat @ Zrj
                 if a < b:
                     out[order[a:b]] = Z[lp[a:b], lq[a:b]]
                 if remaining[s]:
