@@ -27,6 +27,17 @@ PHASE_MAJOR_DEG = 90
 """Labelled phase ticks: every quarter turn."""
 LABELS_APART_PX = 8
 """Pixels kept between the f_L and f_H labels of one row when both point into the mid band."""
+SPARE_ROOM = {"frequency": 0.5, "magnitude": 20.0, "phase": 90.0}
+"""How much room (decades, dB, degrees) an axis may show beyond each end of a new response
+and still be kept, so that an edit moving the curve a little moves no axis."""
+
+
+def _holds(shown: tuple, wanted: tuple, spare: float) -> bool:
+    """Whether the range ``shown`` holds ``wanted`` with at most ``spare`` beyond either end
+    (the ends compared to a millionth of the span: they come from logarithms)."""
+    slack = 1e-6 * (wanted[1] - wanted[0])
+    return (wanted[0] - spare - slack <= shown[0] <= wanted[0] + slack
+            and wanted[1] - slack <= shown[1] <= wanted[1] + spare + slack)
 
 
 class FrequencyAxis(pg.AxisItem):
@@ -122,8 +133,14 @@ class BodePlot(Restyles, QWidget):
         self.show_response(None)
 
     # -- what is shown --------------------------------------------------------
-    def show_response(self, data: BodeData | None, *, stale: bool = False) -> None:
-        """Draw ``data`` (None: clear); ``stale`` greys a result no longer current."""
+    def show_response(self, data: BodeData | None, *, stale: bool = False, settle: bool = False) -> None:
+        """Draw ``data`` (None: clear); ``stale`` greys a result no longer current.
+
+        With ``settle`` (the next response of the design shown), an axis that holds the new
+        response with no more than :data:`SPARE_ROOM` to spare at either end stays as it is:
+        the curve moves against still axes, which are not re-ticked. Otherwise the axes are
+        fitted to the response.
+        """
         self._data, self._stale = data, stale
         exact_m, exact_p = self.curves["exact"]
         if data is None:
@@ -150,7 +167,7 @@ class BodePlot(Restyles, QWidget):
         self.half_power.setValue(level)
         self.half_power.show()
         if not self._zoomed:
-            self.fit()
+            self._fit(settle)
         self._style()
 
     def show_targets(self, marks) -> None:
@@ -230,20 +247,31 @@ class BodePlot(Restyles, QWidget):
         """Show the whole sweep and the magnitude from the mid band down to the view depth
         (while the range is held, only ever wider)."""
         self._zoomed = False
+        self._fit(settle=False)
+
+    def _fit(self, settle: bool) -> None:
         if self._data is None:
             return
         lo, hi = self._data.freq_range
         magnitude, phase = self.magnitude.getViewBox(), self.phase.getViewBox()
-        ranges = {(magnitude, 0): (math.log10(lo), math.log10(hi)),
-                  (magnitude, 1): self._data.magnitude_view_db,
-                  (phase, 1): self._data.phase_view_deg}
-        if self._held:
-            ranges = {(box, axis): (min(a, box.viewRange()[axis][0]), max(b, box.viewRange()[axis][1]))
-                      for (box, axis), (a, b) in ranges.items()}
+        axes = {"frequency": (magnitude, 0), "magnitude": (magnitude, 1), "phase": (phase, 1)}
+        wanted = {"frequency": (math.log10(lo), math.log10(hi)),
+                  "magnitude": self._data.magnitude_view_db,
+                  "phase": self._data.phase_view_deg}
+        ranges = {}
+        for name, (a, b) in wanted.items():
+            box, axis = axes[name]
+            now_a, now_b = box.viewRange()[axis]
+            if self._held:
+                ranges[name] = (min(a, now_a), max(b, now_b))
+            elif settle and _holds((now_a, now_b), (a, b), SPARE_ROOM[name]):
+                ranges[name] = (now_a, now_b)
+            else:
+                ranges[name] = (a, b)
         # Both of the magnitude's ranges in one call: each call that changes a range moves
         # every item over it and lays the corner labels out again.
-        magnitude.setRange(xRange=ranges[magnitude, 0], yRange=ranges[magnitude, 1], padding=0)
-        phase.setRange(yRange=ranges[phase, 1], padding=0)
+        magnitude.setRange(xRange=ranges["frequency"], yRange=ranges["magnitude"], padding=0)
+        phase.setRange(yRange=ranges["phase"], padding=0)
 
     def hold_range(self, held: bool) -> None:
         """While ``held`` (a value scrub), new responses widen the axes where they must and

@@ -15,6 +15,7 @@ from PySide6.QtWidgets import (QFileDialog, QFormLayout, QHBoxLayout, QLabel, QL
                                QToolButton, QVBoxLayout, QWidget)
 
 from bandsketch.engine.core.band import Band
+from bandsketch.engine.design.document import ChangeKind
 from bandsketch.engine.design.netlist import Problem
 from bandsketch.engine.advise.targets import parse_targets
 from bandsketch.engine.core.errors import BadValueError
@@ -61,6 +62,7 @@ class AnalysisPanel(QWidget):
         self.editor = window.editor
         self.outcome: Outcome | None = None
         self.good: Outcome | None = None
+        self._fit_whole = True
         self.focus: str | None = None
         self._chosen: str | None = None
         self._selecting = False
@@ -164,6 +166,7 @@ class AnalysisPanel(QWidget):
         self.runner.finished.connect(self._show)
         self.runner.sensed.connect(self.bars.show_sensitivities)
         self.doc.edited.connect(self.refresh)
+        self.doc.changed.connect(self._on_change)
         self.scene.selectionChanged.connect(self._follow_selection)
         self.bars.element_clicked.connect(self.select_element)
         self.bars.pin_requested.connect(self.pin_band)
@@ -219,7 +222,8 @@ class AnalysisPanel(QWidget):
         if outcome.ok:
             self.good = outcome
             self.bars.show_bars(outcome.bars)
-            self._show_bode()
+            self._show_bode(settle=not self._fit_whole)
+            self._fit_whole = False
             self.time.show_response(outcome.step, outcome.pulse, problem=outcome.time_problem)
             self._show_time_targets()
             self.verdict.show_verdict(outcome.verdict)
@@ -239,11 +243,19 @@ class AnalysisPanel(QWidget):
             self.bias_notes.show(None)
         self._follow_selection()
 
-    def _show_bode(self) -> None:
-        """Draw the newest good result over the chosen sweep, with the design's targets."""
+    def _on_change(self, change) -> None:
+        if change.what is ChangeKind.RESET:
+            # Another design: its first response is seen whole, its verdict at its own height.
+            self._fit_whole = True
+            self.verdict.release_height()
+
+    def _show_bode(self, settle: bool = False) -> None:
+        """Draw the newest good result over the chosen sweep, with the design's targets
+        (``settle``: on the axes already shown, where it fits them)."""
         outcome = self.good
         spans = self._span(outcome.analysis)
-        self.bode.show_response(outcome.bode if spans is None else bode_data(outcome.analysis, spans))
+        self.bode.show_response(outcome.bode if spans is None else bode_data(outcome.analysis, spans),
+                                settle=settle)
         if self.ghost is not None:
             self.bode.show_before_note(corner_shift(self.ghost, self.bode.data()))
         try:

@@ -19,6 +19,7 @@ class VerdictStrip(Restyles, QFrame):
         self.setFrameShape(QFrame.Shape.StyledPanel)
         self._colours: ViewColours = view_colours()
         self._stale = False
+        self._fresh = True
         # The limiting element leads, large: it is what a designer looks for first; the
         # numbers sit in one row beneath it, and the warnings below them.
         layout = QGridLayout(self)
@@ -61,7 +62,25 @@ class VerdictStrip(Restyles, QFrame):
             self.dominant.setText(data.dominant_text)
             self.warnings.setText("\n".join(f"• {w}" for w in data.warnings))
             self.warnings.setVisible(bool(data.warnings))
+        self._hold_height(fresh=self._fresh)
+        self._fresh = False
         self._style()
+
+    def release_height(self) -> None:
+        """Let the next verdict take its own height (another design is shown)."""
+        self._fresh = True
+
+    def _hold_height(self, fresh: bool) -> None:
+        # While one design is edited the strip only grows: a warning that comes and goes, or a
+        # line that wraps once more, must not move the plots below it at every edit.
+        if self.width() > 0:
+            held = 0 if fresh else self.minimumHeight()
+            self.setMinimumHeight(max(held, self.heightForWidth(self.width())))
+
+    def resizeEvent(self, event):
+        super().resizeEvent(event)
+        if event.size().width() != event.oldSize().width():
+            self._hold_height(fresh=True)  # the lines wrap anew
 
     def _restyle(self) -> None:
         c = self._colours

@@ -215,3 +215,62 @@ def test_right_clicking_a_block_offers_a_menu_per_element(window):
     assert panel.pin_menu_for_part("R1") is None
     own = panel.pin_menu_for_part("CE")
     assert [a.isChecked() for a in own.actions()] == [False, False, True]
+
+
+def _ranges(panel):
+    magnitude, phase = panel.bode.magnitude.getViewBox(), panel.bode.phase.getViewBox()
+    return [tuple(r) for r in (*magnitude.viewRange(), phase.viewRange()[1])]
+
+
+def _wanted(panel):
+    data = panel.bode.data()
+    lo, hi = data.freq_range
+    return [pytest.approx((np.log10(lo), np.log10(hi))), pytest.approx(data.magnitude_view_db),
+            pytest.approx(data.phase_view_deg)]
+
+
+def test_a_small_edit_moves_the_curve_against_still_axes_and_a_new_design_is_fitted(window):
+    # Common practice, no source: axes that jump at every edit hide how far the curve moved.
+    panel = _open(window, Path(__file__).parents[2] / "sample_designs" / "ce_hydrophone_preamp.json")
+    first = _ranges(panel)
+    assert first == _wanted(panel), "a design opened is fitted whole"
+    # Halving the input capacitor moves f_L by under an octave: the plot's quarter-decade
+    # ends move, the axes do not.
+    window.editor.patch(edits.edit_field(window.doc, "Cin", "value", "1u1"), "Edit Cin")
+    panel.runner.wait()
+    assert _ranges(panel) == first
+    assert _ranges(panel) != _wanted(panel), "the fit alone would have moved them"
+    # A change that moves f_L two decades fits the frequency axis to the response again.
+    window.editor.patch(edits.edit_field(window.doc, "Cin", "value", "22n"), "Edit Cin")
+    panel.runner.wait()
+    assert _ranges(panel)[0] == _wanted(panel)[0]
+    assert _ranges(panel)[0] != first[0]
+    # Back to where the curve leaves those axes: fitted again.
+    window.act_undo.trigger()
+    window.act_undo.trigger()
+    panel.runner.wait()
+    assert _ranges(panel) == first
+    # The Fit button fits whatever the axes were.
+    window.editor.patch(edits.edit_field(window.doc, "Cin", "value", "1u1"), "Edit Cin")
+    panel.runner.wait()
+    panel.bode.fit()
+    assert _ranges(panel) == _wanted(panel)
+    # Another design is fitted whole, even where the axes shown would hold it.
+    _open(window, Path(__file__).parents[2] / "sample_designs" / "ce_saturated_divider.json")
+    assert _ranges(panel) == _wanted(panel)
+
+
+def test_the_verdict_keeps_its_height_while_a_design_is_edited(window):
+    panel = _open(window, Path(__file__).parents[2] / "sample_designs" / "cascode_line_receiver.json")
+    tallest = panel.verdict.height()
+    for value in ("470n", "220n", "2u2", "1u"):
+        window.editor.patch(edits.edit_field(window.doc, "Cin", "value", value), "Edit Cin")
+        panel.runner.wait()
+        window.repaint()
+        assert panel.verdict.height() >= tallest, "the strip never shrinks under an edit"
+        tallest = panel.verdict.height()
+    assert panel.verdict.height() >= panel.verdict.heightForWidth(panel.verdict.width())
+    _open(window, Path(__file__).parents[2] / "sample_designs" / "photodiode_tia.json")
+    window.repaint()
+    assert panel.verdict.minimumHeight() == panel.verdict.heightForWidth(panel.verdict.width()), \
+        "another design's verdict takes its own height"
