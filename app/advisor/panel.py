@@ -157,6 +157,7 @@ class AdvisorPanel(QWidget):
         self._latest = self._sens_source = self._sens_shown = None
         self._sens_running = False
         self.tabs.currentChanged.connect(self._refresh_sensitivities)
+        self.tabs.currentChanged.connect(self._spread_plots)
         # The report covers every page, so its button sits by the tabs rather than on one.
         self.report_button = QPushButton("Export report…")
         self.report_button.setToolTip("Write the design report, with the sheet and plots, as HTML or PDF "
@@ -550,18 +551,26 @@ class AdvisorPanel(QWidget):
                                    "its source.")
         self.spread_label.setWordWrap(True)
         v.addWidget(self.spread_label)
-        grid = QGridLayout()
+        # The histograms are made when the page is first shown: three plots cost a tenth of
+        # the window's start-up, and most sessions never open the page.
+        self._spread_grid = QGridLayout()
+        self._spread_page = w
         self.plots = {}
-        for col, (fig, title) in enumerate(_SPREAD_TITLES.items()):
-            plot = pg.PlotWidget()
-            plot.setBackground("w")
-            plot.setTitle(title, color="#1d2430")
-            plot.getAxis("left").setLabel("samples")
-            plot.setMenuEnabled(False)
-            grid.addWidget(plot, 0, col)
-            self.plots[fig] = plot
-        v.addLayout(grid, 1)
+        v.addLayout(self._spread_grid, 1)
         return w
+
+    def _spread_plots(self, *_) -> dict:
+        """The histogram plots, figure -> PlotWidget (made the first time they are needed)."""
+        if not self.plots and (self.tabs.currentWidget() is self._spread_page or self.spread is not None):
+            for col, (fig, title) in enumerate(_SPREAD_TITLES.items()):
+                plot = pg.PlotWidget()
+                plot.setBackground("w")
+                plot.setTitle(title, color="#1d2430")
+                plot.getAxis("left").setLabel("samples")
+                plot.setMenuEnabled(False)
+                self._spread_grid.addWidget(plot, 0, col)
+                self.plots[fig] = plot
+        return self.plots
 
     def run_spread(self) -> None:
         """Start the Monte Carlo on the worker thread."""
@@ -576,7 +585,7 @@ class AdvisorPanel(QWidget):
 
     def _show_spread(self, spread) -> None:
         self.spread = spread
-        for fig, plot in self.plots.items():
+        for fig, plot in self._spread_plots().items():
             plot.clear()
             hist = next((h for h in spread.histograms if h.figure == fig), None)
             if hist is None or hist.edges.size == 0:

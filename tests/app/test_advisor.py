@@ -11,6 +11,8 @@ import pytest
 from bandsketch.engine import analyze
 from bandsketch.engine.design.designfile import load_design
 from bandsketch.engine.design.netlist import design_to_circuit
+import pyqtgraph as pg
+
 from bandsketch.app.advisor.panel import BIAS_COLUMN
 from bandsketch.engine.advise.targets import meets, parse_targets
 
@@ -151,10 +153,13 @@ def test_search_together_meets_or_says_it_cannot(panel):
 def test_spread_runs_and_cancels(panel, qtbot):
     panel.set_target("f_high_min", "150k")
     panel.samples.setValue(3000)
+    assert panel.plots == {}, "the histograms are made when first needed"
     panel.run_spread()
     assert panel.jobs.wait(60000)
     assert panel.spread is not None and panel.spread.samples == 3000
     assert "Yield" in panel.spread_label.text()
+    assert set(panel.plots) == {"f_high", "f_low", "gain"}
+    assert any(isinstance(item, pg.BarGraphItem) for item in panel.plots["f_high"].getPlotItem().items)
     panel.samples.setValue(200000)
     panel.run_spread()
     panel.jobs.cancel.set()
