@@ -177,6 +177,7 @@ class AnalysisPanel(QWidget):
         window.scrub.ended.connect(self._ghost_timer.start)
         self._context = _CanvasMenus(self)
         window.view.viewport().installEventFilter(self._context)
+        self.runner.timed = self.plots.currentWidget() is self.time
         self.refresh()
 
     # -- analysis -------------------------------------------------------------------------
@@ -224,8 +225,9 @@ class AnalysisPanel(QWidget):
             self.bars.show_bars(outcome.bars)
             self._show_bode(settle=not self._fit_whole)
             self._fit_whole = False
-            self.time.show_response(outcome.step, outcome.pulse, problem=outcome.time_problem)
-            self._show_time_targets()
+            if outcome.timed:
+                self.time.show_response(outcome.step, outcome.pulse, problem=outcome.time_problem)
+                self._show_time_targets()
             self.verdict.show_verdict(outcome.verdict)
             self._mark_canvas(outcome)
             self.bias_notes.show(outcome.bias)
@@ -496,6 +498,12 @@ class AnalysisPanel(QWidget):
         super().changeEvent(event)
 
     def _plot_switched(self, *_) -> None:
+        # The step and pulse are worked out while their view is on show, and at once when it
+        # comes on show with a result that has none.
+        self.runner.timed = self.plots.currentWidget() is self.time
+        if self.runner.timed and self.good is not None and not self.good.timed:
+            self.time.set_stale(True)
+            self.refresh()
         self.legend.setText(self.plots.currentWidget().legend_html())
         self.sweep_button.setVisible(self.plots.currentWidget() is self.bode)
         self.pulse_button.setVisible(self.plots.currentWidget() is self.time)

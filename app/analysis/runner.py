@@ -54,9 +54,11 @@ class Outcome:
         The analysis, or None if the design is empty or cannot be analysed.
     bode, bars, verdict : BodeData, BarData, VerdictData or None
         What the views draw.
+    timed : bool
+        Whether the step and pulse were worked out (only while the time view is on show).
     step, pulse : StepData, PulseData or None
-        What the time-domain view draws; None when the stage has no step response (then
-        ``time_problem`` says why).
+        What the time-domain view draws; None when not ``timed``, or when the stage has no
+        step response (then ``time_problem`` says why).
     time_problem : str or None
         Why there is no step response (an unstable network), in words.
     problem : str or None
@@ -79,6 +81,7 @@ class Outcome:
     bode: BodeData | None = None
     bars: BarData | None = None
     verdict: VerdictData | None = None
+    timed: bool = False
     step: StepData | None = None
     pulse: PulseData | None = None
     time_problem: str | None = None
@@ -100,7 +103,7 @@ def _problem_outcome(generation, doc, nets, message, parts=(), points=(), starte
 
 
 def analyse_design(doc: Document, generation: int = 0, drawn: DrawnDesign | None = None,
-                   pulse_width: float | None = None) -> Outcome:
+                   pulse_width: float | None = None, timed: bool = True) -> Outcome:
     """Analyse a design snapshot and prepare what the views draw; never raises.
 
     Parameters
@@ -114,6 +117,8 @@ def analyse_design(doc: Document, generation: int = 0, drawn: DrawnDesign | None
         given); from here on only this run uses the circuit.
     pulse_width : float, optional
         s, the width of the pulse the time view shows; None for the default.
+    timed : bool
+        Whether to work out the step and pulse too.
     """
     started = time.perf_counter()
     if doc.is_empty():
@@ -137,12 +142,13 @@ def analyse_design(doc: Document, generation: int = 0, drawn: DrawnDesign | None
                                 "check the values of the parts you changed last.", started=started)
     step = pulse = time_problem = None
     try:
-        step, pulse = time_views(analysis, pulse_width)
+        if timed:
+            step, pulse = time_views(analysis, pulse_width)
     except CircuitError as exc:
         time_problem = exc.message
     point = analysis.operating_point
     return Outcome(generation, doc, nets, circuit, analysis, bode_data(analysis), bar_data(analysis),
-                   verdict_data(analysis), step, pulse, time_problem, seconds=time.perf_counter() - started,
+                   verdict_data(analysis), timed, step, pulse, time_problem, seconds=time.perf_counter() - started,
                    bias=None if point is None else bias_marks(doc, nets, point))
 
 
@@ -179,6 +185,9 @@ class AnalysisRunner(QObject):
         The outcome announced last, for a view that starts listening late.
     pulse_width : float or None
         s, the pulse the time view shows (None: the default); read by each request.
+    timed : bool
+        Whether each run works out the step and pulse too (the time view sets it while on
+        show: they cost a fifth of a small stage's run); read by each request.
     """
 
     finished = Signal(object)
@@ -205,6 +214,7 @@ class AnalysisRunner(QObject):
         self.last: Outcome | None = None
         self.threaded_runs = 0
         self.pulse_width: float | None = None
+        self.timed = True
 
     @property
     def generation(self) -> int:
@@ -215,21 +225,21 @@ class AnalysisRunner(QObject):
         """Analyse ``doc`` as it is now (``drawn``: its reading, if the sheet made one); a
         newer request supersedes this one."""
         self._generation += 1
-        job = (self._generation, doc.copy(), drawn, self.pulse_width)
+        job = (self._generation, doc.copy(), drawn, self.pulse_width, self.timed)
         if self._running:
             self._pending = job
         else:
             self._start(job)
 
     def _start(self, job) -> None:
-        generation, doc, drawn, width = job
+        generation, doc, drawn, width, timed = job
         if self.last_seconds <= self.thread_after_s:
-            self._on_done(analyse_design(doc, generation, drawn, width))
+            self._on_done(analyse_design(doc, generation, drawn, width, timed))
             return
         self._running = True
         self.threaded_runs += 1
         relay = self._relay
-        self.pool.start(lambda: relay.done.emit(analyse_design(doc, generation, drawn, width)))
+        self.pool.start(lambda: relay.done.emit(analyse_design(doc, generation, drawn, width, timed)))
 
     def _on_done(self, outcome: Outcome) -> None:
         self._running = False

@@ -51,6 +51,11 @@ class VerdictStrip(Restyles, QFrame):
     def show_verdict(self, data: VerdictData | None, *, stale: bool = False) -> None:
         """Show ``data`` (None: nothing analysed yet); ``stale`` greys a result no longer current."""
         self._stale = stale
+        # While one design is edited the strip only grows: a warning that comes and goes, or a
+        # line that wraps once more, must not move the plots below it at every edit. The
+        # height it has is held before the new lines are set (the layout lays them out).
+        self.setMinimumHeight(0 if self._fresh else max(self.minimumHeight(), self.height()))
+        self._fresh = False
         if data is None:
             for label in (self.gain, self.high, self.low, self.dominant, self.warnings):
                 label.setText("")
@@ -62,25 +67,16 @@ class VerdictStrip(Restyles, QFrame):
             self.dominant.setText(data.dominant_text)
             self.warnings.setText("\n".join(f"• {w}" for w in data.warnings))
             self.warnings.setVisible(bool(data.warnings))
-        self._hold_height(fresh=self._fresh)
-        self._fresh = False
         self._style()
 
     def release_height(self) -> None:
         """Let the next verdict take its own height (another design is shown)."""
         self._fresh = True
 
-    def _hold_height(self, fresh: bool) -> None:
-        # While one design is edited the strip only grows: a warning that comes and goes, or a
-        # line that wraps once more, must not move the plots below it at every edit.
-        if self.width() > 0:
-            held = 0 if fresh else self.minimumHeight()
-            self.setMinimumHeight(max(held, self.heightForWidth(self.width())))
-
     def resizeEvent(self, event):
         super().resizeEvent(event)
         if event.size().width() != event.oldSize().width():
-            self._hold_height(fresh=True)  # the lines wrap anew
+            self.setMinimumHeight(0)  # the lines wrap anew; the next verdict holds what they take
 
     def _restyle(self) -> None:
         c = self._colours

@@ -22,6 +22,7 @@ def _open(window, path):
     window.analysis_panel.runner.wait()
     panel = window.analysis_panel
     panel.plots.setCurrentWidget(panel.time)
+    panel.runner.wait()
     return panel
 
 
@@ -120,3 +121,21 @@ def test_the_time_view_exports_its_own_plot_and_waveform(window, tmp_path):
     assert root.tag.endswith("svg")
     panel.export(str(tmp_path / "step.png"))
     assert (tmp_path / "step.png").stat().st_size > 1000
+
+
+def test_the_step_is_worked_out_while_its_view_is_on_show(window):
+    # The Frequency page does not wait for the step and pulse; showing their page brings them.
+    window.set_document(load_design(SAMPLES[0]), str(SAMPLES[0]))
+    panel = window.analysis_panel
+    panel.plots.setCurrentWidget(panel.bode)
+    panel.runner.wait()
+    window.editor.patch(edits.edit_field(window.doc, "Cin", "value", "2u2"), "Edit Cin")
+    panel.runner.wait()
+    assert not panel.good.timed and panel.good.step is None
+    panel.plots.setCurrentWidget(panel.time)
+    panel.runner.wait()
+    assert panel.good.timed and panel.good.step is not None
+    assert panel.good.doc.parts["Cin"].params["value"] == "2u2"
+    drawn_x, drawn_y = panel.time.curves["exact"].getData()
+    exact = panel.good.analysis.step_response()
+    assert np.allclose(drawn_y, exact.y / exact.final_value)
