@@ -54,8 +54,9 @@ class VerdictStrip(Restyles, QFrame):
         # While one design is edited the strip only grows: a warning that comes and goes, or a
         # line that wraps once more, must not move the plots below it at every edit. The
         # height it has is held before the new lines are set (the layout lays them out).
-        self.setMinimumHeight(0 if self._fresh else max(self.minimumHeight(), self.height()))
-        self._fresh = False
+        held = not self._fresh and data is not None and self.isVisible()
+        self.setMinimumHeight(max(self.minimumHeight(), self.height()) if held else 0)
+        self._fresh = data is None
         if data is None:
             for label in (self.gain, self.high, self.low, self.dominant, self.warnings):
                 label.setText("")
@@ -70,7 +71,8 @@ class VerdictStrip(Restyles, QFrame):
         self._style()
 
     def release_height(self) -> None:
-        """Let the next verdict take its own height (another design is shown)."""
+        """Let the next verdict take its own height (another design is shown; an empty sheet
+        does the same)."""
         self._fresh = True
 
     def resizeEvent(self, event):

@@ -12,7 +12,10 @@ accepted only when every node's current sum is within an absolute and a relative
 from __future__ import annotations
 
 import copy
+import hashlib
 import math
+import threading
+from collections import OrderedDict
 from dataclasses import dataclass, field
 from types import MappingProxyType
 from typing import Mapping
@@ -41,6 +44,8 @@ SETTLED = 1e-3
 """A Newton step below this share of the largest unknown (V or A) prompts the current-sum check."""
 GMIN_START = 1e-2
 """First conductance to ground (S) of the conductance ramp."""
+KEPT_SOLUTIONS = 16
+"""DC solutions kept by the exact content of their equations (see :func:`solved`)."""
 
 
 @dataclass(frozen=True)
@@ -335,6 +340,17 @@ class DcEquations:
         self.devices = _Devices(circuit, self.system.node_index, self.n)
         self.names = {i: node for node, i in self.system.node_index.items()}
 
+    def digest(self) -> bytes:
+        """A digest of everything the solution depends on: the linear equations, the
+        excitation, and every device's pins and parameters."""
+        d = self.devices
+        h = hashlib.blake2b(np.array([self.n, self.nodes]).tobytes(), digest_size=32)
+        for a in (self.G, self.b, d.bc, d.bb, d.be, d.bs, d.isat, d.beta, d.beta_r, d.va, d.vt, d.vcrit,
+                  d.md, d.mg, d.ms, d.mb, d.msign, d.vth, d.kp, d.lam, d.gamma, d.phi):
+            h.update(np.ascontiguousarray(a).tobytes())
+            h.update(b"|")
+        return h.digest()
+
     def residual(self, x, scale_b=1.0, gmin=0.0):
         """Each equation's residual and the size of the largest current in it."""
         xe = np.append(x, 0.0)
@@ -466,6 +482,10 @@ def operating_point(circuit) -> OperatingPoint:
 def solved(circuit) -> OperatingPoint:
     """:func:`operating_point` of a circuit already validated (the analysis checks it once).
 
+    The last :data:`KEPT_SOLUTIONS` solutions are kept by a digest of their equations, so a
+    circuit whose DC equations are those of one solved before takes that solution as solving
+    would give it, without the iterations.
+
     Parameters
     ----------
     circuit : bandsketch.engine.network.circuit.Circuit
@@ -474,7 +494,7 @@ def solved(circuit) -> OperatingPoint:
     if circuit.operating_point is not None:
         return circuit.operating_point
     problem = DcEquations(circuit)
-    x, iterations, method = _solve(problem)
+    x, iterations, method = _kept_solve(problem)
     point = _point(circuit, problem, x, iterations, method)
     circuit.install_bias(point, {name: d.small_signal for name, d in point.devices.items()})
     return point
@@ -520,6 +540,31 @@ def _continued(problem, x, volts, ramp):
         if ok:
             x, volts = new_x, new_volts
     return x, volts, total, ramp.done, swing
+
+
+_solutions: OrderedDict = OrderedDict()
+_solutions_lock = threading.Lock()
+
+
+def _kept_solve(problem):
+    """:func:`_solve`, or its answer to the same equations kept from before: an edit that leaves
+    the bias alone (a capacitor's value, a band pin) costs no Newton iterations, and the
+    answer is the one solving again would give, to the last bit."""
+    # The solver's own settings are part of what the answer depends on.
+    key = (problem.digest(), ABS_TOL, REL_TOL, MAX_NEWTON, MAX_HOMOTOPY_STEPS, MOS_STEP, SETTLED, GMIN_START)
+    with _solutions_lock:
+        kept = _solutions.get(key)
+        if kept is not None:
+            _solutions.move_to_end(key)
+    if kept is not None:
+        x, iterations, method = kept
+        return x.copy(), iterations, method
+    x, iterations, method = _solve(problem)
+    with _solutions_lock:
+        _solutions[key] = (x.copy(), iterations, method)
+        while len(_solutions) > KEPT_SOLUTIONS:
+            _solutions.popitem(last=False)
+    return x, iterations, method
 
 
 def _solve(problem):

@@ -262,6 +262,7 @@ def test_a_small_edit_moves_the_curve_against_still_axes_and_a_new_design_is_fit
 
 
 def test_the_verdict_keeps_its_height_while_a_design_is_edited(window):
+    window.resize(1400, 900)  # room for every line the verdict needs
     panel = _open(window, Path(__file__).parents[2] / "sample_designs" / "cascode_line_receiver.json")
     tallest = panel.verdict.height()
     heights = []

@@ -362,3 +362,36 @@ def test_sizes_that_do_not_add_up_are_named():
         with pytest.raises(CircuitError, match=says) as refused:
             c.mosfet("M1", drain="d", gate="g", source="0", vth=0.7, **given)
         assert refused.value.parts == ("M1",) or "M1" in str(refused.value)
+
+
+def _ce_with_cin(value):
+    c = _ce()
+    return c.with_elements({"Cin": type(c.elements["Cin"])("Cin", "in", "b", value)})
+
+
+def test_a_capacitor_edit_takes_the_kept_bias_as_solving_would_give_it(monkeypatch):
+    # Common practice, no source: a DC solution depends on the DC equations alone, so the one
+    # kept for the same equations must be the one solving again gives, to the last bit.
+    monkeypatch.setattr(dcop, "_solutions", dcop.OrderedDict())
+    cold = operating_point(_ce_with_cin(10e-6))
+    solves = []
+    real = dcop._solve
+    monkeypatch.setattr(dcop, "_solve", lambda problem: solves.append(problem) or real(problem))
+    kept = operating_point(_ce_with_cin(22e-6))
+    assert solves == [], "a capacitor is open at DC: nothing to solve again"
+    assert kept.node_voltages == cold.node_voltages and kept.iterations == cold.iterations
+    assert kept.devices["Q1"].ic == cold.devices["Q1"].ic
+    # A resistor is part of the DC equations: solved anew, and the bias moves.
+    moved = operating_point(_ce(re="1k2"))
+    assert len(solves) == 1 and moved.devices["Q1"].ic < cold.devices["Q1"].ic
+    # The solver's settings are part of what is kept: other settings, another solve.
+    monkeypatch.setattr(dcop, "REL_TOL", 1e-10)
+    operating_point(_ce_with_cin(10e-6))
+    assert len(solves) == 2
+
+
+def test_only_the_last_solutions_are_kept(monkeypatch):
+    monkeypatch.setattr(dcop, "_solutions", dcop.OrderedDict())
+    for k in range(dcop.KEPT_SOLUTIONS + 5):
+        operating_point(_ce(rc=f"{4 + 0.1 * k:.1f}k"))
+    assert len(dcop._solutions) == dcop.KEPT_SOLUTIONS
