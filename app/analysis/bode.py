@@ -264,7 +264,9 @@ class BodePlot(Restyles, QWidget):
             now_a, now_b = box.viewRange()[axis]
             if self._held:
                 ranges[name] = (min(a, now_a), max(b, now_b))
-            elif settle and _holds((now_a, now_b), (a, b), SPARE_ROOM[name]):
+            elif settle and _holds((now_a, now_b), (a, b), SPARE_ROOM[name]) and (
+                    name != "magnitude" or now_b >= self._data.magnitude_view_from(now_a)[1]):
+                # (A magnitude axis kept deeper must keep the labels' room above the curve.)
                 ranges[name] = (now_a, now_b)
             else:
                 ranges[name] = (a, b)

@@ -3,12 +3,16 @@ and the warnings; and the banner that says why a circuit as drawn cannot be anal
 
 from __future__ import annotations
 
-from PySide6.QtCore import Qt, Signal
+from PySide6.QtCore import Qt, QTimer, Signal
 from PySide6.QtWidgets import QFrame, QGridLayout, QHBoxLayout, QLabel, QSizePolicy, QToolButton, QVBoxLayout, QWidget
 
 from bandsketch.engine.present.plotdata import VerdictData
 
 from .style import Restyles, ViewColours, view_colours
+
+
+HOLD_MS = 1000
+"""How long (ms) after the last edit the verdict strip keeps a height its lines no longer need."""
 
 
 class VerdictStrip(Restyles, QFrame):
@@ -20,6 +24,10 @@ class VerdictStrip(Restyles, QFrame):
         self._colours: ViewColours = view_colours()
         self._stale = False
         self._fresh = True
+        self._hold = QTimer(self)
+        self._hold.setSingleShot(True)
+        self._hold.setInterval(HOLD_MS)
+        self._hold.timeout.connect(lambda: self.setMinimumHeight(0))
         # The limiting element leads, large: it is what a designer looks for first; the
         # numbers sit in one row beneath it, and the warnings below them.
         layout = QGridLayout(self)
@@ -51,11 +59,14 @@ class VerdictStrip(Restyles, QFrame):
     def show_verdict(self, data: VerdictData | None, *, stale: bool = False) -> None:
         """Show ``data`` (None: nothing analysed yet); ``stale`` greys a result no longer current."""
         self._stale = stale
-        # While one design is edited the strip only grows: a warning that comes and goes, or a
-        # line that wraps once more, must not move the plots below it at every edit. The
-        # height it has is held before the new lines are set (the layout lays them out).
+        # While one design is edited the strip only grows, until the edits pause: a warning
+        # that comes and goes, or a line that wraps once more, must not move the plots below
+        # it at every step of a scrub. The height it has is held before the new lines are
+        # set (the layout lays them out).
         held = not self._fresh and data is not None and self.isVisible()
         self.setMinimumHeight(max(self.minimumHeight(), self.height()) if held else 0)
+        if held:
+            self._hold.start()
         self._fresh = data is None
         if data is None:
             for label in (self.gain, self.high, self.low, self.dominant, self.warnings):

@@ -10,6 +10,7 @@ from __future__ import annotations
 import math
 import re
 import unicodedata
+from functools import lru_cache
 
 from .errors import BadValueError
 
@@ -268,11 +269,17 @@ def format_value(x: float, unit: str = "", digits: int = 3) -> str:
     """
     if digits < 1:
         raise ValueError(f"digits must be at least 1, not {digits}")
+    return _written(float(x), unit, digits)
+
+
+@lru_cache(maxsize=4096)
+def _written(x: float, unit: str, digits: int) -> str:
+    # Kept: the views write the same values again at every edit (the parts' own, the corners
+    # that did not move), about a hundred and fifty a time.
     if unit == "1/V":
-        return f"{format_value(x, '', digits)} /V"
+        return f"{_written(x, '', digits)} /V"
     if unit == "V/A":
         unit = "Ω"  # a transimpedance: V/A is the ohm, and reads as one everywhere
-    x = float(x)
     if math.isnan(x):
         return "nan"
     space = " " if unit else ""

@@ -175,13 +175,17 @@ class BodeData:
         (at least :data:`VIEW_MARGIN_DB`) for the corner labels; both ends are then rounded
         out to :data:`VIEW_STEP_DB`."""
         m = self.exact.magnitude_db
-        bottom = max(float(m.min()), self.midband_db - VIEW_DEPTH_DB) - VIEW_MARGIN_DB
+        return self.magnitude_view_from(max(float(m.min()), self.midband_db - VIEW_DEPTH_DB) - VIEW_MARGIN_DB)
+
+    def magnitude_view_from(self, bottom_db: float) -> tuple:
+        """(bottom, top) of a magnitude axis that reaches down to ``bottom_db`` (dB): the top
+        leaves the corner labels their share of that span, as :attr:`magnitude_view_db` does."""
         # The corner labels sit just above the -3 dB line, so the room above the curve is a
         # share of the span (it is a share of the plot's height on screen), not a fixed dB.
         highest = self.midband_db if self.peak is None else self.peak[1]
-        top = highest + max(VIEW_MARGIN_DB, PEAK_ROOM * (highest - bottom) / (1 - PEAK_ROOM))
+        top = highest + max(VIEW_MARGIN_DB, PEAK_ROOM * (highest - bottom_db) / (1 - PEAK_ROOM))
         step = VIEW_STEP_DB
-        return step * math.floor(bottom / step), step * math.ceil(top / step)
+        return step * math.floor(bottom_db / step), step * math.ceil(top / step)
 
     def readout(self, freq_hz: float) -> str:
         """The exact response at the swept point nearest ``freq_hz``, as the hover line reads it.

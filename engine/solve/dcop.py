@@ -546,6 +546,13 @@ _solutions: OrderedDict = OrderedDict()
 _solutions_lock = threading.Lock()
 
 
+def forget_solutions() -> None:
+    """Drop the kept DC solutions, so the next bias is solved from the start (a measurement
+    of the whole analysis needs that)."""
+    with _solutions_lock:
+        _solutions.clear()
+
+
 def _kept_solve(problem):
     """:func:`_solve`, or its answer to the same equations kept from before: an edit that leaves
     the bias alone (a capacitor's value, a band pin) costs no Newton iterations, and the

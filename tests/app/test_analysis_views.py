@@ -16,6 +16,7 @@ from PySide6.QtWidgets import QApplication  # noqa: E402
 from bandsketch.app import edits  # noqa: E402
 from bandsketch.app.analysis.runner import AnalysisRunner, analyse_design  # noqa: E402
 from bandsketch.app.analysis.style import view_colours  # noqa: E402
+from bandsketch.app.analysis.verdict import HOLD_MS  # noqa: E402
 from bandsketch.app.theme import DARK, LIGHT  # noqa: E402
 from bandsketch.engine.design.designfile import load_design  # noqa: E402
 from bandsketch.engine.present.plotdata import element_label, part_of  # noqa: E402
@@ -261,7 +262,7 @@ def test_a_small_edit_moves_the_curve_against_still_axes_and_a_new_design_is_fit
     assert _ranges(panel) == _wanted(panel)
 
 
-def test_the_verdict_keeps_its_height_while_a_design_is_edited(window):
+def test_the_verdict_keeps_its_height_while_a_design_is_edited_and_lets_go_after(window, qtbot):
     window.resize(1400, 900)  # room for every line the verdict needs
     panel = _open(window, Path(__file__).parents[2] / "sample_designs" / "cascode_line_receiver.json")
     tallest = panel.verdict.height()
@@ -275,6 +276,8 @@ def test_the_verdict_keeps_its_height_while_a_design_is_edited(window):
         tallest = panel.verdict.height()
         heights.append(panel.verdict.heightForWidth(panel.verdict.width()))
     assert len(set(heights)) > 1, "the edits change how many lines the verdict takes"
+    qtbot.waitUntil(lambda: panel.verdict.height() == panel.verdict.heightForWidth(panel.verdict.width()),
+                    timeout=HOLD_MS + 1000)  # once the edits pause, the plots get the room back
     _open(window, Path(__file__).parents[2] / "sample_designs" / "photodiode_tia.json")
     QApplication.processEvents()
     assert panel.verdict.height() == panel.verdict.heightForWidth(panel.verdict.width()), \

@@ -372,7 +372,7 @@ def _ce_with_cin(value):
 def test_a_capacitor_edit_takes_the_kept_bias_as_solving_would_give_it(monkeypatch):
     # Common practice, no source: a DC solution depends on the DC equations alone, so the one
     # kept for the same equations must be the one solving again gives, to the last bit.
-    monkeypatch.setattr(dcop, "_solutions", dcop.OrderedDict())
+    dcop.forget_solutions()
     cold = operating_point(_ce_with_cin(10e-6))
     solves = []
     real = dcop._solve
@@ -390,8 +390,8 @@ def test_a_capacitor_edit_takes_the_kept_bias_as_solving_would_give_it(monkeypat
     assert len(solves) == 2
 
 
-def test_only_the_last_solutions_are_kept(monkeypatch):
-    monkeypatch.setattr(dcop, "_solutions", dcop.OrderedDict())
+def test_only_the_last_solutions_are_kept():
+    dcop.forget_solutions()
     for k in range(dcop.KEPT_SOLUTIONS + 5):
         operating_point(_ce(rc=f"{4 + 0.1 * k:.1f}k"))
     assert len(dcop._solutions) == dcop.KEPT_SOLUTIONS
