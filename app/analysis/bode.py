@@ -29,15 +29,20 @@ LABELS_APART_PX = 8
 """Pixels kept between the f_L and f_H labels of one row when both point into the mid band."""
 SPARE_ROOM = {"frequency": 0.5, "magnitude": 20.0, "phase": 90.0}
 """How much room (decades, dB, degrees) an axis may show beyond each end of a new response
-and still be kept, so that an edit moving the curve a little moves no axis."""
+and still be kept, so that an edit moving the curve a little moves no axis. An end that must
+move goes to half that room beyond the response (a whole step of the axis's own rounding),
+so an edit that is taken back moves it no more."""
 
 
-def _holds(shown: tuple, wanted: tuple, spare: float) -> bool:
-    """Whether the range ``shown`` holds ``wanted`` with at most ``spare`` beyond either end
-    (the ends compared to a millionth of the span: they come from logarithms)."""
-    slack = 1e-6 * (wanted[1] - wanted[0])
-    return (wanted[0] - spare - slack <= shown[0] <= wanted[0] + slack
-            and wanted[1] - slack <= shown[1] <= wanted[1] + spare + slack)
+def _settled_end(shown: float, wanted: float, outward: float, spare: float) -> float:
+    """Where an axis end goes for a new response: kept while it lies between the response's
+    own end (``wanted``) and ``spare`` beyond it (``outward`` is +1 for a top end, −1 for a
+    bottom end), else half the spare beyond the response. Ends are compared to a millionth
+    of ``spare``: they come from logarithms."""
+    beyond = outward * (shown - wanted)
+    if -1e-6 * spare <= beyond <= spare * (1 + 1e-6):
+        return shown
+    return wanted + outward * spare / 2
 
 
 class FrequencyAxis(pg.AxisItem):
@@ -136,10 +141,10 @@ class BodePlot(Restyles, QWidget):
     def show_response(self, data: BodeData | None, *, stale: bool = False, settle: bool = False) -> None:
         """Draw ``data`` (None: clear); ``stale`` greys a result no longer current.
 
-        With ``settle`` (the next response of the design shown), an axis that holds the new
-        response with no more than :data:`SPARE_ROOM` to spare at either end stays as it is:
-        the curve moves against still axes, which are not re-ticked. Otherwise the axes are
-        fitted to the response.
+        With ``settle`` (the next response of the design shown), an axis end that lies within
+        :data:`SPARE_ROOM` beyond the new response's stays where it is: the curve moves
+        against still axes, which are not re-ticked. Otherwise the axes are fitted to the
+        response.
         """
         self._data, self._stale = data, stale
         exact_m, exact_p = self.curves["exact"]
@@ -264,10 +269,12 @@ class BodePlot(Restyles, QWidget):
             now_a, now_b = box.viewRange()[axis]
             if self._held:
                 ranges[name] = (min(a, now_a), max(b, now_b))
-            elif settle and _holds((now_a, now_b), (a, b), SPARE_ROOM[name]) and (
-                    name != "magnitude" or now_b >= self._data.magnitude_view_from(now_a)[1]):
-                # (A magnitude axis kept deeper must keep the labels' room above the curve.)
-                ranges[name] = (now_a, now_b)
+            elif settle:
+                bottom = _settled_end(now_a, a, -1, SPARE_ROOM[name])
+                if name == "magnitude":
+                    # An axis reaching deeper needs more room above the curve for the labels.
+                    b = self._data.magnitude_view_from(bottom)[1]
+                ranges[name] = (bottom, _settled_end(now_b, b, +1, SPARE_ROOM[name]))
             else:
                 ranges[name] = (a, b)
         # Both of the magnitude's ranges in one call: each call that changes a range moves

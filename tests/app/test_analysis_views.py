@@ -15,6 +15,7 @@ from PySide6.QtWidgets import QApplication  # noqa: E402
 
 from bandsketch.app import edits  # noqa: E402
 from bandsketch.app.analysis.runner import AnalysisRunner, analyse_design  # noqa: E402
+from bandsketch.app.analysis.bode import SPARE_ROOM  # noqa: E402
 from bandsketch.app.analysis.style import view_colours  # noqa: E402
 from bandsketch.app.analysis.verdict import HOLD_MS  # noqa: E402
 from bandsketch.app.theme import DARK, LIGHT  # noqa: E402
@@ -242,16 +243,21 @@ def test_a_small_edit_moves_the_curve_against_still_axes_and_a_new_design_is_fit
     panel.runner.wait()
     assert _ranges(panel) == first
     assert _ranges(panel) != _wanted(panel), "the fit alone would have moved them"
-    # A change that moves f_L two decades fits the frequency axis to the response again.
+    # A change that moves f_L two decades moves the frequency axis's low end: to a quarter
+    # decade (half the spare room) below the response's own, its high end staying.
     window.editor.patch(edits.edit_field(window.doc, "Cin", "value", "22n"), "Edit Cin")
     panel.runner.wait()
-    assert _ranges(panel)[0] == _wanted(panel)[0]
-    assert _ranges(panel)[0] != first[0]
-    # Back to where the curve leaves those axes: fitted again.
-    window.act_undo.trigger()
+    (lo, hi), wanted = _ranges(panel)[0], _wanted(panel)[0]
+    assert lo == pytest.approx(wanted.expected[0] - SPARE_ROOM["frequency"] / 2) and hi == first[0][1]
+    # Taken back: the low end goes below the curve's again, and an edit back to where the
+    # new end holds the response moves nothing.
     window.act_undo.trigger()
     panel.runner.wait()
-    assert _ranges(panel) == first
+    back = _ranges(panel)
+    assert back[0][0] == pytest.approx(_wanted(panel)[0].expected[0] - SPARE_ROOM["frequency"] / 2)
+    window.act_undo.trigger()
+    panel.runner.wait()
+    assert _ranges(panel) == back
     # The Fit button fits whatever the axes were.
     window.editor.patch(edits.edit_field(window.doc, "Cin", "value", "1u1"), "Edit Cin")
     panel.runner.wait()
