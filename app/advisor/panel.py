@@ -157,7 +157,7 @@ class AdvisorPanel(QWidget):
         self._latest = self._sens_source = self._sens_shown = None
         self._sens_running = False
         self.tabs.currentChanged.connect(self._refresh_sensitivities)
-        self.tabs.currentChanged.connect(self._spread_plots)
+        self.tabs.currentChanged.connect(self._page_shown)
         # The report covers every page, so its button sits by the tabs rather than on one.
         self.report_button = QPushButton("Export report…")
         self.report_button.setToolTip("Write the design report, with the sheet and plots, as HTML or PDF "
@@ -559,9 +559,13 @@ class AdvisorPanel(QWidget):
         v.addLayout(self._spread_grid, 1)
         return w
 
-    def _spread_plots(self, *_) -> dict:
+    def _page_shown(self, _index) -> None:
+        if self.tabs.currentWidget() is self._spread_page:
+            self._spread_plots()
+
+    def _spread_plots(self) -> dict:
         """The histogram plots, figure -> PlotWidget (made the first time they are needed)."""
-        if not self.plots and (self.tabs.currentWidget() is self._spread_page or self.spread is not None):
+        if not self.plots:
             for col, (fig, title) in enumerate(_SPREAD_TITLES.items()):
                 plot = pg.PlotWidget()
                 plot.setBackground("w")

@@ -343,12 +343,14 @@ class DcEquations:
     def digest(self) -> bytes:
         """A digest of everything the solution depends on: the linear equations, the
         excitation, and every device's pins and parameters."""
-        d = self.devices
         h = hashlib.blake2b(np.array([self.n, self.nodes]).tobytes(), digest_size=32)
-        for a in (self.G, self.b, d.bc, d.bb, d.be, d.bs, d.isat, d.beta, d.beta_r, d.va, d.vt, d.vcrit,
-                  d.md, d.mg, d.ms, d.mb, d.msign, d.vth, d.kp, d.lam, d.gamma, d.phi):
+        # Every array of pins or parameters the devices hold, by name, so one added to them is
+        # covered too (the private ones are derived from the pins and the size).
+        arrays = sorted((k, v) for k, v in vars(self.devices).items()
+                        if isinstance(v, np.ndarray) and not k.startswith("_"))
+        for name, a in [("G", self.G), ("b", self.b), *arrays]:
+            h.update(f"{name}{a.dtype}{a.shape}".encode())
             h.update(np.ascontiguousarray(a).tobytes())
-            h.update(b"|")
         return h.digest()
 
     def residual(self, x, scale_b=1.0, gmin=0.0):
